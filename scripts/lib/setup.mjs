@@ -1,0 +1,177 @@
+// Set-up shared by `npm start` and `npm test`. Node built-ins only: this runs before any
+// dependency is installed.
+import { spawn, spawnSync } from 'node:child_process';
+import { createHash, randomBytes } from 'node:crypto';
+import { chmodSync, existsSync, mkdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
+import { dirname, join, resolve } from 'node:path';
+import { fileURLToPath } from 'node:url';
+
+export const root = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..');
+export const localDir = join(root, '.local');
+const pgBin = process.env.PG_BIN ?? '/usr/lib/postgresql/15/bin';
+const isRoot = typeof process.getuid === 'function' && process.getuid() === 0;
+
+export function say(message) {
+  console.log(`[tallywood] ${message}`);
+}
+
+export function fail(message) {
+  console.error(`[tallywood] ${message}`);
+  process.exit(1);
+}
+
+/** Runs a command to completion, echoing its output; throws on a non-zero exit. */
+export function run(command, args, options = {}) {
+  const result = spawnSync(command, args, { stdio: 'inherit', cwd: root, ...options });
+  if (result.error) throw result.error;
+  if (result.status !== 0) throw new Error(`${command} ${args.join(' ')} exited with ${result.status}`);
+}
+
+function quiet(command, args, options = {}) {
+  return spawnSync(command, args, { encoding: 'utf8', cwd: root, ...options });
+}
+
+/** `npm ci` when node_modules is missing or older than package-lock.json. */
+export function ensureDependencies() {
+  const lock = join(root, 'package-lock.json');
+  const stamp = join(root, 'node_modules', '.tallywood-lock.sha256');
+  const want = createHash('sha256').update(readFileSync(lock)).digest('hex');
+  if (existsSync(stamp) && readFileSync(stamp, 'utf8') === want) return;
+  say('installing dependencies (npm ci)…');
+  run('npm', ['ci', '--no-audit', '--no-fund']);
+  writeFileSync(stamp, want);
+}
+
+function aptInstall(packages, why) {
+  if (!isRoot) {
+    fail(`${why} is missing. Install it with: sudo apt-get install -y ${packages.join(' ')}`);
+  }
+  say(`installing ${packages.join(', ')} with apt-get (${why})…`);
+  run('apt-get', ['update', '-qq']);
+  run('apt-get', ['install', '-y', '-qq', '--no-install-recommends', ...packages], {
+    env: { ...process.env, DEBIAN_FRONTEND: 'noninteractive' },
+  });
+}
+
+/** PostgreSQL 15 with PostGIS 3, from Debian's packages. */
+export function ensurePostgres() {
+  const server = existsSync(join(pgBin, 'postgres'));
+  const postgis = existsSync('/usr/share/postgresql/15/extension/postgis.control');
+  if (server && postgis) return;
+  aptInstall(['postgresql-15', 'postgresql-15-postgis-3'], 'PostgreSQL 15 with PostGIS');
+}
+
+/** Debian's Chromium for the end-to-end tests (Playwright's own browser download cannot work here). */
+export function ensureChromium() {
+  if (existsSync('/usr/bin/chromium')) return;
+  aptInstall(['chromium'], 'Chromium for the end-to-end tests');
+}
+
+/** The postgres server refuses to run as root: as root, the cluster belongs to the `postgres` user. */
+function asClusterOwner(command, args) {
+  return isRoot ? ['runuser', ['-u', 'postgres', '--', command, ...args]] : [command, args];
+}
+
+function makeReachable(dir) {
+  // Every parent folder must be traversable by the cluster's owner.
+  for (let d = dir; d !== dirname(d); d = dirname(d)) {
+    const mode = statSync(d).mode;
+    if ((mode & 0o001) === 0) chmodSync(d, mode | 0o001);
+  }
+}
+
+/**
+ * Creates (when missing) and starts a cluster in `dir`, listening only on 127.0.0.1:`port`.
+ * Returns a stop function. `fresh` removes any earlier cluster first.
+ */
+export function startCluster({ dir, port, fresh = false }) {
+  const log = `${dir}.log`;
+  mkdirSync(dirname(dir), { recursive: true });
+  if (fresh && existsSync(dir)) {
+    stopCluster(dir);
+    rmSync(dir, { recursive: true, force: true });
+  }
+  if (!existsSync(join(dir, 'PG_VERSION'))) {
+    say(`creating a PostgreSQL cluster in ${dir.replace(root + '/', '')}…`);
+    mkdirSync(dir, { recursive: true, mode: 0o700 });
+    if (isRoot) {
+      makeReachable(dirname(dir));
+      run('chown', ['postgres:postgres', dir]);
+      writeFileSync(log, '');
+      run('chown', ['postgres:postgres', log]);
+    }
+    const [cmd, args] = asClusterOwner(join(pgBin, 'initdb'), [
+      '-D', dir, '-U', 'app', '--auth=trust', '-E', 'UTF8', '--locale=C.UTF-8',
+    ]);
+    run(cmd, args, { stdio: ['ignore', 'ignore', 'inherit'] });
+  }
+  const status = quiet(...asClusterOwner(join(pgBin, 'pg_ctl'), ['-D', dir, 'status']));
+  if (status.status !== 0) {
+    say(`starting PostgreSQL on 127.0.0.1:${port}…`);
+    const [cmd, args] = asClusterOwner(join(pgBin, 'pg_ctl'), [
+      '-D', dir, '-l', log, '-w', '-t', '60',
+      '-o', `-c listen_addresses=127.0.0.1 -p ${port} -c unix_socket_directories=''`,
+      'start',
+    ]);
+    const started = quiet(cmd, args);
+    if (started.status !== 0) {
+      const tail = existsSync(log) ? readFileSync(log, 'utf8').split('\n').slice(-15).join('\n') : '';
+      fail(`PostgreSQL did not start on port ${port} (is the port taken? set the port variable).\n${tail}`);
+    }
+  }
+  return () => stopCluster(dir);
+}
+
+export function stopCluster(dir) {
+  if (!existsSync(join(dir, 'postmaster.pid'))) return;
+  quiet(...asClusterOwner(join(pgBin, 'pg_ctl'), ['-D', dir, '-m', 'fast', '-w', 'stop']));
+}
+
+/** Creates the database when it does not exist yet (the cluster trusts the `app` role on loopback). */
+export function ensureDatabase({ port, name }) {
+  const base = ['-h', '127.0.0.1', '-p', String(port), '-U', 'app'];
+  const found = quiet(join(pgBin, 'psql'), [...base, '-d', 'postgres', '-tAc', `select 1 from pg_database where datname='${name}'`]);
+  if (found.status !== 0) fail(`cannot reach PostgreSQL on port ${port}: ${found.stderr}`);
+  if (found.stdout.trim() !== '1') run(join(pgBin, 'createdb'), [...base, name]);
+}
+
+/** A secret kept in .local so that restarts keep sessions and links valid. */
+export function localSecret(name) {
+  const file = join(localDir, name);
+  if (!existsSync(file)) {
+    mkdirSync(localDir, { recursive: true });
+    writeFileSync(file, randomBytes(32).toString('base64url'), { mode: 0o600 });
+  }
+  return readFileSync(file, 'utf8').trim();
+}
+
+/** A node_modules binary by name. */
+export function bin(name) {
+  return join(root, 'node_modules', '.bin', name);
+}
+
+/** Starts a long-running child; its output is prefixed so the terminal stays readable. */
+export function startChild(label, command, args, env) {
+  const child = spawn(command, args, { cwd: root, env: { ...process.env, ...env }, stdio: ['ignore', 'pipe', 'pipe'] });
+  const prefix = (stream, out) =>
+    stream.on('data', (chunk) => {
+      for (const line of chunk.toString().split('\n')) if (line.trim()) out.write(`[${label}] ${line}\n`);
+    });
+  prefix(child.stdout, process.stdout);
+  prefix(child.stderr, process.stderr);
+  return child;
+}
+
+/** Resolves when `url` answers (any status), or rejects after `seconds`. */
+export async function waitForHttp(url, seconds = 60) {
+  const deadline = Date.now() + seconds * 1000;
+  for (;;) {
+    try {
+      await fetch(url);
+      return;
+    } catch {
+      if (Date.now() > deadline) throw new Error(`${url} did not answer within ${seconds} s`);
+      await new Promise((r) => setTimeout(r, 200));
+    }
+  }
+}

@@ -1,0 +1,80 @@
+// The local stand-in for a hosted mail service: an SMTP server that accepts every message and
+// keeps it, and a small HTTP API that the app's mailbox page reads. Messages survive restarts
+// in MAIL_CATCHER_STORE.
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { createServer } from 'node:http';
+import { join } from 'node:path';
+import { simpleParser } from 'mailparser';
+import { SMTPServer } from 'smtp-server';
+
+type Caught = { id: string; from: string; to: string[]; subject: string; date: string; text: string; html: string | null };
+
+const smtpPort = Number(process.env.MAIL_CATCHER_SMTP_PORT ?? 2525);
+const httpPort = Number(process.env.MAIL_CATCHER_HTTP_PORT ?? 2580);
+const store = process.env.MAIL_CATCHER_STORE ?? join(process.cwd(), '.local', 'mail');
+const file = join(store, 'messages.json');
+const keep = 500;
+
+mkdirSync(store, { recursive: true });
+let messages: Caught[] = existsSync(file) ? JSON.parse(readFileSync(file, 'utf8')) : [];
+let counter = messages.length;
+
+function addresses(value: unknown): string[] {
+  const list = Array.isArray(value) ? value : value ? [value] : [];
+  return list.flatMap((a: { value?: { address?: string }[] }) => (a.value ?? []).map((v) => v.address ?? '')).filter(Boolean);
+}
+
+const smtp = new SMTPServer({
+  authOptional: true,
+  disabledCommands: ['AUTH', 'STARTTLS'],
+  logger: false,
+  size: 10 * 1024 * 1024,
+  onData(stream, _session, callback) {
+    simpleParser(stream)
+      .then((mail) => {
+        counter += 1;
+        messages = [
+          {
+            id: String(counter),
+            from: mail.from?.text ?? '',
+            to: addresses(mail.to),
+            subject: mail.subject ?? '',
+            date: (mail.date ?? new Date()).toISOString(),
+            text: mail.text ?? '',
+            html: typeof mail.html === 'string' ? mail.html : null,
+          },
+          ...messages,
+        ].slice(0, keep);
+        writeFileSync(file, JSON.stringify(messages));
+        callback();
+      })
+      .catch((error: Error) => callback(error));
+  },
+});
+
+const http = createServer((req, res) => {
+  const url = new URL(req.url ?? '/', `http://127.0.0.1:${httpPort}`);
+  if (url.pathname === '/messages' && req.method === 'GET') {
+    const to = url.searchParams.get('to')?.toLowerCase();
+    const list = to ? messages.filter((m) => m.to.some((a) => a.toLowerCase() === to)) : messages;
+    res.writeHead(200, { 'content-type': 'application/json' }).end(JSON.stringify(list));
+    return;
+  }
+  if (url.pathname === '/messages' && req.method === 'DELETE') {
+    messages = [];
+    writeFileSync(file, '[]');
+    res.writeHead(204).end();
+    return;
+  }
+  res.writeHead(404, { 'content-type': 'application/json' }).end('{"error":"not found"}');
+});
+
+smtp.listen(smtpPort, '127.0.0.1', () => console.log(`local mail catcher: SMTP on 127.0.0.1:${smtpPort}`));
+http.listen(httpPort, '127.0.0.1', () => console.log(`local mail catcher: API on http://127.0.0.1:${httpPort}/messages`));
+
+function shutdown() {
+  smtp.close(() => http.close(() => process.exit(0)));
+  setTimeout(() => process.exit(0), 2000).unref();
+}
+process.on('SIGTERM', shutdown);
+process.on('SIGINT', shutdown);

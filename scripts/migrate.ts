@@ -1,0 +1,12 @@
+// Applies the migrations in drizzle/ to DATABASE_URL.
+import { join } from 'node:path';
+import { closeDb, createDb } from '../src/db/client';
+import { applyMigrations } from '../src/db/migrations';
+
+const url = process.env.DATABASE_URL;
+if (!url) throw new Error('DATABASE_URL is not set');
+const db = createDb(url, { max: 1 });
+const started = performance.now();
+await applyMigrations(db, join(import.meta.dirname, '..', 'drizzle'));
+console.log(`[tallywood] migrations applied (${Math.round(performance.now() - started)} ms)`);
+await closeDb(db);

@@ -1,0 +1,88 @@
+// `npm start`: everything from a clean clone to a running Tallywood with the demo loaded.
+import { readFileSync } from 'node:fs';
+import { join } from 'node:path';
+import {
+  bin, ensureDatabase, ensureDependencies, ensurePostgres, localDir, localSecret, root, run, say,
+  startChild, startCluster, waitForHttp,
+} from './lib/setup.mjs';
+
+const port = Number(process.env.PORT ?? 4321);
+const pgPort = Number(process.env.TALLYWOOD_PG_PORT ?? 54329);
+const smtpPort = Number(process.env.MAIL_CATCHER_SMTP_PORT ?? 2525);
+const mailHttpPort = Number(process.env.MAIL_CATCHER_HTTP_PORT ?? 2580);
+const started = Date.now();
+
+ensureDependencies();
+
+let stopDatabase = () => {};
+let databaseUrl = process.env.DATABASE_URL;
+if (!databaseUrl) {
+  ensurePostgres();
+  stopDatabase = startCluster({ dir: join(localDir, 'pg'), port: pgPort });
+  ensureDatabase({ port: pgPort, name: 'tallywood' });
+  databaseUrl = `postgres://app@127.0.0.1:${pgPort}/tallywood`;
+}
+
+const useCatcher = !process.env.SMTP_URL;
+const env = {
+  DATABASE_URL: databaseUrl,
+  AUTH_SECRET: process.env.AUTH_SECRET ?? localSecret('auth-secret'),
+  HOST: '127.0.0.1',
+  PORT: String(port),
+  ...(useCatcher
+    ? { MAIL_CATCHER_SMTP_PORT: String(smtpPort), MAIL_CATCHER_HTTP_URL: `http://127.0.0.1:${mailHttpPort}` }
+    : {}),
+};
+
+const children = [];
+let stopping = false;
+function stop(code = 0) {
+  if (stopping) return;
+  stopping = true;
+  say('stopping…');
+  for (const child of children) child.kill('SIGTERM');
+  stopDatabase();
+  say('stopped; your data is kept in .local/ for the next `npm start`.');
+  process.exit(code);
+}
+process.on('SIGINT', () => stop(0));
+process.on('SIGTERM', () => stop(0));
+
+try {
+  run(bin('tsx'), ['scripts/migrate.ts'], { env: { ...process.env, ...env } });
+  run(bin('tsx'), ['scripts/seed.ts'], { env: { ...process.env, ...env } });
+  if (useCatcher) {
+    children.push(
+      startChild('mail', bin('tsx'), ['scripts/mail-catcher.ts'], {
+        MAIL_CATCHER_SMTP_PORT: String(smtpPort),
+        MAIL_CATCHER_HTTP_PORT: String(mailHttpPort),
+        MAIL_CATCHER_STORE: join(localDir, 'mail'),
+      }),
+    );
+  }
+  say('building the app…');
+  run(bin('astro'), ['build'], { env: { ...process.env, ...env }, stdio: ['ignore', 'ignore', 'inherit'] });
+  const server = startChild('app', 'node', [join(root, 'dist', 'server', 'entry.mjs')], env);
+  children.push(server);
+  for (const child of children) child.on('exit', (c) => !stopping && (say('a service stopped; shutting down.'), stop(c ?? 1)));
+  await waitForHttp(`http://127.0.0.1:${port}/api/health`);
+} catch (error) {
+  console.error(error instanceof Error ? error.message : error);
+  stop(1);
+}
+
+/** The demo accounts people.csv lists for the start-up message, one per role. */
+function demoAccounts() {
+  const [, ...rows] = readFileSync(join(root, 'data', 'demo', 'people.csv'), 'utf8').trim().split(/\r?\n/);
+  return rows.map((row) => row.split(',')).filter((cells) => cells[4]).map((cells) => `  ${cells[4].padEnd(10)} ${cells[0]}`);
+}
+
+const seconds = ((Date.now() - started) / 1000).toFixed(1);
+console.log(`
+Tallywood is ready at http://127.0.0.1:${port}  (${seconds} s)
+${useCatcher ? `Local mailbox (sign-in links land here): http://127.0.0.1:${port}/mailbox\n` : ''}
+Demo accounts (all invented; sign in with the address, then open the mailbox):
+${demoAccounts().join('\n')}
+
+Press Ctrl-C to stop. Your data stays in .local/ for the next start.
+`);

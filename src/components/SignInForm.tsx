@@ -1,0 +1,44 @@
+import { zodResolver } from '@hookform/resolvers/zod';
+import { useForm } from 'react-hook-form';
+import { signInSchema, type SignInInput } from '../lib/accounts.schemas';
+import { postJson } from './api-client';
+
+export default function SignInForm() {
+  const { register, handleSubmit, setError, formState } = useForm<SignInInput>({ resolver: zodResolver(signInSchema) });
+  const { errors, isSubmitting } = formState;
+
+  const onSubmit = handleSubmit(async (input) => {
+    const result = await postJson('/api/sign-in', input);
+    if (result.ok) {
+      window.location.assign(`/sign-in/check-email?email=${encodeURIComponent(input.email)}`);
+      return;
+    }
+    setError(result.error.field === 'email' ? 'email' : 'root', { message: result.error.message });
+  });
+
+  return (
+    <form onSubmit={onSubmit} noValidate className="space-y-4" data-hydrated="true">
+      <div>
+        <label htmlFor="email" className="field-label">E-mail address</label>
+        <input
+          id="email"
+          type="email"
+          autoComplete="email"
+          inputMode="email"
+          className="field-input"
+          placeholder="name@example.org"
+          aria-invalid={errors.email ? 'true' : 'false'}
+          aria-describedby={errors.email ? 'email-error' : undefined}
+          {...register('email')}
+        />
+        {errors.email && <p id="email-error" role="alert" className="field-error">{errors.email.message}</p>}
+        {errors.email?.message?.startsWith('No account') && <p className="mt-1 text-sm"><a href="/sign-up">Create an account</a></p>}
+      </div>
+      {errors.root && <p role="alert" className="field-error">{errors.root.message}</p>}
+      <button type="submit" className="button w-full" disabled={isSubmitting}>
+        {isSubmitting ? 'Sending…' : 'E-mail me a sign-in link'}
+      </button>
+    </form>
+  );
+}
+

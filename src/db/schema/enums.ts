@@ -1,0 +1,23 @@
+import { pgEnum } from 'drizzle-orm/pg-core';
+
+/** Names from GLOSSARY.md; the TypeScript unions in src/lib/domain.ts list the same values. */
+export const roleEnum = pgEnum('role', ['forager', 'landowner', 'admin']);
+export const clubRoleEnum = pgEnum('club_role', ['member', 'steward']);
+export const membershipStateEnum = pgEnum('membership_state', ['invited', 'active', 'left', 'removed']);
+export const parcelStatusEnum = pgEnum('parcel_status', ['draft', 'listed', 'archived']);
+export const hazardKindEnum = pgEnum('hazard_kind', ['hunting', 'terrain', 'ticks', 'water', 'wildlife', 'other']);
+export const speciesKindEnum = pgEnum('species_kind', ['mushroom', 'leaf', 'shoot', 'root', 'flower', 'fruit', 'nut', 'bark']);
+export const methodEnum = pgEnum('method', ['cut', 'pick', 'dig', 'strip', 'gather-fallen']);
+export const unitEnum = pgEnum('unit', [
+  'g', 'kg', 'oz', 'lb',
+  'mL', 'L', 'us-cup', 'us-pint', 'us-quart', 'us-gallon',
+  'stem', 'bulb', 'fruiting-body', 'plant',
+]);
+export const dimensionEnum = pgEnum('dimension', ['mass', 'volume', 'count']);
+export const limitScopeEnum = pgEnum('limit_scope', ['visit', 'day', 'season', 'parcel-season', 'club-season']);
+export const permitStateEnum = pgEnum('permit_state', ['requested', 'approved', 'active', 'expired', 'revoked', 'declined']);
+export const verdictEnum = pgEnum('verdict', ['clear', 'outside', 'no-permit', 'edge', 'closed']);
+export const visitEndEnum = pgEnum('visit_end', ['check-out', 'end-of-day']);
+export const uploadPurposeEnum = pgEnum('upload_purpose', ['harvest-photo', 'boundary-file']);
+export const mailStateEnum = pgEnum('mail_state', ['queued', 'sent', 'failed']);
+export const paymentStateEnum = pgEnum('payment_state', ['pending', 'paid', 'cancelled', 'refunded', 'failed']);

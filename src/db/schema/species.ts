@@ -1,0 +1,68 @@
+import { sql } from 'drizzle-orm';
+import { check, index, jsonb, numeric, pgTable, text, unique, uuid } from 'drizzle-orm/pg-core';
+import { createdAt, id, updatedAt } from './columns';
+import { limitScopeEnum, methodEnum, speciesKindEnum, unitEnum } from './enums';
+import { parcels } from './land';
+import { permits } from './permits';
+
+export type Lookalike = { commonName: string; scientificName: string; danger: 'deadly' | 'toxic' | 'inedible'; howToTell: string };
+/** A yearly window, month-day to month-day inclusive; end before start means it crosses New Year. */
+export type SeasonWindow = { start: string; end: string };
+
+export const species = pgTable('species', {
+  id: id(),
+  slug: text('slug').notNull().unique(),
+  scientificName: text('scientific_name').notNull(),
+  commonName: text('common_name').notNull(),
+  kind: speciesKindEnum('kind').notNull(),
+  usualUnit: unitEnum('usual_unit').notNull(),
+  usualMethods: methodEnum('usual_methods').array().notNull().default(sql`'{}'::method[]`),
+  cautions: text('cautions').array().notNull().default(sql`'{}'::text[]`),
+  lookalikes: jsonb('lookalikes').$type<Lookalike[]>().notNull().default([]),
+  protectedStatus: text('protected_status'),
+  createdAt: createdAt(),
+  updatedAt: updatedAt(),
+});
+
+/** The harvest terms of one species on one parcel. */
+export const allowances = pgTable(
+  'allowances',
+  {
+    id: id(),
+    parcelId: uuid('parcel_id').notNull().references(() => parcels.id, { onDelete: 'cascade' }),
+    speciesId: uuid('species_id').notNull().references(() => species.id),
+    seasons: jsonb('seasons').$type<SeasonWindow[]>().notNull(),
+    methods: methodEnum('methods').array().notNull(),
+    createdAt: createdAt(),
+    updatedAt: updatedAt(),
+  },
+  (t) => [unique('allowances_parcel_species').on(t.parcelId, t.speciesId)],
+);
+
+/**
+ * A limit of an allowance. permitId null: the parcel's own limit. permitId set: a permit's tighter
+ * limit, or a club permit's club-wide cap (scope club-season, which needs a permit).
+ */
+export const limits = pgTable(
+  'limits',
+  {
+    id: id(),
+    allowanceId: uuid('allowance_id').notNull().references(() => allowances.id, { onDelete: 'cascade' }),
+    permitId: uuid('permit_id').references(() => permits.id, { onDelete: 'cascade' }),
+    scope: limitScopeEnum('scope').notNull(),
+    quantity: numeric('quantity', { precision: 18, scale: 6, mode: 'string' }).notNull(),
+    unit: unitEnum('unit').notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [
+    unique('limits_one_per_scope').on(t.allowanceId, t.permitId, t.scope).nullsNotDistinct(),
+    index('limits_permit').on(t.permitId),
+    check('limits_quantity_positive', sql`${t.quantity} > 0`),
+    check('limits_club_needs_permit', sql`${t.scope} <> 'club-season' or ${t.permitId} is not null`),
+  ],
+);
+
+export type Species = typeof species.$inferSelect;
+export type NewSpecies = typeof species.$inferInsert;
+export type Allowance = typeof allowances.$inferSelect;
+export type Limit = typeof limits.$inferSelect;

@@ -1,0 +1,90 @@
+import { sql } from 'drizzle-orm';
+import { check, index, integer, jsonb, pgTable, text, uuid } from 'drizzle-orm/pg-core';
+import { at, createdAt, id } from './columns';
+import { mailStateEnum, paymentStateEnum, uploadPurposeEnum } from './enums';
+import { users } from './auth';
+import { permits } from './permits';
+
+/** A stored file. The bytes live behind the storage interface (src/lib/storage); this is the record. */
+export const uploads = pgTable(
+  'uploads',
+  {
+    id: id(),
+    ownerId: text('owner_id').notNull().references(() => users.id),
+    purpose: uploadPurposeEnum('purpose').notNull(),
+    storageKey: text('storage_key').notNull().unique(),
+    contentType: text('content_type').notNull(),
+    byteSize: integer('byte_size').notNull(),
+    sha256: text('sha256').notNull(),
+    createdAt: createdAt(),
+  },
+  (t) => [index('uploads_owner').on(t.ownerId), check('uploads_size', sql`${t.byteSize} >= 0`)],
+);
+
+/** Who did what to which thing. Append-only (a trigger refuses UPDATE and DELETE). */
+export const auditEvents = pgTable(
+  'audit_events',
+  {
+    id: id(),
+    actorId: text('actor_id').references(() => users.id),
+    action: text('action').notNull(),
+    subjectType: text('subject_type').notNull(),
+    subjectId: text('subject_id').notNull(),
+    detail: jsonb('detail').$type<Record<string, unknown>>().notNull().default({}),
+    at: at('at').notNull().defaultNow(),
+  },
+  (t) => [index('audit_events_subject').on(t.subjectType, t.subjectId, t.at)],
+);
+
+/** Every e-mail the app sends, whatever the transport; also the record the sign-in rate limit counts. */
+export const outgoingMail = pgTable(
+  'outgoing_mail',
+  {
+    id: id(),
+    purpose: text('purpose').notNull(),
+    toAddress: text('to_address').notNull(),
+    subject: text('subject').notNull(),
+    /** The client address that caused the mail, where a request did (sign-in links). */
+    clientAddress: text('client_address'),
+    state: mailStateEnum('state').notNull().default('queued'),
+    error: text('error'),
+    createdAt: createdAt(),
+    sentAt: at('sent_at'),
+  },
+  (t) => [
+    index('outgoing_mail_to').on(t.purpose, t.toAddress, t.createdAt),
+    index('outgoing_mail_client').on(t.purpose, t.clientAddress, t.createdAt),
+  ],
+);
+
+export const payments = pgTable(
+  'payments',
+  {
+    id: id(),
+    permitId: uuid('permit_id').notNull().references(() => permits.id),
+    payerId: text('payer_id').notNull().references(() => users.id),
+    provider: text('provider').notNull().default('stripe'),
+    providerSessionId: text('provider_session_id').unique(),
+    providerPaymentId: text('provider_payment_id'),
+    amountMinor: integer('amount_minor').notNull(),
+    currency: text('currency').notNull(),
+    state: paymentStateEnum('state').notNull().default('pending'),
+    createdAt: createdAt(),
+    paidAt: at('paid_at'),
+    refundedAt: at('refunded_at'),
+  },
+  (t) => [index('payments_permit').on(t.permitId), check('payments_amount', sql`${t.amountMinor} >= 0`)],
+);
+
+/** Webhook events already handled, so a replayed event changes nothing. */
+export const paymentEvents = pgTable('payment_events', {
+  providerEventId: text('provider_event_id').primaryKey(),
+  type: text('type').notNull(),
+  payload: jsonb('payload').notNull(),
+  receivedAt: createdAt(),
+});
+
+export type Upload = typeof uploads.$inferSelect;
+export type AuditEvent = typeof auditEvents.$inferSelect;
+export type OutgoingMail = typeof outgoingMail.$inferSelect;
+export type Payment = typeof payments.$inferSelect;

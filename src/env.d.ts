@@ -1,0 +1,8 @@
+/// <reference types="astro/client" />
+
+declare namespace App {
+  interface Locals {
+    /** The signed-in person, resolved once per request by src/middleware.ts; null when signed out. */
+    actor: import('./lib/actor').Actor | null;
+  }
+}

@@ -1,0 +1,17 @@
+import type { Actor } from './actor';
+import { mayEver, type Action } from './permissions';
+
+export type NavItem = { href: string; label: string; action: Action };
+
+/** Page titles from GLOSSARY.md, in the order a person reaches for them. */
+export const navigation: NavItem[] = [
+  { href: '/my-permits', label: 'My permits', action: 'permit:request' },
+  { href: '/land', label: 'Land', action: 'parcel:list-own' },
+  { href: '/club', label: 'Club', action: 'club:read' },
+  { href: '/catalogue', label: 'Catalogue', action: 'catalogue:read' },
+  { href: '/accounts', label: 'Accounts', action: 'account:list' },
+];
+
+export function navigationFor(actor: Actor | null): NavItem[] {
+  return navigation.filter((item) => mayEver(actor, item.action));
+}

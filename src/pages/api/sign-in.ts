@@ -1,0 +1,17 @@
+import { db } from '../../db';
+import { findUserByEmail } from '../../db/accounts.queries';
+import { signInSchema } from '../../lib/accounts.schemas';
+import { AppError } from '../../lib/errors';
+import { requestSignInLink } from '../../server/auth';
+import { endpoint, json, readJson } from '../../server/http';
+
+/** Sends a sign-in link to an existing account. */
+export const POST = endpoint(async ({ request, url, clientAddress }) => {
+  const { email } = await readJson(request, signInSchema);
+  const user = await findUserByEmail(db, { email });
+  if (!user) {
+    throw new AppError(404, 'no-account', 'No account uses this address. Check the spelling, or create an account.', 'email');
+  }
+  await requestSignInLink({ email, origin: url.origin, clientAddress: clientAddress ?? null, now: new Date() });
+  return json({ sent: true, email }, 202);
+});

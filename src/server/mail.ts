@@ -1,0 +1,36 @@
+import { MAIL_CATCHER_SMTP_PORT, MAIL_FROM, SMTP_URL } from 'astro:env/server';
+import nodemailer from 'nodemailer';
+import { db } from '../db';
+import { markMail, recordMail } from '../db/mail.queries';
+
+/** True while mail goes to the local catcher (and so the mailbox page exists). */
+export const usingMailCatcher = !SMTP_URL;
+
+const transport = nodemailer.createTransport(
+  SMTP_URL ?? { host: '127.0.0.1', port: MAIL_CATCHER_SMTP_PORT, secure: false, ignoreTLS: true },
+);
+
+export type Mail = { purpose: string; to: string; subject: string; text: string; html: string; clientAddress?: string | null };
+
+/** Sends one e-mail and keeps a record of it (the record is what rate limits count). */
+export async function sendMail(mail: Mail) {
+  const id = await recordMail(db, { purpose: mail.purpose, toAddress: mail.to, subject: mail.subject, clientAddress: mail.clientAddress ?? null });
+  try {
+    await transport.sendMail({ from: MAIL_FROM, to: mail.to, subject: mail.subject, text: mail.text, html: mail.html });
+    await markMail(db, { id, now: new Date() });
+  } catch (error) {
+    await markMail(db, { id, error: String(error), now: new Date() });
+    throw error;
+  }
+}
+
+const escape = (s: string) => s.replace(/[&<>"']/g, (c) => `&#${c.charCodeAt(0)};`);
+
+/** The one frame every Tallywood e-mail's HTML part shares. */
+export function mailHtml({ heading, paragraphs, action }: { heading: string; paragraphs: string[]; action?: { label: string; url: string } }) {
+  const body = paragraphs.map((p) => `<p style="margin:0 0 12px">${escape(p)}</p>`).join('');
+  const button = action
+    ? `<p style="margin:20px 0"><a href="${escape(action.url)}" style="background:#3d6437;color:#fff;padding:10px 18px;border-radius:6px;text-decoration:none;font-weight:600">${escape(action.label)}</a></p><p style="margin:0 0 12px;font-size:13px;color:#5c4431">Or paste this address into your browser: ${escape(action.url)}</p>`
+    : '';
+  return `<!doctype html><html><body style="font-family:'Work Sans',Arial,sans-serif;color:#1f2f1e;background:#f8f5f1;padding:24px"><div style="max-width:520px;margin:auto;background:#fff;border-radius:8px;padding:24px"><p style="margin:0 0 16px;font-weight:700;color:#3d6437">Tallywood</p><h1 style="font-size:20px;margin:0 0 16px">${escape(heading)}</h1>${body}${button}</div></body></html>`;
+}

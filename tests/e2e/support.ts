@@ -1,0 +1,55 @@
+import { expect, type APIRequestContext, type Page } from '@playwright/test';
+
+type Caught = { id: string; to: string[]; subject: string; text: string };
+
+/** The messages the local mail catcher holds for one address, newest first (through the app's mailbox API). */
+export async function mailFor(request: APIRequestContext, email: string): Promise<Caught[]> {
+  const response = await request.get(`/api/mailbox?to=${encodeURIComponent(email)}`);
+  expect(response.ok()).toBeTruthy();
+  return ((await response.json()) as { messages: Caught[] }).messages;
+}
+
+/** Waits for a sign-in mail newer than `after` and returns the link in it. */
+export async function signInLinkFor(request: APIRequestContext, email: string, after: number): Promise<string> {
+  let link = '';
+  await expect
+    .poll(async () => {
+      const messages = await mailFor(request, email);
+      const fresh = messages.find((m) => Number(m.id) > after && m.subject.includes('sign-in link'));
+      link = fresh?.text.match(/https?:\/\/\S+\/api\/auth\/callback\/\S+/)?.[0] ?? '';
+      return link;
+    }, { message: `a sign-in e-mail for ${email}` })
+    .not.toBe('');
+  return link;
+}
+
+export async function newestMailId(request: APIRequestContext, email: string) {
+  const [newest] = await mailFor(request, email);
+  return newest ? Number(newest.id) : 0;
+}
+
+/** Signs in through the real flow: the form, the e-mailed link from the local catcher, the callback. */
+export async function signIn(page: Page, email: string) {
+  const after = await newestMailId(page.request, email);
+  await page.goto('/sign-in');
+  await page.locator('form[data-hydrated]').waitFor();
+  await page.getByLabel('E-mail address').fill(email);
+  await page.getByRole('button', { name: 'E-mail me a sign-in link' }).click();
+  await expect(page.getByRole('heading', { name: 'Check your e-mail' })).toBeVisible();
+  const link = await signInLinkFor(page.request, email, after);
+  await page.goto(link);
+  await expect(page.getByTestId('signed-in-as')).toBeVisible();
+}
+
+/** An API client signed in as `email`, through the same e-mailed link (its cookies hold the session). */
+export async function signInApi(request: APIRequestContext, email: string) {
+  const after = await newestMailId(request, email);
+  const response = await request.post('/api/sign-in', { data: { email } });
+  expect(response.status(), await response.text()).toBe(202);
+  const link = await signInLinkFor(request, email, after);
+  const landed = await request.get(link);
+  expect(landed.ok()).toBeTruthy();
+  const me = await request.get('/api/me');
+  expect(me.status()).toBe(200);
+  return request;
+}

@@ -1,0 +1,148 @@
+import { readFileSync } from 'node:fs';
+import { fileURLToPath } from 'node:url';
+import { sql } from 'drizzle-orm';
+import geodesic from 'geographiclib-geodesic';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { closeDb, createDb, type Db } from '../../src/db/client';
+import { readDemo, seedDemoIfEmpty } from '../../src/db/demo/seed-demo';
+
+const dataDir = fileURLToPath(new URL('../../data', import.meta.url));
+type Position = [number, number];
+type Feature = { properties: { name: string }; geometry: { type: 'Polygon' | 'MultiPolygon'; coordinates: unknown } };
+const readFeatures = (file: string) => (JSON.parse(readFileSync(`${dataDir}/demo/${file}`, 'utf8')) as { features: Feature[] }).features;
+const parcelFeatures = readFeatures('parcels.geojson');
+const zoneFeatures = readFeatures('zones.geojson');
+const speciesCount = (JSON.parse(readFileSync(`${dataDir}/species.json`, 'utf8')) as { species: unknown[] }).species.length;
+
+/** Unsigned geodesic area of one GeoJSON ring ([lon, lat], RFC 7946 §3.1.1 ✔) with GeographicLib, which takes (lat, lon). */
+function ringArea(ring: Position[]): number {
+  const polygon = geodesic.Geodesic.WGS84.Polygon(false);
+  for (const [lon, lat] of ring.slice(0, -1)) polygon.AddPoint(lat, lon); // GeographicLib closes the ring itself
+  // Signed, so a clockwise ring is a small negative area rather than the rest of the Earth (REFERENCES §2).
+  return Math.abs(polygon.Compute(false, true).area ?? Number.NaN);
+}
+
+/** Exterior minus holes, summed over the polygons (RFC 7946 §3.1.6–3.1.7 ✔). */
+function geodesicArea(geometry: Feature['geometry']): number {
+  const polygons = (geometry.type === 'Polygon' ? [geometry.coordinates] : geometry.coordinates) as Position[][][];
+  return polygons.reduce((sum, [exterior = [], ...holes]) => sum + ringArea(exterior) - holes.reduce((h, hole) => h + ringArea(hole), 0), 0);
+}
+
+const referenceRing: Position[] = [[-75, 45], [-74.99, 45], [-74.99, 45.01], [-75, 45.01], [-75, 45]];
+const referenceRingArea = 876_163.448; // m², REFERENCES §2 ⚙ (GeographicLib)
+
+let db: Db;
+const rows = async <T extends Record<string, unknown>>(query: ReturnType<typeof sql>) => [...(await db.execute<T>(query))];
+
+beforeAll(() => {
+  const url = process.env.DATABASE_URL;
+  if (!url) throw new Error('DATABASE_URL is not set');
+  db = createDb(url, { max: 2 });
+});
+
+afterAll(async () => {
+  await closeDb(db);
+});
+
+describe('PostGIS against its published behaviour', () => {
+  it('given the REFERENCES parcel-sized ring, ST_Area on geography is 876 163.448 m² within 0.1 m² (REFERENCES §2 ⚙ GeographicLib)', async () => {
+    const geojson = JSON.stringify({ type: 'Polygon', coordinates: [referenceRing] });
+    const [row] = await rows<{ area: number }>(sql`select ST_Area(ST_SetSRID(ST_GeomFromGeoJSON(${geojson}), 4326)::geography) as area`);
+    expect(Math.abs((row?.area ?? 0) - referenceRingArea)).toBeLessThan(0.1);
+  });
+
+  it('given a point on the edge of a square, ST_Covers says true and ST_Contains false (PostGIS manual, REFERENCES §4 ✔)', async () => {
+    const [row] = await rows<{ covers: boolean; contains: boolean }>(sql`
+      select ST_Covers(s, p) as covers, ST_Contains(s, p) as contains
+      from (select 'POLYGON((0 0,10 0,10 10,0 10,0 0))'::geometry as s, 'POINT(10 5)'::geometry as p) as t`);
+    expect(row).toEqual({ covers: true, contains: false });
+  });
+
+  it('given a bow-tie polygon, ST_IsValidReason starts with Self-intersection (PostGIS manual, REFERENCES §4 ✔)', async () => {
+    const [row] = await rows<{ reason: string }>(sql`select ST_IsValidReason('POLYGON((100 200,100 100,200 200,200 100,100 200))'::geometry) as reason`);
+    expect(row?.reason).toMatch(/^Self-intersection/);
+  });
+});
+
+describe('the seeded demo scenario', () => {
+  it('given the reference ring, this file’s GeographicLib helper gives 876 163.448 m² (REFERENCES §2 ⚙), in either orientation', () => {
+    expect(Math.abs(ringArea(referenceRing) - referenceRingArea)).toBeLessThan(0.001);
+    expect(Math.abs(ringArea([...referenceRing].reverse()) - referenceRingArea)).toBeLessThan(0.001);
+  });
+
+  it('given every parcel and zone in data/demo, the database holds them all with valid boundaries', async () => {
+    const [counts] = await rows<{ parcels: number; zones: number }>(
+      sql`select (select count(*)::int from parcels) as parcels, (select count(*)::int from no_harvest_zones) as zones`,
+    );
+    expect(counts).toEqual({ parcels: parcelFeatures.length, zones: zoneFeatures.length });
+    const invalid = await rows<{ name: string; reason: string }>(sql`
+      select name, ST_IsValidReason(boundary) as reason from parcels where not ST_IsValid(boundary)
+      union all select name, ST_IsValidReason(boundary) from no_harvest_zones where not ST_IsValid(boundary)`);
+    expect(invalid).toEqual([]);
+  });
+
+  it.each(parcelFeatures.map((feature): [string, Feature] => [feature.properties.name, feature]))(
+    'given the parcel %s, its stored area agrees within 0.1 %% with GeographicLib’s geodesic area (geographiclib-geodesic 2.2.0 ⚙)',
+    async (name, feature) => {
+      const [row] = await rows<{ area: number }>(sql`select area_m2 as area from parcels where name = ${name}`);
+      const expected = geodesicArea(feature.geometry);
+      expect(expected).toBeGreaterThan(0);
+      expect(Math.abs((row?.area ?? 0) - expected) / expected).toBeLessThan(0.001);
+    },
+  );
+
+  it('given every no-harvest zone, its parcel covers it', async () => {
+    const uncovered = await rows<{ name: string }>(sql`
+      select z.name from no_harvest_zones z join parcels p on p.id = z.parcel_id where not ST_Covers(p.boundary, z.boundary)`);
+    expect(uncovered).toEqual([]);
+  });
+
+  it('given the parcels, one is a MultiPolygon of more than one part and one has a hole', async () => {
+    const [row] = await rows<{ multipart: number; holed: number }>(sql`
+      select (select count(*)::int from parcels where ST_NumGeometries(boundary) > 1) as multipart,
+             (select count(distinct p.id)::int from parcels p, lateral ST_Dump(p.boundary) d where ST_NumInteriorRings(d.geom) > 0) as holed`);
+    expect(row?.multipart).toBeGreaterThanOrEqual(1);
+    expect(row?.holed).toBeGreaterThanOrEqual(1);
+  });
+
+  it('given every pair of parcels, none overlap in area, and at least one pair shares an edge', async () => {
+    const pairs = await rows<{ a: string; b: string; dimension: number; area: number }>(sql`
+      select a.name as a, b.name as b, ST_Dimension(ST_Intersection(a.boundary, b.boundary)) as dimension,
+             ST_Area(ST_Intersection(a.boundary, b.boundary)) as area
+      from parcels a join parcels b on a.id < b.id and ST_Intersects(a.boundary, b.boundary)`);
+    expect(pairs.filter((pair) => pair.area !== 0)).toEqual([]);
+    expect(pairs.some((pair) => pair.dimension === 1)).toBe(true);
+  });
+
+  it('given the species catalogue, it has at least 25 species, all of data/species.json, each with a caution', async () => {
+    const [row] = await rows<{ n: number; without: number }>(
+      sql`select count(*)::int as n, count(*) filter (where cardinality(cautions) = 0)::int as without from species`,
+    );
+    expect(row?.n).toBeGreaterThanOrEqual(25);
+    expect(row?.n).toBe(speciesCount);
+    expect(row?.without).toBe(0);
+  });
+
+  it('given the permits, they are in at least 5 distinct states', async () => {
+    const [row] = await rows<{ states: number }>(sql`select count(distinct state)::int as states from permits`);
+    expect(row?.states).toBeGreaterThanOrEqual(5);
+  });
+
+  it('given each permit, its history ends in the state the permit is in', async () => {
+    const mismatched = await rows<{ id: string }>(sql`
+      select p.id from permits p
+      where p.state is distinct from (select e.to_state from permit_events e where e.permit_id = p.id order by e.at desc limit 1)`);
+    expect(mismatched).toEqual([]);
+  });
+
+  it('given the database is already seeded, seedDemoIfEmpty returns false and changes no counts', async () => {
+    const countAll = () =>
+      rows(sql`select (select count(*)::int from users) as users, (select count(*)::int from parcels) as parcels,
+        (select count(*)::int from species) as species, (select count(*)::int from permits) as permits,
+        (select count(*)::int from permit_events) as events, (select count(*)::int from clubs) as clubs`);
+    const [beforeCounts] = await countAll();
+    expect(beforeCounts?.users).toBeGreaterThan(0);
+    expect(await seedDemoIfEmpty(db, readDemo(dataDir))).toBe(false);
+    expect((await countAll())[0]).toEqual(beforeCounts);
+  });
+});

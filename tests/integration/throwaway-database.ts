@@ -1,0 +1,45 @@
+import { randomBytes } from 'node:crypto';
+import { fileURLToPath } from 'node:url';
+import postgres from 'postgres';
+import { closeDb, createDb, type Db } from '../../src/db/client';
+
+/** The drizzle-kit migrations folder, as the app's migrate script reads it. */
+export const migrationsFolder = fileURLToPath(new URL('../../drizzle', import.meta.url));
+
+export type ThrowawayDatabase = { name: string; db: Db; drop: () => Promise<void> };
+
+/**
+ * An empty database of its own on the test cluster, made through TEST_ADMIN_DATABASE_URL, for tests
+ * that write to the append-only tables or must start from nothing. `drop()` ends its connections and drops it.
+ */
+export async function createThrowawayDatabase(prefix: string): Promise<ThrowawayDatabase> {
+  const adminUrl = process.env.TEST_ADMIN_DATABASE_URL;
+  if (!adminUrl) throw new Error('TEST_ADMIN_DATABASE_URL is not set');
+  const name = `${prefix}_${randomBytes(6).toString('hex')}`;
+  const admin = postgres(adminUrl, { max: 1, onnotice: () => {} });
+  await admin.unsafe(`create database "${name}"`);
+  const url = new URL(adminUrl);
+  url.pathname = `/${name}`;
+  const db = createDb(url.toString(), { max: 2 });
+  return {
+    name,
+    db,
+    async drop() {
+      await closeDb(db);
+      await admin`select pg_terminate_backend(pid) from pg_stat_activity where datname = ${name} and pid <> pg_backend_pid()`;
+      await admin.unsafe(`drop database if exists "${name}"`);
+      await admin.end({ timeout: 5 });
+    },
+  };
+}
+
+/** The PostgreSQL error behind a refused query (drizzle wraps it as `cause`); fails when the query succeeds. */
+export async function refusal(query: PromiseLike<unknown>): Promise<{ code?: string; message: string; constraint_name?: string }> {
+  try {
+    await query;
+  } catch (error) {
+    const cause = (error as { cause?: unknown }).cause;
+    return (cause ?? error) as { code?: string; message: string; constraint_name?: string };
+  }
+  throw new Error('the database accepted a change it should have refused');
+}

@@ -1,0 +1,36 @@
+import { join } from 'node:path';
+import { defineConfig } from '@playwright/test';
+
+const port = Number(process.env.TEST_APP_PORT ?? 4331);
+const outDir = process.env.TALLYWOOD_OUT_DIR ?? join(import.meta.dirname, '..', '.local', 'test-dist');
+
+export default defineConfig({
+  testDir: './e2e',
+  outputDir: '../.local/test-results',
+  workers: 1,
+  fullyParallel: false,
+  forbidOnly: !!process.env.CI,
+  reporter: [['list']],
+  timeout: 30_000,
+  expect: { timeout: 10_000 },
+  use: {
+    baseURL: `http://127.0.0.1:${port}`,
+    trace: 'retain-on-failure',
+    screenshot: 'only-on-failure',
+    launchOptions: {
+      /** Debian's Chromium: Playwright's own browser download cannot work on this network. */
+      executablePath: '/usr/bin/chromium',
+      args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run', '--disable-quic'],
+    },
+  },
+  projects: [{ name: 'chromium', use: { browserName: 'chromium' } }],
+  webServer: {
+    command: `node ${join(outDir, 'server', 'entry.mjs')}`,
+    url: `http://127.0.0.1:${port}/api/health`,
+    env: { ...(process.env as Record<string, string>), HOST: '127.0.0.1', PORT: String(port) },
+    reuseExistingServer: false,
+    timeout: 60_000,
+    stdout: 'ignore',
+    stderr: 'pipe',
+  },
+});
