@@ -30,6 +30,8 @@ export default defineConfig({
       MAIL_CATCHER_SMTP_PORT: envField.number({ context: 'server', access: 'public', default: 2525 }),
       /** The local mail catcher's HTTP API, read by the mailbox page. */
       MAIL_CATCHER_HTTP_URL: envField.string({ context: 'server', access: 'public', default: 'http://127.0.0.1:2580' }),
+      /** Folder behind the default upload storage; share it (or swap the storage) for several instances. */
+      UPLOADS_DIR: envField.string({ context: 'server', access: 'public', default: '.local/uploads' }),
       MAIL_FROM: envField.string({ context: 'server', access: 'public', default: 'Tallywood <no-reply@tallywood.example>' }),
       /** Sign-in e-mails one address may be sent in an hour. */
       SIGN_IN_LIMIT_PER_HOUR: envField.number({ context: 'server', access: 'public', default: 5 }),

@@ -1,5 +1,5 @@
 import { expect, test } from '@playwright/test';
-import { mailFor, signIn } from './support';
+import { mailFor, signIn, submitSignInForm } from './support';
 
 /** One demo account per role (data/demo/people.csv) and the navigation each should see. */
 const accounts = [
@@ -31,19 +31,13 @@ for (const account of accounts) {
 }
 
 test('given a malformed address, it says what is wrong beside the field and sends nothing', async ({ page }) => {
-  await page.goto('/sign-in');
-  await page.locator('form[data-hydrated]').waitFor();
-  await page.getByLabel('E-mail address').fill('owen.marsh@');
-  await page.getByRole('button', { name: 'E-mail me a sign-in link' }).click();
+  await submitSignInForm(page, 'owen.marsh@');
   await expect(page.getByRole('alert')).toContainText('does not look like an e-mail address');
   await expect(page).toHaveURL(/\/sign-in$/);
 });
 
 test('given an address with no account, it says so and offers to create one', async ({ page }) => {
-  await page.goto('/sign-in');
-  await page.locator('form[data-hydrated]').waitFor();
-  await page.getByLabel('E-mail address').fill('nobody-here@example.org');
-  await page.getByRole('button', { name: 'E-mail me a sign-in link' }).click();
+  await submitSignInForm(page, 'nobody-here@example.org');
   await expect(page.getByRole('alert')).toContainText('No account uses this address');
   await expect(page.getByRole('link', { name: 'Create an account' }).first()).toBeVisible();
 });
