@@ -37,6 +37,18 @@ export default defineConfig({
       SIGN_IN_LIMIT_PER_HOUR: envField.number({ context: 'server', access: 'public', default: 5 }),
       /** Sign-in e-mails one client address may ask for in an hour (a household or office shares one). */
       SIGN_IN_LIMIT_PER_CLIENT_PER_HOUR: envField.number({ context: 'server', access: 'public', default: 20 }),
+      /** A real base map: an XYZ template like https://tile.example.org/{z}/{x}/{y}.png. Unset: our own grid tiles, which need no internet. */
+      MAP_TILE_URL: envField.string({ context: 'server', access: 'public', optional: true }),
+      /** The credit the tile provider asks for (HTML, shown in the map's corner); only used with MAP_TILE_URL. */
+      MAP_TILE_ATTRIBUTION: envField.string({ context: 'server', access: 'public', optional: true }),
+      /** The deepest zoom the tile provider serves (default 19 for MAP_TILE_URL, 22 for our grid). */
+      MAP_TILE_MAX_ZOOM: envField.number({ context: 'server', access: 'public', optional: true, int: true, min: 0, max: 22 }),
+      /** The payment provider's secret key; the default is the local payments fake's test key. */
+      STRIPE_SECRET_KEY: envField.string({ context: 'server', access: 'secret', default: 'sk_test_tallywood_local' }),
+      /** Proves a webhook came from the provider; the local payments fake signs with the same default. */
+      STRIPE_WEBHOOK_SECRET: envField.string({ context: 'server', access: 'secret', default: 'whsec_tallywood_local' }),
+      /** Where the payment SDK sends requests: the local fake by default, https://api.stripe.com for the real provider (fixed at build). */
+      STRIPE_API_URL: envField.string({ context: 'server', access: 'public', optional: true, default: 'http://127.0.0.1:2600' }),
     },
   },
 });

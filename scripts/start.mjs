@@ -10,6 +10,8 @@ const port = Number(process.env.PORT ?? 4321);
 const pgPort = Number(process.env.TALLYWOOD_PG_PORT ?? 54329);
 const smtpPort = Number(process.env.MAIL_CATCHER_SMTP_PORT ?? 2525);
 const mailHttpPort = Number(process.env.MAIL_CATCHER_HTTP_PORT ?? 2580);
+const paymentsPort = Number(process.env.PAYMENTS_FAKE_PORT ?? 2600);
+const useFakePayments = !process.env.STRIPE_API_URL;
 const started = Date.now();
 
 ensureDependencies();
@@ -32,6 +34,7 @@ const env = {
   ...(useCatcher
     ? { MAIL_CATCHER_SMTP_PORT: String(smtpPort), MAIL_CATCHER_HTTP_URL: `http://127.0.0.1:${mailHttpPort}` }
     : {}),
+  ...(useFakePayments ? { STRIPE_API_URL: `http://127.0.0.1:${paymentsPort}` } : {}),
 };
 
 const children = [];
@@ -57,6 +60,15 @@ try {
         MAIL_CATCHER_SMTP_PORT: String(smtpPort),
         MAIL_CATCHER_HTTP_PORT: String(mailHttpPort),
         MAIL_CATCHER_STORE: join(localDir, 'mail'),
+      }),
+    );
+  }
+  if (useFakePayments) {
+    children.push(
+      startChild('payments', bin('tsx'), ['scripts/payments-fake.ts'], {
+        PAYMENTS_FAKE_PORT: String(paymentsPort),
+        PAYMENTS_FAKE_STORE: join(localDir, 'payments'),
+        PAYMENTS_WEBHOOK_URL: `http://127.0.0.1:${port}/api/payments/webhook`,
       }),
     );
   }

@@ -12,6 +12,7 @@ const pgPort = Number(process.env.TALLYWOOD_TEST_PG_PORT ?? 54339);
 const appPort = Number(process.env.TALLYWOOD_TEST_PORT ?? 4331);
 const smtpPort = Number(process.env.TALLYWOOD_TEST_SMTP_PORT ?? 2535);
 const mailHttpPort = Number(process.env.TALLYWOOD_TEST_MAIL_HTTP_PORT ?? 2590);
+const paymentsPort = Number(process.env.TALLYWOOD_TEST_PAYMENTS_PORT ?? 2610);
 const started = Date.now();
 
 ensureDependencies();
@@ -22,6 +23,8 @@ const stopDatabase = startCluster({ dir: join(localDir, 'pg-test'), port: pgPort
 ensureDatabase({ port: pgPort, name: 'tallywood_test' });
 const mailStore = join(localDir, 'mail-test');
 rmSync(mailStore, { recursive: true, force: true });
+const paymentsStore = join(localDir, 'payments-test');
+rmSync(paymentsStore, { recursive: true, force: true });
 
 const env = {
   ...process.env,
@@ -37,9 +40,17 @@ const env = {
   /** Every end-to-end sign-in comes from 127.0.0.1; the per-address limit stays at its default. */
   SIGN_IN_LIMIT_PER_CLIENT_PER_HOUR: '10000',
   TALLYWOOD_OUT_DIR: join(localDir, 'test-dist'),
+  /** The local payments fake and the app agree on these; the app's build reads STRIPE_API_URL. */
+  PAYMENTS_FAKE_PORT: String(paymentsPort),
+  PAYMENTS_FAKE_STORE: paymentsStore,
+  PAYMENTS_WEBHOOK_URL: `http://127.0.0.1:${appPort}/api/payments/webhook`,
+  STRIPE_API_URL: `http://127.0.0.1:${paymentsPort}`,
+  STRIPE_SECRET_KEY: 'sk_test_tallywood_test',
+  STRIPE_WEBHOOK_SECRET: 'whsec_tallywood_test',
 };
 
 const catcher = startChild('mail', bin('tsx'), ['scripts/mail-catcher.ts'], env);
+const payments = startChild('payments', bin('tsx'), ['scripts/payments-fake.ts'], env);
 let failed = false;
 const step = (label, command, args) => {
   say(`${label}…`);
@@ -53,6 +64,7 @@ const step = (label, command, args) => {
 
 try {
   await waitForHttp(`http://127.0.0.1:${mailHttpPort}/messages`, 30);
+  await waitForHttp(`http://127.0.0.1:${paymentsPort}/__events`, 30);
   run(bin('tsx'), ['scripts/migrate.ts'], { env });
   run(bin('tsx'), ['scripts/seed.ts'], { env });
   step('type check (astro check)', bin('astro'), ['check']);
@@ -64,6 +76,7 @@ try {
   console.error(error instanceof Error ? error.message : error);
 } finally {
   catcher.kill('SIGTERM');
+  payments.kill('SIGTERM');
   stopDatabase();
 }
 

@@ -1,19 +1,39 @@
 import { defineMiddleware } from 'astro:middleware';
 import { db } from './db';
 import { findActorBySession } from './db/accounts.queries';
+import { advancePermitsByDate } from './db/permits.lifecycle';
 import { mayEver, type Action } from './lib/permissions';
 import { sessionCookieNames } from './server/auth';
 
 /** Pages and the action a visitor's roles must allow to open them. API routes guard themselves. */
 const pageRules: [prefix: string, action: Action][] = [
   ['/land', 'parcel:list-own'],
+  ['/requests', 'parcel:list-own'],
   ['/my-permits', 'permit:request'],
   ['/club', 'club:read'],
   ['/catalogue', 'catalogue:read'],
   ['/accounts', 'account:list'],
 ];
 
+/**
+ * Permits start and expire by date. Any instance may move them (the rows are locked, the moves
+ * idempotent), so each does so at most every few minutes while it serves requests.
+ */
+const advanceEveryMs = 5 * 60 * 1000;
+let lastAdvance = 0;
+function advancePermitsNow(now: Date) {
+  if (now.getTime() - lastAdvance < advanceEveryMs) return;
+  lastAdvance = now.getTime();
+  db.transaction((tx) => advancePermitsByDate(tx, { now })).catch((error) => console.error('advancing permits by date failed:', error));
+}
+
 export const onRequest = defineMiddleware(async (context, next) => {
+  // Map tiles are public and many: no session lookup for them.
+  if (context.url.pathname.startsWith('/tiles/')) {
+    context.locals.actor = null;
+    return next();
+  }
+  advancePermitsNow(new Date());
   const token = sessionCookieNames.map((name) => context.cookies.get(name)?.value).find(Boolean);
   context.locals.actor = token ? await findActorBySession(db, { sessionToken: token, now: new Date() }) : null;
 

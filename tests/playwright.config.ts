@@ -23,7 +23,10 @@ export default defineConfig({
       args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run', '--disable-quic'],
     },
   },
-  projects: [{ name: 'chromium', use: { browserName: 'chromium' } }],
+  projects: [
+    { name: 'sessions', testMatch: /auth\.setup\.ts$/ },
+    { name: 'chromium', use: { browserName: 'chromium' }, dependencies: ['sessions'] },
+  ],
   webServer: {
     command: `node ${join(outDir, 'server', 'entry.mjs')}`,
     url: `http://127.0.0.1:${port}/api/health`,

@@ -8,7 +8,8 @@ export default function SignInForm() {
   const { errors, isSubmitting } = formState;
 
   const onSubmit = handleSubmit(async (input) => {
-    const result = await postJson('/api/sign-in', input);
+    const next = new URLSearchParams(window.location.search).get('next') ?? undefined;
+    const result = await postJson('/api/sign-in', { ...input, next });
     if (result.ok) {
       window.location.assign(`/sign-in/check-email?email=${encodeURIComponent(input.email)}`);
       return;

@@ -1,10 +1,17 @@
 /** The error shape every Tallywood endpoint answers with. */
 export type ApiError = { error: { code: string; message: string; field?: string } };
 
-export async function postJson(url: string, body: unknown): Promise<{ ok: true; data: unknown } | { ok: false; status: number; error: ApiError['error'] }> {
+export type ApiResult = { ok: true; data: unknown } | { ok: false; status: number; error: ApiError['error'] };
+
+export function postJson(url: string, body: unknown): Promise<ApiResult> {
+  return sendJson('POST', url, body);
+}
+
+/** Sends JSON and reads the answer; a network failure reads like any other error. */
+export async function sendJson(method: string, url: string, body?: unknown): Promise<ApiResult> {
   let response: Response;
   try {
-    response = await fetch(url, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify(body) });
+    response = await fetch(url, { method, headers: body === undefined ? {} : { 'content-type': 'application/json' }, body: body === undefined ? undefined : JSON.stringify(body) });
   } catch {
     return { ok: false, status: 0, error: { code: 'offline', message: 'No connection to Tallywood. Check your signal and try again.' } };
   }

@@ -29,3 +29,8 @@ export async function listClubsWithMembers(db: Executor, { clubIds }: { clubIds:
   }
   return [...byClub.values()];
 }
+
+/** Every club, by name: a landowner may grant a permit to any of them. */
+export async function listClubs(db: Executor) {
+  return db.select({ id: clubs.id, name: clubs.name }).from(clubs).orderBy(asc(clubs.name));
+}

@@ -1,28 +1,105 @@
-import { desc, eq, inArray, or, type SQL } from 'drizzle-orm';
+import { and, asc, desc, eq, inArray, or, sql, type SQL } from 'drizzle-orm';
+import { alias } from 'drizzle-orm/pg-core';
 import type { Executor } from './client';
-import { clubs, parcels, permits } from './schema';
+import { clubs, parcels, permitEvents, permits, terms, users } from './schema';
+
+const holderUser = alias(users, 'holder_user');
+const actor = alias(users, 'actor');
+
+const permitColumns = {
+  id: permits.id,
+  state: permits.state,
+  startsOn: permits.startsOn,
+  endsOn: permits.endsOn,
+  feeMinor: permits.feeMinor,
+  currency: permits.currency,
+  feePaidAt: permits.feePaidAt,
+  acceptedTermsId: permits.acceptedTermsId,
+  termsAcceptedAt: permits.termsAcceptedAt,
+  requestNote: permits.requestNote,
+  createdAt: permits.createdAt,
+  parcelId: parcels.id,
+  parcelName: parcels.name,
+  timeZone: parcels.timeZone,
+  holderUserId: permits.holderUserId,
+  holderClubId: permits.holderClubId,
+  holderName: holderUser.name,
+  holderEmail: holderUser.email,
+  clubName: clubs.name,
+  currentTermsId: sql<string | null>`(select ${terms.id} from ${terms} where ${terms.parcelId} = ${permits.parcelId} order by ${terms.version} desc limit 1)`,
+};
+
+function permitsWithHolders(db: Executor) {
+  return db
+    .select(permitColumns)
+    .from(permits)
+    .innerJoin(parcels, eq(parcels.id, permits.parcelId))
+    .leftJoin(holderUser, eq(holderUser.id, permits.holderUserId))
+    .leftJoin(clubs, eq(clubs.id, permits.holderClubId));
+}
 
 /** Permits a forager holds personally or through an active club membership. */
 export async function listPermitsForForager(db: Executor, { userId, clubIds }: { userId: string; clubIds: string[] }) {
   const held: SQL[] = [eq(permits.holderUserId, userId)];
   if (clubIds.length > 0) held.push(inArray(permits.holderClubId, clubIds));
+  return permitsWithHolders(db).where(or(...held)).orderBy(desc(permits.startsOn));
+}
+
+/** Every permit on one of the owner's parcels, newest first. */
+export async function listPermitsForParcel(db: Executor, { parcelId, ownerId }: { parcelId: string; ownerId: string }) {
+  return permitsWithHolders(db).where(and(eq(permits.parcelId, parcelId), eq(parcels.ownerId, ownerId))).orderBy(desc(permits.createdAt));
+}
+
+/** Access requests waiting for the owner's decision, oldest first. */
+export async function listRequestsForOwner(db: Executor, { ownerId }: { ownerId: string }) {
+  return permitsWithHolders(db).where(and(eq(parcels.ownerId, ownerId), eq(permits.state, 'requested'))).orderBy(asc(permits.createdAt));
+}
+
+/** One permit as its landowner sees it, or null for anyone else. */
+export async function findPermitForOwner(db: Executor, { permitId, ownerId }: { permitId: string; ownerId: string }) {
+  const [row] = await permitsWithHolders(db).where(and(eq(permits.id, permitId), eq(parcels.ownerId, ownerId)));
+  return row ?? null;
+}
+
+/** One permit as its holder (or a member of the holding club) sees it, or null. */
+export async function findPermitForHolder(db: Executor, { permitId, userId, clubIds }: { permitId: string; userId: string; clubIds: string[] }) {
+  const held: SQL[] = [eq(permits.holderUserId, userId)];
+  if (clubIds.length > 0) held.push(inArray(permits.holderClubId, clubIds));
+  const [row] = await permitsWithHolders(db).where(and(eq(permits.id, permitId), or(...held)));
+  return row ?? null;
+}
+
+/** A permit's history: every state change with who made it and why. */
+export async function listPermitEvents(db: Executor, { permitIds }: { permitIds: string[] }) {
+  if (permitIds.length === 0) return [];
   return db
+    .select({ permitId: permitEvents.permitId, fromState: permitEvents.fromState, toState: permitEvents.toState, reason: permitEvents.reason, at: permitEvents.at, actorName: actor.name })
+    .from(permitEvents)
+    .leftJoin(actor, eq(actor.id, permitEvents.actorId))
+    .where(inArray(permitEvents.permitId, permitIds))
+    .orderBy(asc(permitEvents.at));
+}
+
+export async function findTerms(db: Executor, { termsId }: { termsId: string }) {
+  const [row] = await db.select().from(terms).where(eq(terms.id, termsId));
+  return row ?? null;
+}
+
+/** Who hears about a permit: the landowner, and the holder (or the holding club's stewards). */
+export async function permitContacts(db: Executor, { permitId }: { permitId: string }) {
+  const [row] = await db
     .select({
-      id: permits.id,
-      state: permits.state,
-      startsOn: permits.startsOn,
-      endsOn: permits.endsOn,
-      feeMinor: permits.feeMinor,
-      currency: permits.currency,
-      feePaidAt: permits.feePaidAt,
-      termsAcceptedAt: permits.termsAcceptedAt,
-      parcelId: parcels.id,
       parcelName: parcels.name,
-      clubName: clubs.name,
+      ownerEmail: sql<string>`(select email from ${users} where id = ${parcels.ownerId})`,
+      ownerName: sql<string | null>`(select name from ${users} where id = ${parcels.ownerId})`,
+      holderEmails: sql<string[]>`case when ${permits.holderUserId} is not null
+        then array[(select email from ${users} where id = ${permits.holderUserId})]
+        else coalesce((select array_agg(u.email) from club_memberships m join ${users} u on u.id = m.user_id
+          where m.club_id = ${permits.holderClubId} and m.role = 'steward' and m.state = 'active'), '{}') end`,
+      holderName: sql<string | null>`coalesce((select name from ${users} where id = ${permits.holderUserId}), (select name from ${clubs} where id = ${permits.holderClubId}))`,
     })
     .from(permits)
     .innerJoin(parcels, eq(parcels.id, permits.parcelId))
-    .leftJoin(clubs, eq(clubs.id, permits.holderClubId))
-    .where(or(...held))
-    .orderBy(desc(permits.startsOn));
+    .where(eq(permits.id, permitId));
+  return row ?? null;
 }

@@ -9,7 +9,15 @@ export const emailAddress = z
   .toLowerCase()
   .pipe(z.email('That does not look like an e-mail address; it should look like name@example.org.'));
 
-export const signInSchema = z.object({ email: emailAddress });
+/** Where to land after the link is opened: a path on this site only (never another host). */
+const nextPath = z
+  .string()
+  .regex(/^\/(?!\/)[^\s]*$/, 'Only a path on this site.')
+  .max(500)
+  .optional()
+  .catch(undefined);
+
+export const signInSchema = z.object({ email: emailAddress, next: nextPath });
 
 export const signUpSchema = z.object({
   email: emailAddress,

@@ -5,13 +5,17 @@ export class AppError extends Error {
     readonly code: string,
     message: string,
     readonly field?: string,
+    /** Extra facts a client can show, such as every problem found in a boundary. */
+    readonly details?: unknown,
   ) {
     super(message);
     this.name = 'AppError';
   }
 
   toJSON() {
-    return { error: { code: this.code, message: this.message, ...(this.field ? { field: this.field } : {}) } };
+    return {
+      error: { code: this.code, message: this.message, ...(this.field ? { field: this.field } : {}), ...(this.details !== undefined ? { details: this.details } : {}) },
+    };
   }
 }
 

@@ -7,6 +7,7 @@ export type NavItem = { href: string; label: string; action: Action };
 export const navigation: NavItem[] = [
   { href: '/my-permits', label: 'My permits', action: 'permit:request' },
   { href: '/land', label: 'Land', action: 'parcel:list-own' },
+  { href: '/requests', label: 'Requests', action: 'parcel:list-own' },
   { href: '/club', label: 'Club', action: 'club:read' },
   { href: '/catalogue', label: 'Catalogue', action: 'catalogue:read' },
   { href: '/accounts', label: 'Accounts', action: 'account:list' },

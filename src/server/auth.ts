@@ -51,7 +51,7 @@ export const authConfig: AuthConfig = {
  * Sends a sign-in link through Auth.js, after the per-address and per-client limits. Auth.js
  * wants a CSRF token with the form, so this asks it for one first, as a browser would.
  */
-export async function requestSignInLink({ email, origin, clientAddress, now }: { email: string; origin: string; clientAddress: string | null; now: Date }) {
+export async function requestSignInLink({ email, origin, next = '/', clientAddress, now }: { email: string; origin: string; next?: string; clientAddress: string | null; now: Date }) {
   const since = new Date(now.getTime() - 60 * 60 * 1000);
   const recent = await countRecentMail(db, { purpose: 'sign-in', toAddress: email, clientAddress, since });
   if (recent.byAddress >= SIGN_IN_LIMIT_PER_HOUR) {
@@ -68,7 +68,7 @@ export async function requestSignInLink({ email, origin, clientAddress, now }: {
     new Request(`${origin}/api/auth/signin/nodemailer`, {
       method: 'POST',
       headers: { 'content-type': 'application/x-www-form-urlencoded', cookie, [clientHeader]: clientAddress ?? '' },
-      body: new URLSearchParams({ email, csrfToken, callbackUrl: `${origin}/` }),
+      body: new URLSearchParams({ email, csrfToken, callbackUrl: `${origin}${next}` }),
     }),
     authConfig,
   );

@@ -1,16 +1,13 @@
-import { expect, request as playwrightRequest, test, type APIRequestContext } from '@playwright/test';
-import { signInApi } from './support';
+import { expect, test, type APIRequestContext } from '@playwright/test';
+import { apiAs } from './support';
 
 /** Each endpoint answers through the one permission table: 401 signed out, 403 wrong role, 404 someone else's. */
 let forager: APIRequestContext;
 let walter: APIRequestContext;
 let june: APIRequestContext;
 
-test.beforeAll(async ({ baseURL }) => {
-  const make = () => playwrightRequest.newContext({ baseURL });
-  forager = await signInApi(await make(), 'forager@example.org');
-  walter = await signInApi(await make(), 'landowner@example.org');
-  june = await signInApi(await make(), 'june.farrand@example.org');
+test.beforeAll(async () => {
+  [forager, walter, june] = await Promise.all(['forager@example.org', 'landowner@example.org', 'june.farrand@example.org'].map(apiAs));
 });
 
 test.afterAll(async () => {

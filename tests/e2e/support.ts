@@ -1,4 +1,5 @@
-import { expect, type APIRequestContext, type Page } from '@playwright/test';
+import { join } from 'node:path';
+import { expect, request as playwrightRequest, type APIRequestContext, type Browser, type Page } from '@playwright/test';
 
 type Caught = { id: string; to: string[]; subject: string; text: string };
 
@@ -57,4 +58,19 @@ export async function signInApi(request: APIRequestContext, email: string) {
   const me = await request.get('/api/me');
   expect(me.status()).toBe(200);
   return request;
+}
+
+/** The app under test and the sessions the setup project made once per run (auth.setup.ts). */
+export const baseURL = `http://127.0.0.1:${process.env.TEST_APP_PORT ?? 4331}`;
+export const sessionFile = (email: string) => join(import.meta.dirname, '..', '..', '.local', 'test-auth', `${email}.json`);
+
+/** An API client already signed in as `email`. It sends an Origin header as browsers do. */
+export function apiAs(email: string) {
+  return playwrightRequest.newContext({ baseURL, storageState: sessionFile(email), extraHTTPHeaders: { origin: baseURL } });
+}
+
+/** A browser page already signed in as `email`. */
+export async function pageAs(browser: Browser, email: string) {
+  const context = await browser.newContext({ storageState: sessionFile(email) });
+  return context.newPage();
 }

@@ -7,11 +7,11 @@ import { endpoint, json, readJson } from '../../server/http';
 
 /** Sends a sign-in link to an existing account. */
 export const POST = endpoint(async ({ request, url, clientAddress }) => {
-  const { email } = await readJson(request, signInSchema);
+  const { email, next } = await readJson(request, signInSchema);
   const user = await findUserByEmail(db, { email });
   if (!user) {
     throw new AppError(404, 'no-account', 'No account uses this address. Check the spelling, or create an account.', 'email');
   }
-  await requestSignInLink({ email, origin: url.origin, clientAddress: clientAddress ?? null, now: new Date() });
+  await requestSignInLink({ email, origin: url.origin, next, clientAddress: clientAddress ?? null, now: new Date() });
   return json({ sent: true, email }, 202);
 });

@@ -1,9 +1,20 @@
 import { db } from '../../../db';
-import { listParcelsForOwner } from '../../../db/parcels.queries';
-import { endpoint, guard, json } from '../../../server/http';
+import { createParcel, listParcelsForOwner } from '../../../db/parcels.queries';
+import { newParcelSchema } from '../../../lib/land.schemas';
+import { acceptBoundary } from '../../../server/boundaries';
+import { endpoint, guard, json, readJson } from '../../../server/http';
 
 /** The signed-in landowner's parcels. */
 export const GET = endpoint(async ({ locals }) => {
   const actor = guard(locals.actor, 'parcel:list-own');
   return json({ parcels: await listParcelsForOwner(db, { ownerId: actor.id }) });
+});
+
+/** A new parcel: listed at once for a verified landowner, a draft otherwise. Overlaps are warnings. */
+export const POST = endpoint(async ({ locals, request }) => {
+  const actor = guard(locals.actor, 'parcel:draft');
+  const input = await readJson(request, newParcelSchema);
+  const { warnings, boundary } = await acceptBoundary(input.boundary, { ownerId: actor.id });
+  const parcel = await createParcel(db, { ownerId: actor.id, listed: actor.landownerVerified, input: { ...input, boundary } });
+  return json({ parcel, warnings }, 201);
 });

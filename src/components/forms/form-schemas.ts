@@ -1,0 +1,16 @@
+import { closureSchema, hazardSchema, parcelUpdateSchema, termsSchema } from '../../lib/land.schemas';
+import { accessRequestSchema, decisionSchema, grantPermitSchema, revokeSchema } from '../../lib/permits.schemas';
+
+/** The schemas a form island may name (island props must be plain data, so forms name them). */
+export const formSchemas = {
+  closure: closureSchema,
+  hazard: hazardSchema,
+  terms: termsSchema,
+  parcelSettings: parcelUpdateSchema,
+  grantPermit: grantPermitSchema,
+  accessRequest: accessRequestSchema,
+  decision: decisionSchema,
+  revoke: revokeSchema,
+};
+
+export type FormSchemaName = keyof typeof formSchemas;

@@ -1,0 +1,118 @@
+import { and, eq, isNull, sql } from 'drizzle-orm';
+import { AppError, invalidInput, notFound } from '../lib/errors';
+import type { GrantPermitInput } from '../lib/permits.schemas';
+import { sameDimension, toBaseScaled, units, type Unit } from '../lib/units';
+import type { Tx } from './client';
+import { activateIfReady, lockPermit, movePermit } from './permits.lifecycle';
+import { allowances, clubMemberships, limits, parcels, permitEvents, permits } from './schema';
+
+type Holder = { userId: string } | { clubId: string };
+
+async function insertPermit(
+  tx: Tx,
+  values: { parcelId: string; holder: Holder; startsOn: string; endsOn: string; feeMinor: number; currency: string; note: string; requestedBy: string | null; now: Date },
+) {
+  const [row] = await tx
+    .insert(permits)
+    .values({
+      parcelId: values.parcelId,
+      holderUserId: 'userId' in values.holder ? values.holder.userId : null,
+      holderClubId: 'clubId' in values.holder ? values.holder.clubId : null,
+      state: values.requestedBy ? 'requested' : 'approved',
+      startsOn: values.startsOn,
+      endsOn: values.endsOn,
+      feeMinor: values.feeMinor > 0 ? values.feeMinor : null,
+      currency: values.feeMinor > 0 ? values.currency : null,
+      requestNote: values.note,
+      requestedBy: values.requestedBy,
+      createdAt: values.now,
+      updatedAt: values.now,
+    })
+    .returning({ id: permits.id });
+  if (!row) throw new Error('the permit was not saved');
+  return row.id;
+}
+
+/**
+ * The landowner grants a permit directly: it starts `approved` and becomes active once the holder
+ * has accepted the terms and paid any fee, from its first day. Permit limits may only tighten.
+ */
+export async function grantPermit(tx: Tx, { parcelId, ownerId, holder, input, now }: { parcelId: string; ownerId: string; holder: Holder; input: GrantPermitInput; now: Date }) {
+  const [parcel] = await tx.select({ id: parcels.id }).from(parcels).where(and(eq(parcels.id, parcelId), eq(parcels.ownerId, ownerId))).for('update');
+  if (!parcel) throw notFound('Parcel');
+  const permitId = await insertPermit(tx, { parcelId, holder, startsOn: input.startsOn, endsOn: input.endsOn, feeMinor: input.feeMinor, currency: input.currency, note: input.note, requestedBy: null, now });
+  await tx.insert(permitEvents).values({ permitId, fromState: null, toState: 'approved', actorId: ownerId, reason: input.note || 'Granted by the landowner.', at: now });
+  await addPermitLimits(tx, { parcelId, permitId, isClub: 'clubId' in holder, limits: input.limits });
+  const permit = await lockPermit(tx, permitId);
+  return activateIfReady(tx, permit, { actorId: ownerId, now });
+}
+
+/** A permit's own limits: each must be tighter than the parcel's for the same species and scope. */
+async function addPermitLimits(tx: Tx, { parcelId, permitId, isClub, limits: wanted }: { parcelId: string; permitId: string; isClub: boolean; limits: GrantPermitInput['limits'] }) {
+  for (const [index, limit] of wanted.entries()) {
+    const field = `limits.${index}`;
+    if (limit.scope === 'club-season' && !isClub) throw invalidInput(`${field}.scope`, 'A club-wide cap belongs on a club permit.');
+    const [allowance] = await tx.select({ id: allowances.id }).from(allowances).where(and(eq(allowances.parcelId, parcelId), eq(allowances.speciesId, limit.speciesId)));
+    if (!allowance) throw invalidInput(`${field}.speciesId`, 'The parcel has no allowance for that species; add one first.');
+    const parcelLimits = await tx.select().from(limits).where(and(eq(limits.allowanceId, allowance.id), isNull(limits.permitId)));
+    const other = parcelLimits.find((l) => !sameDimension(l.unit as Unit, limit.unit));
+    if (other) throw invalidInput(`${field}.unit`, `The parcel measures this species in ${units[other.unit as Unit].dimension}; use a ${units[other.unit as Unit].dimension} unit.`);
+    const same = parcelLimits.find((l) => l.scope === limit.scope);
+    if (same && toBaseScaled(limit.quantity, limit.unit) > toBaseScaled(same.quantity, same.unit as Unit)) {
+      throw invalidInput(`${field}.quantity`, `A permit may tighten the parcel's ${limit.scope} limit (${same.quantity} ${units[same.unit as Unit].label}), never loosen it.`);
+    }
+    await tx.insert(limits).values({ allowanceId: allowance.id, permitId, scope: limit.scope, quantity: limit.quantity, unit: limit.unit });
+  }
+}
+
+/** A forager (or a steward for their club) asks for access to a parcel that is open to requests. */
+export async function requestAccess(
+  tx: Tx,
+  { parcelId, requesterId, clubId, startsOn, endsOn, note, now }: { parcelId: string; requesterId: string; clubId?: string; startsOn: string; endsOn: string; note: string; now: Date },
+) {
+  const [parcel] = await tx
+    .select({ id: parcels.id, ownerId: parcels.ownerId, name: parcels.name })
+    .from(parcels)
+    .where(and(eq(parcels.id, parcelId), eq(parcels.status, 'listed'), eq(parcels.openToRequests, true)));
+  if (!parcel) throw notFound('A parcel open to requests');
+  if (parcel.ownerId === requesterId) throw new AppError(409, 'own-parcel', 'This is your own parcel; you need no permit for it.');
+  if (clubId) {
+    const [steward] = await tx
+      .select({ id: clubMemberships.id })
+      .from(clubMemberships)
+      .where(and(eq(clubMemberships.clubId, clubId), eq(clubMemberships.userId, requesterId), eq(clubMemberships.role, 'steward'), eq(clubMemberships.state, 'active')));
+    if (!steward) throw notFound('A club you steward');
+  }
+  const holderColumn = clubId ? permits.holderClubId : permits.holderUserId;
+  const [open] = await tx
+    .select({ id: permits.id, state: permits.state })
+    .from(permits)
+    .where(and(eq(permits.parcelId, parcelId), eq(holderColumn, clubId ?? requesterId), sql`${permits.state} in ('requested', 'approved', 'active')`));
+  if (open) throw new AppError(409, 'already-asked', `There is already a permit here that is ${open.state}; see My permits.`);
+  const permitId = await insertPermit(tx, { parcelId, holder: clubId ? { clubId } : { userId: requesterId }, startsOn, endsOn, feeMinor: 0, currency: 'usd', note, requestedBy: requesterId, now });
+  await tx.insert(permitEvents).values({ permitId, fromState: null, toState: 'requested', actorId: requesterId, reason: note, at: now });
+  return { permitId, parcel };
+}
+
+/** The landowner approves (optionally setting a fee) or declines a request. */
+export async function decideRequest(
+  tx: Tx,
+  { permitId, ownerId, decision, message, feeMinor, now }: { permitId: string; ownerId: string; decision: 'approve' | 'decline'; message: string; feeMinor?: number; now: Date },
+) {
+  const permit = await lockPermit(tx, permitId);
+  if (permit.ownerId !== ownerId) throw notFound('Permit');
+  if (decision === 'decline') {
+    return movePermit(tx, permit, { to: 'declined', by: 'landowner', actorId: ownerId, reason: message || 'Declined by the landowner.', now });
+  }
+  if (feeMinor !== undefined) {
+    await tx.update(permits).set({ feeMinor: feeMinor > 0 ? feeMinor : null, currency: feeMinor > 0 ? (permit.currency ?? 'usd') : null }).where(eq(permits.id, permitId));
+  }
+  const approved = await movePermit(tx, { ...permit, feeMinor: feeMinor ?? permit.feeMinor }, { to: 'approved', by: 'landowner', actorId: ownerId, reason: message || 'Approved by the landowner.', now });
+  return activateIfReady(tx, approved, { actorId: ownerId, now });
+}
+
+export async function revokePermit(tx: Tx, { permitId, ownerId, reason, now }: { permitId: string; ownerId: string; reason: string; now: Date }) {
+  const permit = await lockPermit(tx, permitId);
+  if (permit.ownerId !== ownerId) throw notFound('Permit');
+  return movePermit(tx, permit, { to: 'revoked', by: 'landowner', actorId: ownerId, reason, now });
+}

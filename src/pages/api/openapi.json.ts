@@ -1,0 +1,5 @@
+import type { APIRoute } from 'astro';
+import { json } from '../../server/http';
+import { openApiDocument } from '../../server/openapi';
+
+export const GET: APIRoute = ({ url }) => json(openApiDocument(url.origin));

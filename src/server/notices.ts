@@ -1,0 +1,61 @@
+import { db } from '../db';
+import { permitContacts } from '../db/permits.queries';
+import { mailHtml, sendMail } from './mail';
+
+/**
+ * The e-mails about permits: a request to the landowner, the decision to the requester, an
+ * invitation, a revocation. Each has a plain-text and an HTML part and a link back to its page.
+ * A failed send is logged, never undoes the change it reports.
+ */
+async function send(to: string[], purpose: string, subject: string, heading: string, paragraphs: string[], action: { label: string; url: string }) {
+  for (const address of to) {
+    try {
+      await sendMail({
+        purpose,
+        to: address,
+        subject,
+        text: `${heading}\n\n${paragraphs.join('\n\n')}\n\n${action.label}: ${action.url}\n`,
+        html: mailHtml({ heading, paragraphs, action }),
+      });
+    } catch (error) {
+      console.error(`could not send ${purpose} mail to ${address}:`, error);
+    }
+  }
+}
+
+export async function noticeAccessRequested({ permitId, origin, note }: { permitId: string; origin: string; note: string }) {
+  const c = await permitContacts(db, { permitId });
+  if (!c) return;
+  await send([c.ownerEmail], 'access-request', `Access request for ${c.parcelName}`, `${c.holderName ?? 'A forager'} asks for access to ${c.parcelName}`,
+    [`Their note: "${note}"`, 'Approve or decline it in Tallywood; they are told either way.'],
+    { label: 'Review the request', url: `${origin}/requests/${permitId}` });
+}
+
+export async function noticeDecision({ permitId, origin, approved, message }: { permitId: string; origin: string; approved: boolean; message: string }) {
+  const c = await permitContacts(db, { permitId });
+  if (!c) return;
+  const heading = approved ? `Your request for ${c.parcelName} is approved` : `Your request for ${c.parcelName} was declined`;
+  const next = approved ? 'Accept the terms (and pay any fee) in My permits; the permit is active from its first day once both are done.' : 'You may ask again later or look for other parcels.';
+  await send(c.holderEmails, 'permit-decision', heading, heading, [...(message ? [`The landowner wrote: "${message}"`] : []), next],
+    { label: 'Open My permits', url: `${origin}/my-permits` });
+}
+
+export async function noticeGranted({ permitId, origin, invited }: { permitId: string; origin: string; invited: boolean }) {
+  const c = await permitContacts(db, { permitId });
+  if (!c) return;
+  const heading = `${c.ownerName ?? 'A landowner'} granted you a permit for ${c.parcelName}`;
+  const paragraphs = invited
+    ? ['Tallywood is where landowners record who may forage on their land and how much. An account has been made for this address; sign in with it to see the permit, accept the terms and pay any fee.']
+    : ['Accept the terms (and pay any fee) in My permits; the permit is active from its first day once both are done.'];
+  await send(c.holderEmails, invited ? 'invitation' : 'permit-granted', heading, heading, paragraphs,
+    { label: invited ? 'Sign in to Tallywood' : 'Open My permits', url: `${origin}${invited ? '/sign-in' : '/my-permits'}` });
+}
+
+export async function noticeRevoked({ permitId, origin, reason, refunded }: { permitId: string; origin: string; reason: string; refunded: boolean }) {
+  const c = await permitContacts(db, { permitId });
+  if (!c) return;
+  const heading = `Your permit for ${c.parcelName} is revoked`;
+  await send(c.holderEmails, 'permit-revoked', heading, heading,
+    [`The landowner's reason: "${reason}"`, refunded ? 'The fee you paid is refunded; a separate e-mail confirms it. Do not harvest there from now on.' : 'Do not harvest there from now on.'],
+    { label: 'Open My permits', url: `${origin}/my-permits` });
+}

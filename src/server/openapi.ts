@@ -1,0 +1,82 @@
+import { z } from 'zod';
+import { signInSchema, signUpSchema } from '../lib/accounts.schemas';
+import { allowanceSchema, closureSchema, hazardSchema, newParcelSchema, parcelUpdateSchema, termsSchema, zoneSchema } from '../lib/land.schemas';
+import { accessRequestSchema, decisionSchema, grantPermitSchema, revokeSchema } from '../lib/permits.schemas';
+
+type Route = { method: 'get' | 'post' | 'put' | 'patch' | 'delete'; path: string; summary: string; body?: z.ZodType; auth?: boolean; tag: string };
+
+/** Every JSON endpoint; request bodies are the zod schemas the endpoints validate with. */
+const routes: Route[] = [
+  { method: 'post', path: '/api/sign-in', summary: 'E-mail a sign-in link to an existing account', body: signInSchema, auth: false, tag: 'accounts' },
+  { method: 'post', path: '/api/sign-up', summary: 'Create an account (forager; landowner unverified) and e-mail a link', body: signUpSchema, auth: false, tag: 'accounts' },
+  { method: 'get', path: '/api/me', summary: 'The signed-in person and their roles', tag: 'accounts' },
+  { method: 'get', path: '/api/health', summary: 'Database, PostGIS and migrations', auth: false, tag: 'system' },
+  { method: 'get', path: '/api/parcels', summary: "The landowner's parcels", tag: 'parcels' },
+  { method: 'post', path: '/api/parcels', summary: 'Create a parcel (boundary checked; overlaps are warnings)', body: newParcelSchema, tag: 'parcels' },
+  { method: 'get', path: '/api/parcels/{id}', summary: 'One of your parcels', tag: 'parcels' },
+  { method: 'patch', path: '/api/parcels/{id}', summary: 'Change settings or boundary', body: parcelUpdateSchema, tag: 'parcels' },
+  { method: 'post', path: '/api/boundaries/check', summary: 'Check an uploaded file (multipart `file`: GeoJSON, KML, GPX) or a drawn geometry; saves nothing', tag: 'parcels' },
+  { method: 'post', path: '/api/parcels/{id}/zones', summary: 'Add a no-harvest zone inside the parcel', body: zoneSchema, tag: 'parcel rules' },
+  { method: 'delete', path: '/api/parcels/{id}/zones/{zoneId}', summary: 'Remove a zone', tag: 'parcel rules' },
+  { method: 'post', path: '/api/parcels/{id}/closures', summary: 'Add a closure', body: closureSchema, tag: 'parcel rules' },
+  { method: 'delete', path: '/api/parcels/{id}/closures/{closureId}', summary: 'Remove a closure', tag: 'parcel rules' },
+  { method: 'post', path: '/api/parcels/{id}/hazards', summary: 'Add a hazard', body: hazardSchema, tag: 'parcel rules' },
+  { method: 'delete', path: '/api/parcels/{id}/hazards/{hazardId}', summary: 'Remove a hazard', tag: 'parcel rules' },
+  { method: 'post', path: '/api/parcels/{id}/terms', summary: 'Publish a new version of the terms', body: termsSchema, tag: 'parcel rules' },
+  { method: 'put', path: '/api/parcels/{id}/allowances', summary: 'Set the allowance of one species', body: allowanceSchema, tag: 'parcel rules' },
+  { method: 'delete', path: '/api/parcels/{id}/allowances/{allowanceId}', summary: 'Remove an allowance', tag: 'parcel rules' },
+  { method: 'get', path: '/api/parcels/{id}/permits', summary: "The parcel's permits with their histories", tag: 'permits' },
+  { method: 'post', path: '/api/parcels/{id}/permits', summary: 'Grant a permit to a forager or a club', body: grantPermitSchema, tag: 'permits' },
+  { method: 'get', path: '/api/permits/{id}', summary: 'One permit with its history (landowner or holder)', tag: 'permits' },
+  { method: 'post', path: '/api/permits/{id}/decision', summary: 'Approve or decline an access request', body: decisionSchema, tag: 'permits' },
+  { method: 'post', path: '/api/permits/{id}/revoke', summary: 'Revoke a permit (refund when paid and not yet begun)', body: revokeSchema, tag: 'permits' },
+  { method: 'post', path: '/api/permits/{id}/accept-terms', summary: "Accept the parcel's current terms", tag: 'permits' },
+  { method: 'post', path: '/api/permits/{id}/checkout', summary: 'Start paying the fee; answers the hosted checkout URL', tag: 'payments' },
+  { method: 'post', path: '/api/payments/webhook', summary: "The payment provider's signed events (idempotent)", auth: false, tag: 'payments' },
+  { method: 'get', path: '/api/species', summary: 'The species catalogue with cautions', tag: 'catalogue' },
+  { method: 'get', path: '/api/open-parcels', summary: 'Parcels open to access requests', tag: 'permits' },
+  { method: 'post', path: '/api/access-requests', summary: 'Ask for access to a parcel', body: accessRequestSchema, tag: 'permits' },
+];
+
+const errorSchema = {
+  type: 'object',
+  required: ['error'],
+  properties: { error: { type: 'object', required: ['code', 'message'], properties: { code: { type: 'string' }, message: { type: 'string' }, field: { type: 'string' }, details: {} } } },
+};
+
+const errorResponse = (description: string) => ({ description, content: { 'application/json': { schema: { $ref: '#/components/schemas/Error' } } } });
+
+/** The OpenAPI 3.1 document for /api/openapi.json, generated from the zod schemas. */
+export function openApiDocument(origin: string) {
+  const paths: Record<string, Record<string, unknown>> = {};
+  for (const route of routes) {
+    const parameters = [...route.path.matchAll(/\{(\w+)\}/g)].map(([, name]) => ({ name, in: 'path', required: true, schema: { type: 'string', format: 'uuid' } }));
+    paths[route.path] = {
+      ...paths[route.path],
+      [route.method]: {
+        summary: route.summary,
+        tags: [route.tag],
+        ...(parameters.length ? { parameters } : {}),
+        ...(route.auth === false ? { security: [] } : {}),
+        ...(route.body ? { requestBody: { required: true, content: { 'application/json': { schema: z.toJSONSchema(route.body, { io: 'input', unrepresentable: 'any' }) } } } } : {}),
+        responses: {
+          '200': { description: 'Done' },
+          '400': errorResponse('Invalid input; `field` names it'),
+          ...(route.auth === false ? {} : { '401': errorResponse('Signed out'), '403': errorResponse('Not allowed for this account') }),
+          '404': errorResponse('Not found (also for things that belong to someone else)'),
+        },
+      },
+    };
+  }
+  return {
+    openapi: '3.1.0',
+    info: { title: 'Tallywood API', version: '0.1.0', description: 'Land-access permissions and harvest limits for wild foraging.' },
+    servers: [{ url: origin }],
+    components: {
+      schemas: { Error: errorSchema },
+      securitySchemes: { session: { type: 'apiKey', in: 'cookie', name: 'authjs.session-token' } },
+    },
+    security: [{ session: [] }],
+    paths,
+  };
+}

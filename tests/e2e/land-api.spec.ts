@@ -1,0 +1,140 @@
+import { expect, test, type APIRequestContext } from '@playwright/test';
+import { apiAs } from './support';
+
+/** The land API against the running server and the seeded demo (data/demo). */
+let walter: APIRequestContext;
+let june: APIRequestContext;
+let forager: APIRequestContext;
+let walterParcelId = '';
+
+/** A small square (about 110 m a side) west of the demo valley, clear of every demo parcel. */
+const square = (west: number, south: number, size = 0.001) => ({
+  type: 'Polygon' as const,
+  coordinates: [[[west, south], [west + size, south], [west + size, south + size], [west, south + size], [west, south]]],
+});
+const settings = { name: 'API test lot', timeZone: 'America/New_York', nearingThresholdPercent: 80, openToRequests: true, description: '' };
+
+test.beforeAll(async () => {
+  [walter, june, forager] = await Promise.all(['landowner@example.org', 'june.farrand@example.org', 'forager@example.org'].map(apiAs));
+  const created = await walter.post('/api/parcels', { data: { ...settings, boundary: square(-72.95, 43.9) } });
+  expect(created.status(), await created.text()).toBe(201);
+  walterParcelId = (await created.json()).parcel.id;
+});
+
+test.afterAll(async () => Promise.all([walter, june, forager].map((c) => c?.dispose())));
+
+async function parcelCount(client: APIRequestContext) {
+  return ((await (await client.get('/api/parcels')).json()).parcels as unknown[]).length;
+}
+
+test('given a new parcel, its area is the geodesic area PostGIS computes (≈ 0.9 ha for 0.001° at 43.9°N)', async () => {
+  const { parcel } = await (await walter.get(`/api/parcels/${walterParcelId}`)).json();
+  // 0.001° of latitude ≈ 111.1 m and of longitude ≈ 111.3 m × cos 43.9° ≈ 80.2 m (WGS 84, from memory ✱): ≈ 8 900 m².
+  expect(parcel.areaM2).toBeGreaterThan(8_800);
+  expect(parcel.areaM2).toBeLessThan(9_000);
+});
+
+test('given a self-crossing bow-tie, it answers 400 saying where the boundary crosses itself', async () => {
+  const before = await parcelCount(walter);
+  const bowTie = { type: 'Polygon', coordinates: [[[-72.95, 43.91], [-72.949, 43.912], [-72.95, 43.912], [-72.949, 43.91], [-72.95, 43.91]]] };
+  const response = await walter.post('/api/parcels', { data: { ...settings, boundary: bowTie } });
+  expect(response.status()).toBe(400);
+  const { error } = await response.json();
+  expect(error.field).toBe('boundary');
+  expect(error.message.toLowerCase()).toContain('cross');
+  expect(await parcelCount(walter)).toBe(before);
+});
+
+test('given a polygon with 100 000 vertices, it answers 400 naming the cap, and saves nothing', async () => {
+  const before = await parcelCount(walter);
+  const ring = Array.from({ length: 100_000 }, (_, i) => {
+    const a = (2 * Math.PI * i) / 100_000;
+    return [-72.96 + 0.002 * Math.cos(a), 43.92 + 0.002 * Math.sin(a)];
+  });
+  ring.push(ring[0] as number[]);
+  const response = await walter.post('/api/parcels', { data: { ...settings, boundary: { type: 'Polygon', coordinates: [ring] } } });
+  expect(response.status()).toBe(400);
+  expect((await response.json()).error.message).toMatch(/100[ ,.]?001|vertices/);
+  expect(await parcelCount(walter)).toBe(before);
+});
+
+test('given a 20 MB upload, the boundary check refuses it with 413 and a reason', async () => {
+  const big = Buffer.alloc(20 * 1024 * 1024, 32);
+  const response = await walter.post('/api/boundaries/check', { multipart: { file: { name: 'huge.geojson', mimeType: 'application/geo+json', buffer: big } } });
+  expect(response.status()).toBe(413);
+  expect((await response.json()).error.message).toContain('MB');
+});
+
+test('given a file that is not GeoJSON, KML or GPX, it answers 400 listing the formats it reads', async () => {
+  const response = await walter.post('/api/boundaries/check', { multipart: { file: { name: 'notes.csv', mimeType: 'text/csv', buffer: Buffer.from('name,lat,lon\nspring,43.9,-72.8\n') } } });
+  expect(response.status()).toBe(400);
+  const { error } = await response.json();
+  expect(error.message).toMatch(/GeoJSON/);
+  expect(error.message).toMatch(/KML/);
+});
+
+test('given a negative limit or an unknown unit, the allowance is refused with the field named and nothing saved', async () => {
+  const speciesId = await firstSpeciesId();
+  const base = { speciesId, seasons: [{ start: '11-01', end: '03-15' }], methods: ['strip'] };
+  const negative = await walter.put(`/api/parcels/${walterParcelId}/allowances`, { data: { ...base, limits: [{ scope: 'visit', quantity: '-5', unit: 'g' }] } });
+  expect(negative.status()).toBe(400);
+  expect((await negative.json()).error).toMatchObject({ field: 'limits.0.quantity', message: 'A limit must be more than zero.' });
+  const unknown = await walter.put(`/api/parcels/${walterParcelId}/allowances`, { data: { ...base, limits: [{ scope: 'visit', quantity: '5', unit: 'bushel-ish' }] } });
+  expect(unknown.status()).toBe(400);
+  expect((await unknown.json()).error.message).toContain('Unknown unit "bushel-ish"');
+  const { permits } = await (await walter.get(`/api/parcels/${walterParcelId}/permits`)).json();
+  expect(permits).toEqual([]);
+});
+
+async function firstSpeciesId(): Promise<string> {
+  const { species } = (await (await walter.get('/api/species')).json()) as { species: { id: string }[] };
+  expect(species.length).toBeGreaterThanOrEqual(25);
+  return species[0]?.id ?? '';
+}
+
+test("given another landowner, every endpoint of Walter's parcel answers 404", async () => {
+  const id = walterParcelId;
+  const zero = '00000000-0000-4000-8000-000000000000';
+  const calls = [
+    june.get(`/api/parcels/${id}`),
+    june.patch(`/api/parcels/${id}`, { data: { name: 'Taken over' } }),
+    june.get(`/api/parcels/${id}/permits`),
+    june.post(`/api/parcels/${id}/permits`, { data: { holder: { kind: 'forager', email: 'x@example.org' }, startsOn: '2027-01-01', endsOn: '2027-12-31' } }),
+    june.post(`/api/parcels/${id}/closures`, { data: { startsOn: '2027-01-01', endsOn: '2027-01-02', reason: 'x' } }),
+    june.post(`/api/parcels/${id}/hazards`, { data: { kind: 'other', title: 'x' } }),
+    june.post(`/api/parcels/${id}/terms`, { data: { body: 'These are not my terms to publish at all.' } }),
+    june.put(`/api/parcels/${id}/allowances`, { data: { speciesId: zero, seasons: [{ start: '01-01', end: '12-31' }], methods: ['pick'], limits: [] } }),
+    june.post(`/api/parcels/${id}/zones`, { data: { name: 'x', boundary: square(-72.9495, 43.9005, 0.0002) } }),
+    june.delete(`/api/parcels/${id}/closures/${zero}`),
+  ];
+  for (const response of await Promise.all(calls)) {
+    expect(response.status(), response.url()).toBe(404);
+  }
+  const { parcel } = await (await walter.get(`/api/parcels/${id}`)).json();
+  expect(parcel.name).toBe('API test lot');
+});
+
+test("given another landowner, Walter's permits and requests answer 404", async () => {
+  const walterParcels = (await (await walter.get('/api/parcels')).json()).parcels as { id: string }[];
+  for (const p of walterParcels) {
+    const list = (await (await walter.get(`/api/parcels/${p.id}/permits`)).json()).permits as { id: string; holderEmail: string | null }[];
+    // June holds a permit on one of Walter's parcels (data/demo/scenario.json); as its holder she may read that one.
+    for (const permit of list.filter((l) => l.holderEmail !== 'june.farrand@example.org').slice(0, 3)) {
+      expect((await june.get(`/api/permits/${permit.id}`)).status()).toBe(404);
+      expect((await june.post(`/api/permits/${permit.id}/decision`, { data: { decision: 'approve' } })).status()).toBe(404);
+      expect((await june.post(`/api/permits/${permit.id}/revoke`, { data: { reason: 'not mine' } })).status()).toBe(404);
+    }
+  }
+});
+
+test('given a forager, granting a permit answers 403', async () => {
+  const response = await forager.post(`/api/parcels/${walterParcelId}/permits`, { data: { holder: { kind: 'forager', email: 'x@example.org' }, startsOn: '2027-01-01', endsOn: '2027-12-31' } });
+  expect(response.status()).toBe(403);
+});
+
+test('given the OpenAPI document, it is 3.1 and describes the allowance body from its schema', async ({ request }) => {
+  const doc = await (await request.get('/api/openapi.json')).json();
+  expect(doc.openapi).toBe('3.1.0');
+  const body = doc.paths['/api/parcels/{id}/allowances'].put.requestBody.content['application/json'].schema;
+  expect(body.required).toEqual(expect.arrayContaining(['speciesId', 'seasons', 'methods', 'limits']));
+});
