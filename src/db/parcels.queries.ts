@@ -1,9 +1,13 @@
 import { and, asc, eq, sql } from 'drizzle-orm';
 import type { BoundaryGeometry, ParcelSettings } from '../lib/land.schemas';
 import type { Executor } from './client';
-import { allowances, parcels, permits, species } from './schema';
+import { allowances, parcels, species } from './schema';
 
-const activePermits = sql<number>`(select count(*)::int from ${permits} where ${permits.parcelId} = ${parcels.id} and ${permits.state} = 'active')`;
+/**
+ * Correlated subqueries name their tables in plain SQL: in a single-table select Drizzle writes
+ * columns unqualified, which inside a subquery would bind to the subquery's own table.
+ */
+const activePermits = sql<number>`(select count(*)::int from permits p where p.parcel_id = parcels.id and p.state = 'active')`;
 const boundaryJson = sql<BoundaryGeometry>`ST_AsGeoJSON(${parcels.boundary}, 7)::json`;
 const geodesicArea = (boundary: BoundaryGeometry) =>
   sql<number>`ST_Area(ST_Multi(ST_SetSRID(ST_GeomFromGeoJSON(${JSON.stringify(boundary)}), 4326))::geography)`;
@@ -118,8 +122,8 @@ export async function listSeasonFacts(db: Executor, { ownerId }: { ownerId: stri
   const rows = await db
     .select({
       parcelId: parcels.id,
-      seasons: sql<{ start: string; end: string }[][]>`coalesce((select json_agg(a.seasons) from allowances a where a.parcel_id = ${parcels.id}), '[]'::json)`,
-      closures: sql<{ startsOn: string; endsOn: string; reason: string }[]>`coalesce((select json_agg(json_build_object('startsOn', c.starts_on, 'endsOn', c.ends_on, 'reason', c.reason)) from closures c where c.parcel_id = ${parcels.id}), '[]'::json)`,
+      seasons: sql<{ start: string; end: string }[][]>`coalesce((select json_agg(a.seasons) from allowances a where a.parcel_id = parcels.id), '[]'::json)`,
+      closures: sql<{ startsOn: string; endsOn: string; reason: string }[]>`coalesce((select json_agg(json_build_object('startsOn', c.starts_on, 'endsOn', c.ends_on, 'reason', c.reason)) from closures c where c.parcel_id = parcels.id), '[]'::json)`,
     })
     .from(parcels)
     .where(eq(parcels.ownerId, ownerId));

@@ -65,6 +65,21 @@ async function addPermitLimits(tx: Tx, { parcelId, permitId, isClub, limits: wan
   }
 }
 
+/** The landowner tightens one limit of a permit that has not ended. */
+export async function tightenPermit(tx: Tx, { permitId, ownerId, limit }: { permitId: string; ownerId: string; limit: GrantPermitInput['limits'][number] }) {
+  const permit = await lockPermit(tx, permitId);
+  if (permit.ownerId !== ownerId) throw notFound('Permit');
+  if (!['requested', 'approved', 'active'].includes(permit.state)) throw new AppError(409, 'permit-ended', `This permit is ${permit.state}; its limits no longer matter.`);
+  const [existing] = await tx
+    .select({ id: limits.id })
+    .from(limits)
+    .innerJoin(allowances, eq(allowances.id, limits.allowanceId))
+    .where(and(eq(limits.permitId, permitId), eq(allowances.speciesId, limit.speciesId), eq(limits.scope, limit.scope)));
+  if (existing) await tx.delete(limits).where(eq(limits.id, existing.id));
+  await addPermitLimits(tx, { parcelId: permit.parcelId, permitId, isClub: permit.holderClubId !== null, limits: [limit] });
+  return permit;
+}
+
 /** A forager (or a steward for their club) asks for access to a parcel that is open to requests. */
 export async function requestAccess(
   tx: Tx,

@@ -1,7 +1,7 @@
 import { and, asc, desc, eq, inArray, or, sql, type SQL } from 'drizzle-orm';
 import { alias } from 'drizzle-orm/pg-core';
 import type { Executor } from './client';
-import { clubs, parcels, permitEvents, permits, terms, users } from './schema';
+import { allowances, clubs, limits, parcels, permitEvents, permits, species, terms, users } from './schema';
 
 const holderUser = alias(users, 'holder_user');
 const actor = alias(users, 'actor');
@@ -26,7 +26,7 @@ const permitColumns = {
   holderName: holderUser.name,
   holderEmail: holderUser.email,
   clubName: clubs.name,
-  currentTermsId: sql<string | null>`(select ${terms.id} from ${terms} where ${terms.parcelId} = ${permits.parcelId} order by ${terms.version} desc limit 1)`,
+  currentTermsId: sql<string | null>`(select t.id from terms t where t.parcel_id = permits.parcel_id order by t.version desc limit 1)`,
 };
 
 function permitsWithHolders(db: Executor) {
@@ -90,16 +90,28 @@ export async function permitContacts(db: Executor, { permitId }: { permitId: str
   const [row] = await db
     .select({
       parcelName: parcels.name,
-      ownerEmail: sql<string>`(select email from ${users} where id = ${parcels.ownerId})`,
-      ownerName: sql<string | null>`(select name from ${users} where id = ${parcels.ownerId})`,
-      holderEmails: sql<string[]>`case when ${permits.holderUserId} is not null
-        then array[(select email from ${users} where id = ${permits.holderUserId})]
-        else coalesce((select array_agg(u.email) from club_memberships m join ${users} u on u.id = m.user_id
-          where m.club_id = ${permits.holderClubId} and m.role = 'steward' and m.state = 'active'), '{}') end`,
-      holderName: sql<string | null>`coalesce((select name from ${users} where id = ${permits.holderUserId}), (select name from ${clubs} where id = ${permits.holderClubId}))`,
+      ownerEmail: sql<string>`(select u.email from users u where u.id = parcels.owner_id)`,
+      ownerName: sql<string | null>`(select u.name from users u where u.id = parcels.owner_id)`,
+      holderEmails: sql<string[]>`case when permits.holder_user_id is not null
+        then array[(select u.email from users u where u.id = permits.holder_user_id)]
+        else coalesce((select array_agg(u.email) from club_memberships m join users u on u.id = m.user_id
+          where m.club_id = permits.holder_club_id and m.role = 'steward' and m.state = 'active'), '{}') end`,
+      holderName: sql<string | null>`coalesce((select u.name from users u where u.id = permits.holder_user_id), (select c.name from clubs c where c.id = permits.holder_club_id))`,
     })
     .from(permits)
     .innerJoin(parcels, eq(parcels.id, permits.parcelId))
     .where(eq(permits.id, permitId));
   return row ?? null;
+}
+
+/** The permits' own (tighter) limits, with the species they apply to. */
+export async function listPermitLimits(db: Executor, { permitIds }: { permitIds: string[] }) {
+  if (permitIds.length === 0) return [];
+  return db
+    .select({ permitId: limits.permitId, scope: limits.scope, quantity: limits.quantity, unit: limits.unit, speciesName: species.commonName })
+    .from(limits)
+    .innerJoin(allowances, eq(allowances.id, limits.allowanceId))
+    .innerJoin(species, eq(species.id, allowances.speciesId))
+    .where(inArray(limits.permitId, permitIds))
+    .orderBy(asc(species.commonName));
 }

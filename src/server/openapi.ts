@@ -1,7 +1,7 @@
 import { z } from 'zod';
 import { signInSchema, signUpSchema } from '../lib/accounts.schemas';
 import { allowanceSchema, closureSchema, hazardSchema, newParcelSchema, parcelUpdateSchema, termsSchema, zoneSchema } from '../lib/land.schemas';
-import { accessRequestSchema, decisionSchema, grantPermitSchema, revokeSchema } from '../lib/permits.schemas';
+import { accessRequestSchema, decisionSchema, grantPermitSchema, permitLimitSchema, revokeSchema } from '../lib/permits.schemas';
 
 type Route = { method: 'get' | 'post' | 'put' | 'patch' | 'delete'; path: string; summary: string; body?: z.ZodType; auth?: boolean; tag: string };
 
@@ -30,6 +30,7 @@ const routes: Route[] = [
   { method: 'get', path: '/api/permits/{id}', summary: 'One permit with its history (landowner or holder)', tag: 'permits' },
   { method: 'post', path: '/api/permits/{id}/decision', summary: 'Approve or decline an access request', body: decisionSchema, tag: 'permits' },
   { method: 'post', path: '/api/permits/{id}/revoke', summary: 'Revoke a permit (refund when paid and not yet begun)', body: revokeSchema, tag: 'permits' },
+  { method: 'post', path: '/api/permits/{id}/limits', summary: "Tighten one of the permit's limits (never looser than the parcel's)", body: permitLimitSchema, tag: 'permits' },
   { method: 'post', path: '/api/permits/{id}/accept-terms', summary: "Accept the parcel's current terms", tag: 'permits' },
   { method: 'post', path: '/api/permits/{id}/checkout', summary: 'Start paying the fee; answers the hosted checkout URL', tag: 'payments' },
   { method: 'post', path: '/api/payments/webhook', summary: "The payment provider's signed events (idempotent)", auth: false, tag: 'payments' },

@@ -34,6 +34,13 @@ test('given a new parcel, its area is the geodesic area PostGIS computes (≈ 0.
   expect(parcel.areaM2).toBeLessThan(9_000);
 });
 
+test("given Walter's demo parcels, the list counts each parcel's own active permits", async () => {
+  const { parcels } = (await (await walter.get('/api/parcels')).json()) as { parcels: { name: string; activePermits: number }[] };
+  // data/demo/scenario.json: Owen Marsh holds the one active permit on Cobble Ridge Lot; Alder Bottom has none active.
+  expect(parcels.find((p) => p.name === 'Cobble Ridge Lot')?.activePermits).toBe(1);
+  expect(parcels.find((p) => p.name === 'Alder Bottom')?.activePermits).toBe(0);
+});
+
 test('given a self-crossing bow-tie, it answers 400 saying where the boundary crosses itself', async () => {
   const before = await parcelCount(walter);
   const bowTie = { type: 'Polygon', coordinates: [[[-72.95, 43.91], [-72.949, 43.912], [-72.95, 43.912], [-72.949, 43.91], [-72.95, 43.91]]] };
@@ -137,4 +144,28 @@ test('given the OpenAPI document, it is 3.1 and describes the allowance body fro
   expect(doc.openapi).toBe('3.1.0');
   const body = doc.paths['/api/parcels/{id}/allowances'].put.requestBody.content['application/json'].schema;
   expect(body.required).toEqual(expect.arrayContaining(['speciesId', 'seasons', 'methods', 'limits']));
+});
+
+test('given a permit, its own limit may tighten the parcel limit across units but never loosen it', async () => {
+  const speciesId = await firstSpeciesId();
+  const allowance = await walter.put(`/api/parcels/${walterParcelId}/allowances`, {
+    data: { speciesId, seasons: [{ start: '01-01', end: '12-31' }], methods: ['pick'], limits: [{ scope: 'day', quantity: '1', unit: 'kg' }] },
+  });
+  expect(allowance.status(), await allowance.text()).toBe(200);
+  const granted = await walter.post(`/api/parcels/${walterParcelId}/permits`, { data: { holder: { kind: 'forager', email: 'beth.lindqvist@example.org' }, startsOn: '2027-01-01', endsOn: '2027-12-31' } });
+  expect(granted.status(), await granted.text()).toBe(201);
+  const permitId = (await granted.json()).permit.id as string;
+
+  // 1 lb = 0.45359237 kg exactly (1959 agreement, REFERENCES §1): 2.3 lb = 1.043262451 kg > 1 kg, 2.2 lb = 0.997903214 kg < 1 kg.
+  const looser = await walter.post(`/api/permits/${permitId}/limits`, { data: { speciesId, scope: 'day', quantity: '2.3', unit: 'lb' } });
+  expect(looser.status()).toBe(400);
+  expect((await looser.json()).error).toMatchObject({ field: 'limits.0.quantity' });
+  const tighter = await walter.post(`/api/permits/${permitId}/limits`, { data: { speciesId, scope: 'day', quantity: '2.2', unit: 'lb' } });
+  expect(tighter.status(), await tighter.text()).toBe(201);
+  const otherDimension = await walter.post(`/api/permits/${permitId}/limits`, { data: { speciesId, scope: 'visit', quantity: '1', unit: 'L' } });
+  expect(otherDimension.status()).toBe(400);
+  expect((await otherDimension.json()).error.message).toContain('mass');
+  const clubCap = await walter.post(`/api/permits/${permitId}/limits`, { data: { speciesId, scope: 'club-season', quantity: '5', unit: 'kg' } });
+  expect(clubCap.status()).toBe(400);
+  expect((await clubCap.json()).error.message).toContain('club permit');
 });

@@ -1,5 +1,5 @@
 import { closureSchema, hazardSchema, parcelUpdateSchema, termsSchema } from '../../lib/land.schemas';
-import { accessRequestSchema, decisionSchema, grantPermitSchema, revokeSchema } from '../../lib/permits.schemas';
+import { accessRequestSchema, decisionSchema, grantPermitSchema, permitLimitSchema, revokeSchema } from '../../lib/permits.schemas';
 
 /** The schemas a form island may name (island props must be plain data, so forms name them). */
 export const formSchemas = {
@@ -11,6 +11,7 @@ export const formSchemas = {
   accessRequest: accessRequestSchema,
   decision: decisionSchema,
   revoke: revokeSchema,
+  permitLimit: permitLimitSchema,
 };
 
 export type FormSchemaName = keyof typeof formSchemas;
