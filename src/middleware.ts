@@ -1,15 +1,18 @@
 import { defineMiddleware } from 'astro:middleware';
 import { db } from './db';
 import { findActorBySession } from './db/accounts.queries';
+import { closeStaleVisits } from './db/field.commands';
 import { advancePermitsByDate } from './db/permits.lifecycle';
 import { mayEver, type Action } from './lib/permissions';
 import { sessionCookieNames } from './server/auth';
 
 /** Pages and the action a visitor's roles must allow to open them. API routes guard themselves. */
 const pageRules: [prefix: string, action: Action][] = [
+  ['/field', 'field:check-in'],
   ['/land', 'parcel:list-own'],
   ['/requests', 'parcel:list-own'],
   ['/my-permits', 'permit:request'],
+  ['/ledger', 'ledger:read-own'],
   ['/club', 'club:read'],
   ['/catalogue', 'catalogue:read'],
   ['/accounts', 'account:list'],
@@ -25,6 +28,7 @@ function advancePermitsNow(now: Date) {
   if (now.getTime() - lastAdvance < advanceEveryMs) return;
   lastAdvance = now.getTime();
   db.transaction((tx) => advancePermitsByDate(tx, { now })).catch((error) => console.error('advancing permits by date failed:', error));
+  closeStaleVisits(db, { now }).catch((error) => console.error('closing stale visits failed:', error));
 }
 
 export const onRequest = defineMiddleware(async (context, next) => {

@@ -5,7 +5,9 @@ export type NavItem = { href: string; label: string; action: Action };
 
 /** Page titles from GLOSSARY.md, in the order a person reaches for them. */
 export const navigation: NavItem[] = [
+  { href: '/field', label: 'Field', action: 'field:check-in' },
   { href: '/my-permits', label: 'My permits', action: 'permit:request' },
+  { href: '/ledger', label: 'My ledger', action: 'ledger:read-own' },
   { href: '/land', label: 'Land', action: 'parcel:list-own' },
   { href: '/requests', label: 'Requests', action: 'parcel:list-own' },
   { href: '/club', label: 'Club', action: 'club:read' },

@@ -31,6 +31,7 @@ test('given a request for Pelletier Hill Farm, approval by e-mailed link, accept
   await owner.locator('form[data-hydrated]').waitFor();
   await owner.getByLabel('E-mail address').fill('landowner@example.org');
   await owner.getByRole('button', { name: 'E-mail me a sign-in link' }).click();
+  await expect(owner.getByRole('heading', { name: 'Check your e-mail' })).toBeVisible();
   await owner.goto(await signInLinkFor(owner.request, 'landowner@example.org', after));
   await expect(owner).toHaveURL(link);
   const decision = owner.getByTestId('decision');

@@ -19,7 +19,7 @@ import type { MultiPolygon } from 'geojson';
 import type { PointTuple } from 'leaflet';
 import { useEffect, useId, useMemo, useRef, useState } from 'react';
 import './leaflet-setup';
-import { MapContainer, Marker, Polygon, TileLayer, Tooltip, useMap } from 'react-leaflet';
+import { MapContainer, Marker, Polygon, TileLayer, Tooltip, useMap, useMapEvents } from 'react-leaflet';
 import DrawingTools, { type DrawingOptions } from './DrawingTools';
 import { describeDrawing, layersToMultiPolygon, toLatLngs, type Area, type LonLatBounds } from './geometry';
 import { fitMaxZoom, viewKey, viewTargetFor, type ViewTarget } from './map-view';
@@ -53,7 +53,14 @@ export type ParcelMapProps = {
   /** CSS height of the map; default 28rem. */
   height?: string;
   testId?: string;
+  /** A tap or click on the map (not while drawing) gives its position, [lon, lat]. */
+  onPick?: (at: [number, number]) => void;
 };
+
+function PickHandler({ onPick }: { onPick: (at: [number, number]) => void }) {
+  useMapEvents({ click: (event) => onPick([event.latlng.lng, event.latlng.lat]) });
+  return null;
+}
 
 /** An area on the map; not editable, but snappable while drawing so a zone can follow a boundary. */
 function FeatureShape({ feature, hatchId, drawing }: { feature: MapFeature; hatchId: string; drawing: boolean }) {
@@ -140,7 +147,7 @@ function mapLabel(features: MapFeature[], markers: MapMarker[], drawing: boolean
   return `Map with ${areas}${extra}. ${help} The areas are also listed after the map.`;
 }
 
-export default function ParcelMap({ tiles, features, fitTo = 'features', editable, markers = [], height = '28rem', testId }: ParcelMapProps) {
+export default function ParcelMap({ tiles, features, fitTo = 'features', editable, markers = [], height = '28rem', testId, onPick }: ParcelMapProps) {
   const uid = useId().replace(/[^a-zA-Z0-9_-]/g, '');
   const hatchId = `tallywood-hatch-${uid}`;
   const listId = `tallywood-map-list-${uid}`;
@@ -186,6 +193,7 @@ export default function ParcelMap({ tiles, features, fitTo = 'features', editabl
             </Marker>
           ))}
           {editable && <DrawingTools options={editable} onDrawing={setDrawing} />}
+          {onPick && !editable && <PickHandler onPick={onPick} />}
           <MapBehaviour target={target} label={mapLabel(features, markers, !!editable)} maxZoom={tiles.maxZoom} />
         </MapContainer>
       </div>

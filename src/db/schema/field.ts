@@ -60,9 +60,9 @@ export const harvestEntries = pgTable(
     method: methodEnum('method').notNull(),
     quantity: numeric('quantity', { precision: 18, scale: 6, mode: 'string' }).notNull(),
     unit: unitEnum('unit').notNull(),
-    /** The quantity in the dimension's base unit (g, mL or count); NIST factors are exact decimals. */
+    /** The quantity in the dimension's base unit (g, mL or count): exact, since a 6-decimal quantity times a 10-decimal NIST factor has at most 16 decimals. */
     dimension: dimensionEnum('dimension').notNull(),
-    baseQuantity: numeric('base_quantity', { precision: 30, scale: 12, mode: 'string' }).notNull(),
+    baseQuantity: numeric('base_quantity', { precision: 36, scale: 16, mode: 'string' }).notNull(),
     localDate: date('local_date', { mode: 'string' }).notNull(),
     position: point('position'),
     photoUploadId: uuid('photo_upload_id').references(() => uploads.id),

@@ -1,0 +1,1 @@
+ALTER TABLE "harvest_entries" ALTER COLUMN "base_quantity" SET DATA TYPE numeric(36, 16);

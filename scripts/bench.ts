@@ -1,0 +1,124 @@
+// `npm run bench`: figures for the check-in path on a large synthetic register. Prints a table and
+// writes .local/bench/results.json and results.md. A benchmark, not a test: it asserts nothing.
+//
+// Its own PostgreSQL cluster (.local/pg-bench, 127.0.0.1:54349, database tallywood_bench) keeps the
+// seeded parcels between runs, so only the first run seeds. Environment (all optional):
+//   BENCH_PARCELS (100000) · BENCH_REQUESTS (5000) · BENCH_SQL_QUERIES (5000) · BENCH_NAIVE_POINTS (20)
+//   BENCH_CONCURRENCY (8) · BENCH_MAX_SECONDS (60, per measured phase) · TALLYWOOD_BENCH_PG_PORT (54349)
+import type { ChildProcess } from 'node:child_process';
+import { cpus, totalmem } from 'node:os';
+import { join } from 'node:path';
+import postgres from 'postgres';
+import { closeDb, createDb } from '../src/db/client';
+import { applyMigrations } from '../src/db/migrations';
+import { findOrBuildServer, measureCheckIns, startServer, stopServer, type HttpFigures } from './bench/http-check-ins';
+import { measureNaiveScan } from './bench/naive-scan';
+import { benchPositions, regionAreaKm2 } from './bench/parcels';
+import { report, type BenchResults } from './bench/report';
+import { describeParcels, prepareForager, seedBench } from './bench/seed';
+import { coveringCounts, measureSql } from './bench/sql-lookup';
+import { ensureDatabase, ensurePostgres, localDir, root, say, startCluster } from './lib/setup.mjs';
+
+const setting = (name: string, fallback: number) => {
+  const value = Number(process.env[name] ?? fallback);
+  if (!Number.isFinite(value) || value <= 0) throw new Error(`${name} must be a positive number`);
+  return Math.floor(value);
+};
+const parcelTarget = setting('BENCH_PARCELS', 100_000);
+const requests = setting('BENCH_REQUESTS', 5000);
+const sqlQueries = setting('BENCH_SQL_QUERIES', 5000);
+const naivePoints = setting('BENCH_NAIVE_POINTS', 20);
+const concurrency = setting('BENCH_CONCURRENCY', 8);
+const maxMs = setting('BENCH_MAX_SECONDS', 60) * 1000;
+const pgPort = setting('TALLYWOOD_BENCH_PG_PORT', 54349);
+const started = performance.now();
+
+ensurePostgres();
+const stopDatabase = startCluster({ dir: join(localDir, 'pg-bench'), port: pgPort });
+ensureDatabase({ port: pgPort, name: 'tallywood_bench' });
+const databaseUrl = `postgres://app@127.0.0.1:${pgPort}/tallywood_bench`;
+
+let server: ChildProcess | null = null;
+const sql = postgres(databaseUrl, { max: concurrency, onnotice: () => {} });
+let exitCode = 0;
+
+async function cleanUp() {
+  await stopServer(server);
+  await sql.end({ timeout: 5 });
+  stopDatabase();
+}
+process.once('SIGINT', () => void cleanUp().finally(() => process.exit(130)));
+
+try {
+  const migrator = createDb(databaseUrl, { max: 1 });
+  await applyMigrations(migrator, join(root, 'drizzle'));
+  await closeDb(migrator);
+
+  const seed = await seedBench(sql, parcelTarget, say);
+  say(seed.seeded > 0 ? `seeded ${seed.seeded} parcels in ${(seed.ms / 1000).toFixed(1)} s` : `${seed.existing} bench parcels already there; nothing seeded`);
+  const parcels = await describeParcels(sql, regionAreaKm2());
+
+  say(`bare SQL lookups: ${sqlQueries} from ${concurrency} connections…`);
+  const sqlFigures = await measureSql(sql, benchPositions(1, sqlQueries + 1000, parcelTarget), { concurrency, count: sqlQueries, maxMs });
+  console.log(`\nEXPLAIN ANALYZE of the bare lookup:\n${sqlFigures.plan}\n`);
+
+  say(`naive turf scan: every parcel in memory, ${naivePoints} positions…`);
+  const naivePositions = benchPositions(2, naivePoints, parcelTarget);
+  const naive = await measureNaiveScan(sql, naivePositions, await coveringCounts(sql, naivePositions));
+
+  const token = await prepareForager(sql, seed.foragerId);
+  let http: HttpFigures & { entry: string | null };
+  let entry: string | null = null;
+  try {
+    entry = findOrBuildServer(say).entry;
+    say(`starting ${entry.replace(`${root}/`, '')} on 127.0.0.1:4341 against the bench database…`);
+    server = await startServer(entry, databaseUrl);
+    say(`check-ins over HTTP: ${requests} from ${concurrency} clients…`);
+    http = { ...(await measureCheckIns(token, benchPositions(3, requests + 1000, parcelTarget), { concurrency, count: requests, maxMs })), entry };
+  } catch (error) {
+    http = { available: false, status: 0, reason: `the app could not be started or reached: ${error instanceof Error ? error.message : error}`, entry };
+  }
+  if (!http.available) {
+    console.log(`\n*** The check-in endpoint was not measured: ${http.reason}. The SQL and turf figures below stand on their own. ***\n`);
+    if (http.status !== 404) exitCode = 1;
+  }
+
+  const endpointP50 = http.available ? http.concurrent.p50 : null;
+  const endpointOverSqlP50 = endpointP50 === null ? null : endpointP50 / sqlFigures.concurrent.p50;
+  const [versions] = await sql<{ postgres: string; postgis: string }[]>`select current_setting('server_version') as postgres, postgis_lib_version() as postgis`;
+  const results: BenchResults = {
+    at: new Date().toISOString(),
+    machine: {
+      cpus: cpus().length,
+      cpuModel: cpus()[0]?.model ?? 'unknown',
+      memoryGb: Math.round(totalmem() / 2 ** 30),
+      node: process.version,
+      postgres: versions?.postgres ?? '?',
+      postgis: versions?.postgis ?? '?',
+    },
+    parcels,
+    seeding: { seeded: seed.seeded, ms: seed.ms },
+    sql: sqlFigures,
+    naive,
+    http,
+    ratios: {
+      endpointOverSqlP50,
+      naiveOverEndpointP50: endpointP50 === null ? null : naive.msPerLookup / endpointP50,
+      naiveOverSqlP50: naive.msPerLookup / sqlFigures.concurrent.p50,
+    },
+    targets: [
+      { name: 'endpoint p95 ms', value: http.available ? http.concurrent.p95 : null, target: '< 10', met: http.available ? http.concurrent.p95 < 10 : null },
+      { name: 'check-ins per second', value: http.available ? http.concurrent.perSecond : null, target: '≥ 1000', met: http.available ? http.concurrent.perSecond >= 1000 : null },
+      { name: 'endpoint p50 / bare SQL p50', value: endpointOverSqlP50, target: '≤ 4', met: endpointOverSqlP50 === null ? null : endpointOverSqlP50 <= 4 },
+    ],
+    totalMs: performance.now() - started,
+  };
+  console.log(`\n${report(results, join(localDir, 'bench'))}\n`);
+  say('results written to .local/bench/results.json and .local/bench/results.md');
+} catch (error) {
+  exitCode = 1;
+  console.error(error instanceof Error ? (error.stack ?? error.message) : error);
+} finally {
+  await cleanUp();
+}
+process.exit(exitCode);

@@ -1,0 +1,122 @@
+import type { ChildProcess } from 'node:child_process';
+import { existsSync, statSync } from 'node:fs';
+import { Agent, request } from 'node:http';
+import { join } from 'node:path';
+import { bin, localDir, root, run, startChild, waitForHttp } from '../lib/setup.mjs';
+import type { BenchPosition } from './parcels';
+import { runConcurrently, summarise, type Latencies } from './stats';
+
+export const benchPort = 4341;
+const origin = `http://127.0.0.1:${benchPort}`;
+
+/**
+ * The newest app build there is (`npm start`'s dist/ or `npm test`'s .local/test-dist); with none,
+ * a build of our own into .local/bench-dist (astro.config.mjs reads TALLYWOOD_OUT_DIR).
+ */
+export function findOrBuildServer(log: (line: string) => void): { entry: string; built: boolean } {
+  const candidates = [join(root, 'dist', 'server', 'entry.mjs'), join(localDir, 'test-dist', 'server', 'entry.mjs'), join(localDir, 'bench-dist', 'server', 'entry.mjs')]
+    .filter((file) => existsSync(file))
+    .sort((a, b) => statSync(b).mtimeMs - statSync(a).mtimeMs);
+  const found = candidates[0];
+  if (found) return { entry: found, built: false };
+  const outDir = join(localDir, 'bench-dist');
+  log('no app build found; building into .local/bench-dist (astro build)…');
+  run(bin('astro'), ['build'], { env: { ...process.env, TALLYWOOD_OUT_DIR: outDir }, stdio: ['ignore', 'ignore', 'inherit'] });
+  return { entry: join(outDir, 'server', 'entry.mjs'), built: true };
+}
+
+export async function startServer(entry: string, databaseUrl: string): Promise<ChildProcess> {
+  const server = startChild('app', 'node', [entry], {
+    DATABASE_URL: databaseUrl,
+    HOST: '127.0.0.1',
+    PORT: String(benchPort),
+    AUTH_SECRET: 'bench',
+    // The check-in path sends no mail and takes no payment; these only satisfy the env schema.
+    MAIL_CATCHER_SMTP_PORT: '2545',
+    MAIL_CATCHER_HTTP_URL: 'http://127.0.0.1:2595',
+    STRIPE_API_URL: 'http://127.0.0.1:2615',
+    STRIPE_SECRET_KEY: 'sk_test_tallywood_bench',
+    STRIPE_WEBHOOK_SECRET: 'whsec_tallywood_bench',
+    UPLOADS_DIR: join(localDir, 'bench-uploads'),
+  });
+  await waitForHttp(`${origin}/api/health`, 60);
+  return server;
+}
+
+export async function stopServer(server: ChildProcess | null) {
+  if (!server || server.exitCode !== null || server.signalCode !== null) return;
+  const exited = new Promise((resolve) => server.once('exit', resolve));
+  server.kill('SIGTERM');
+  const timer = setTimeout(() => server.kill('SIGKILL'), 5000);
+  await exited;
+  clearTimeout(timer);
+}
+
+type Answer = { status: number; body: string };
+
+function postCheckIn(agent: Agent, cookie: string, { longitude, latitude, accuracyM }: BenchPosition): Promise<Answer> {
+  const payload = JSON.stringify({ longitude, latitude, accuracyM });
+  return new Promise((resolve, reject) => {
+    const req = request(
+      `${origin}/api/check-ins`,
+      { method: 'POST', agent, headers: { 'content-type': 'application/json', 'content-length': Buffer.byteLength(payload), origin, cookie } },
+      (res) => {
+        const chunks: Buffer[] = [];
+        res.on('data', (chunk: Buffer) => chunks.push(chunk));
+        res.on('end', () => resolve({ status: res.statusCode ?? 0, body: Buffer.concat(chunks).toString('utf8') }));
+        res.on('error', reject);
+      },
+    );
+    req.on('error', reject);
+    req.end(payload);
+  });
+}
+
+export type HttpFigures =
+  | { available: false; status: number; reason: string }
+  | {
+      available: true;
+      concurrent: Latencies & { concurrency: number; perSecond: number; failures: number; firstError: string | null };
+      serial: Latencies;
+      statuses: Record<string, number>;
+      verdicts: Record<string, number>;
+    };
+
+/** POST /api/check-ins on loopback: a probe, a warm-up, `count` requests from `concurrency` clients, then a serial pass. */
+export async function measureCheckIns(
+  sessionToken: string,
+  positions: BenchPosition[],
+  { concurrency, count, maxMs }: { concurrency: number; count: number; maxMs: number },
+): Promise<HttpFigures> {
+  const agent = new Agent({ keepAlive: true, maxSockets: concurrency });
+  const cookie = `authjs.session-token=${sessionToken}`;
+  try {
+    const probe = await postCheckIn(agent, cookie, positions[0] as BenchPosition);
+    if (probe.status === 404) return { available: false, status: 404, reason: 'POST /api/check-ins answered 404: this build has no check-in endpoint yet' };
+    if (probe.status < 200 || probe.status >= 300) return { available: false, status: probe.status, reason: `POST /api/check-ins answered ${probe.status}: ${probe.body.slice(0, 300)}` };
+
+    const statuses: Record<string, number> = {};
+    const verdicts: Record<string, number> = {};
+    const send = async (p: BenchPosition, tally: boolean) => {
+      const answer = await postCheckIn(agent, cookie, p);
+      if (tally) {
+        statuses[answer.status] = (statuses[answer.status] ?? 0) + 1;
+        const verdict = /"verdict":"([a-z-]+)"/.exec(answer.body)?.[1] ?? 'none';
+        verdicts[verdict] = (verdicts[verdict] ?? 0) + 1;
+      }
+      if (answer.status >= 300) throw new Error(`HTTP ${answer.status}: ${answer.body.slice(0, 200)}`);
+    };
+    await runConcurrently(positions, { concurrency, count: 300, maxMs: 30_000 }, (p) => send(p, false));
+    const run = await runConcurrently(positions.slice(300), { concurrency, count, maxMs }, (p) => send(p, true));
+    const serial = await runConcurrently(positions.slice(300 + count), { concurrency: 1, count: Math.min(500, count), maxMs: maxMs / 2 }, (p) => send(p, false));
+    return {
+      available: true,
+      concurrent: { ...summarise(run.latencies), concurrency, perSecond: run.latencies.length / (run.wallMs / 1000), failures: run.failures, firstError: run.firstError },
+      serial: summarise(serial.latencies),
+      statuses,
+      verdicts,
+    };
+  } finally {
+    agent.destroy();
+  }
+}

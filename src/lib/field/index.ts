@@ -1,0 +1,10 @@
+/** The field engine: where a forager stands, whether they may harvest, and what remains. Pure; runs in the browser too. */
+export * from './types';
+export { boundaryContains, distanceToEdgeM, placePosition } from './geometry';
+export { geodesicDistanceM } from './geodesy';
+export { addDays, closuresOn, currentSeason, endOfLocalDay, localDateAt, localWallClock, startOfLocalDay } from './time';
+export { limitsInForce, projectEntry, scopeOrder, talliesFor, tallyState, worstState, type Projection, type TallyContext } from './tallies';
+export { checkPermit, permitCovers, type PermitCheck } from './permit-check';
+export { decideCheckIn, methodAllowed, type CheckIn } from './verdict';
+export { formatDay, formatDistance } from './words';
+export { convert, fromBase, toBase, UnitMismatch, unitsOfDimension } from '../units';

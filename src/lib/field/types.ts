@@ -1,0 +1,98 @@
+import type { Unit } from '../units';
+
+/**
+ * The field engine's inputs and answers. Everything here is plain data so the same engine runs on
+ * the server and in the browser (the offline field pack). Time is always an argument.
+ */
+export type LonLat = [number, number];
+export type MultiPolygon = { type: 'MultiPolygon'; coordinates: number[][][][] };
+export type Method = 'cut' | 'pick' | 'dig' | 'strip' | 'gather-fallen';
+export type LimitScope = 'visit' | 'day' | 'season' | 'parcel-season' | 'club-season';
+export type Verdict = 'clear' | 'outside' | 'no-permit' | 'edge' | 'closed';
+export type TallyState = 'within' | 'nearing' | 'reached' | 'over';
+export type SpeciesState = 'open' | 'out-of-season' | 'method-not-allowed' | TallyState;
+
+/** Where a position stands against one boundary, given a 95 % accuracy radius in metres. */
+export type Placement = { placement: 'inside' | 'outside' | 'edge'; distanceToEdgeM: number };
+
+export type PermitFacts = {
+  id: string;
+  holderUserId: string | null;
+  holderClubId: string | null;
+  state: 'requested' | 'approved' | 'active' | 'expired' | 'revoked' | 'declined';
+  startsOn: string;
+  endsOn: string;
+  feeMinor: number | null;
+  feePaid: boolean;
+  acceptedTermsId: string | null;
+};
+
+export type LimitFacts = { scope: LimitScope; quantity: string; unit: Unit; /** null: the parcel's own limit */ permitId: string | null };
+
+export type AllowanceFacts = {
+  speciesId: string;
+  commonName: string;
+  scientificName: string;
+  seasons: { start: string; end: string }[];
+  methods: Method[];
+  limits: LimitFacts[];
+  cautions: string[];
+  lookalikes: { commonName: string; scientificName: string; danger: string; howToTell: string }[];
+};
+
+export type ParcelFacts = {
+  id: string;
+  name: string;
+  timeZone: string;
+  nearingThresholdPercent: number;
+  boundary: MultiPolygon;
+  zones: { id: string; name: string; reason: string; boundary: MultiPolygon }[];
+  closures: { startsOn: string; endsOn: string; reason: string }[];
+  hazards: { kind: string; title: string; detail: string }[];
+  currentTermsId: string | null;
+  permits: PermitFacts[];
+  allowances: AllowanceFacts[];
+};
+
+export type Forager = { id: string; clubIds: string[] };
+
+/**
+ * What has been taken so far, per species and scope, as decimal strings in the base unit of the
+ * species' dimension (g, mL or count). Keys are speciesId; absent means nothing taken.
+ */
+export type Usage = Record<string, Partial<Record<LimitScope, string>>>;
+
+export type Tally = {
+  scope: LimitScope;
+  limit: { quantity: string; unit: Unit; fromPermit: boolean };
+  /** In the limit's own unit, as decimal strings rounded to 6 places for display. */
+  used: string;
+  remaining: string;
+  percent: number;
+  state: TallyState;
+};
+
+export type SpeciesAnswer = {
+  speciesId: string;
+  commonName: string;
+  scientificName: string;
+  state: SpeciesState;
+  inSeason: boolean;
+  seasons: { start: string; end: string }[];
+  methods: Method[];
+  tallies: Tally[];
+  cautions: string[];
+  lookalikes: AllowanceFacts['lookalikes'];
+};
+
+export type CheckInAnswer = {
+  verdict: Verdict;
+  /** Plain sentences a person understands: why this verdict, and what to do. */
+  reasons: string[];
+  parcel: { id: string; name: string; timeZone: string } | null;
+  permitId: string | null;
+  distanceToEdgeM: number | null;
+  localDate: string;
+  hazards: ParcelFacts['hazards'];
+  species: SpeciesAnswer[];
+};

@@ -1,0 +1,107 @@
+import { randomUUID } from 'node:crypto';
+import { expect, test, type APIRequestContext } from '@playwright/test';
+import { apiAs } from './support';
+
+/** The field API against the real server and database: bad input, concurrency and idempotency. */
+const west = -72.99;
+const south = 43.89;
+const size = 0.003;
+const centre = { longitude: west + size / 2, latitude: south + size / 2 };
+
+let walter: APIRequestContext;
+let forager: APIRequestContext;
+let visitId = '';
+const ids: Record<string, string> = {};
+
+test.describe.configure({ mode: 'serial' });
+
+test.beforeAll(async () => {
+  [walter, forager] = await Promise.all([apiAs('landowner@example.org'), apiAs('forager@example.org')]);
+  const ring = [[west, south], [west + size, south], [west + size, south + size], [west, south + size], [west, south]];
+  const created = await walter.post('/api/parcels', { data: { name: `Field API lot ${Date.now()}`, timeZone: 'America/New_York', nearingThresholdPercent: 80, openToRequests: false, description: '', boundary: { type: 'Polygon', coordinates: [ring] } } });
+  expect(created.status(), await created.text()).toBe(201);
+  const parcelId = (await created.json()).parcel.id as string;
+  const { species } = (await (await walter.get('/api/species')).json()) as { species: { id: string; commonName: string }[] };
+  for (const s of species) ids[s.commonName] = s.id;
+  const allow = (speciesId: string | undefined, limits: unknown[]) =>
+    walter.put(`/api/parcels/${parcelId}/allowances`, { data: { speciesId, seasons: [{ start: '01-01', end: '12-31' }], methods: ['cut', 'pick', 'dig'], limits } });
+  expect((await allow(ids['Fiddlehead (ostrich fern)'], [{ scope: 'day', quantity: '10', unit: 'stem' }])).status()).toBe(200);
+  expect((await allow(ids['Oyster mushroom'], [{ scope: 'day', quantity: '5', unit: 'kg' }])).status()).toBe(200);
+  const granted = await walter.post(`/api/parcels/${parcelId}/permits`, { data: { holder: { kind: 'forager', email: 'forager@example.org' }, startsOn: '2020-01-01', endsOn: '2099-12-31' } });
+  expect(granted.status()).toBe(201);
+  const checkIn = await forager.post('/api/check-ins', { data: { ...centre, accuracyM: 5 } });
+  expect(checkIn.status(), await checkIn.text()).toBe(200);
+  const answer = await checkIn.json();
+  expect(answer.verdict).toBe('clear');
+  visitId = answer.visitId;
+});
+
+test.afterAll(async () => Promise.all([walter, forager].map((c) => c?.dispose())));
+
+const entry = (speciesName: string, quantity: string, unit: string, extra: Record<string, unknown> = {}) => ({
+  idempotencyKey: randomUUID(), visitId, speciesId: ids[speciesName], method: 'pick', quantity, unit, ...extra,
+});
+
+test('given bad positions, check-in answers 400 naming the field', async () => {
+  const cases: [unknown, string][] = [
+    [{ longitude: 'NaN', latitude: 43.9, accuracyM: 5 }, 'longitude'],
+    [{ longitude: -72.9, latitude: 91, accuracyM: 5 }, 'latitude'],
+    [{ longitude: -72.9, latitude: 43.9, accuracyM: -1 }, 'accuracyM'],
+    [{ longitude: -72.9, latitude: 43.9 }, 'accuracyM'],
+  ];
+  for (const [body, field] of cases) {
+    const response = await forager.post('/api/check-ins', { data: body });
+    expect(response.status()).toBe(400);
+    expect((await response.json()).error.field).toBe(field);
+  }
+  const raw = await forager.post('/api/check-ins', { headers: { 'content-type': 'application/json' }, data: '{"longitude": NaN, "latitude": 43.9, "accuracyM": 5}' });
+  expect(raw.status()).toBe(400);
+});
+
+test('given an unknown species or a quantity in the wrong dimension, the entry is refused and nothing is saved', async () => {
+  const unknown = await forager.post('/api/harvest-entries', { data: { ...entry('Oyster mushroom', '1', 'g'), speciesId: randomUUID() } });
+  expect(unknown.status()).toBe(400);
+  expect((await unknown.json()).error.field).toBe('speciesId');
+  const wrong = await forager.post('/api/harvest-entries', { data: entry('Oyster mushroom', '2', 'us-quart') });
+  expect(wrong.status()).toBe(400);
+  const { error } = await wrong.json();
+  expect(error.field).toBe('unit');
+  expect(error.message).toMatch(/volume/i);
+  const preview = await forager.post('/api/harvest-entries/preview', { data: entry('Oyster mushroom', '1', 'kg') });
+  const tally = (await preview.json()).tallies.find((t: { scope: string }) => t.scope === 'day');
+  expect(tally.used).toMatch(/^1(\.0+)?$/); // nothing recorded yet: used after this 1 kg entry is 1 kg
+});
+
+test('given 50 simultaneous one-stem entries against a limit of 10 stems, exactly 10 are recorded and 40 refused', async () => {
+  const responses = await Promise.all(Array.from({ length: 50 }, () => forager.post('/api/harvest-entries', { data: entry('Fiddlehead (ostrich fern)', '1', 'stem') })));
+  const statuses = responses.map((r) => r.status());
+  expect(statuses.filter((s) => s === 201)).toHaveLength(10);
+  expect(statuses.filter((s) => s === 409)).toHaveLength(40);
+  for (const r of responses.filter((x) => x.status() === 409)) expect((await r.json()).error.code).toBe('would-go-over');
+  const preview = await forager.post('/api/harvest-entries/preview', { data: entry('Fiddlehead (ostrich fern)', '1', 'stem') });
+  const day = (await preview.json()).tallies.find((t: { scope: string }) => t.scope === 'day');
+  expect(day.used).toMatch(/^11(\.0+)?$/);
+  expect(day.state).toBe('over');
+});
+
+test('given one idempotency key sent 20 times at once, one entry is recorded and every answer names it', async () => {
+  const body = entry('Oyster mushroom', '100', 'g');
+  const responses = await Promise.all(Array.from({ length: 20 }, () => forager.post('/api/harvest-entries', { data: body })));
+  const statuses = responses.map((r) => r.status()).sort();
+  expect(statuses.filter((s) => s === 201)).toHaveLength(1);
+  expect(statuses.filter((s) => s === 200)).toHaveLength(19);
+  const entryIds = new Set(await Promise.all(responses.map(async (r) => (await r.json()).entry.id)));
+  expect(entryIds.size).toBe(1);
+  const preview = await forager.post('/api/harvest-entries/preview', { data: entry('Oyster mushroom', '1', 'g') });
+  const day = (await preview.json()).tallies.find((t: { scope: string }) => t.scope === 'day');
+  // 100 g recorded once, plus this 1 g preview, in the limit's unit (kg): 0.101 kg.
+  expect(Number(day.used)).toBeCloseTo(0.101, 6);
+});
+
+test('given a 50 MB photo or a file that is not an image, the upload is refused with a clear 4xx', async () => {
+  const big = await forager.post('/api/photos', { multipart: { photo: { name: 'big.jpg', mimeType: 'image/jpeg', buffer: Buffer.alloc(50 * 1024 * 1024, 0xff) } } });
+  expect(big.status()).toBe(413);
+  expect((await big.json()).error.message).toMatch(/MB/);
+  const text = await forager.post('/api/photos', { multipart: { photo: { name: 'notes.jpg', mimeType: 'image/jpeg', buffer: Buffer.from('these are my notes, not a photo') } } });
+  expect(text.status()).toBe(415);
+});
