@@ -6,18 +6,22 @@ import { localDate } from '../lib/local-time';
 import { toBaseScaled, units } from '../lib/units';
 import type { HarvestInput } from '../lib/field.schemas';
 import type { Db, Executor, Tx } from './client';
-import { candidateParcelIds, loadParcelFacts, usageOnParcel } from './field.queries';
+import { loadParcelFactsNear, usageOnParcel } from './field.queries';
 import { allowances, checkIns, harvestEntries, visits } from './schema';
 
-/** Visits left open close themselves at the end of their parcel-local day (DST-correct in SQL). */
+/**
+ * Visits left open close themselves at the end of their parcel-local day (DST-correct in SQL).
+ * Open visits are few and indexed; each looks up its parcel's zone by key, never a join over parcels.
+ */
 export async function closeStaleVisits(db: Executor, { now, foragerId }: { now: Date; foragerId?: string }) {
   const instant = now.toISOString();
   await db.execute(sql`
-    update visits v set ended_at = ((v.local_date + 1)::timestamp at time zone p.time_zone), ended_by = 'end-of-day'
-    from parcels p
-    where p.id = v.parcel_id and v.ended_at is null
-      and ((v.local_date + 1)::timestamp at time zone p.time_zone) <= ${instant}::timestamptz
-      ${foragerId ? sql`and v.forager_id = ${foragerId}` : sql``}`);
+    update visits v set ended_at = stale.ends, ended_by = 'end-of-day'
+    from (
+      select o.id, ((o.local_date + 1)::timestamp at time zone (select p.time_zone from parcels p where p.id = o.parcel_id)) as ends
+      from visits o where o.ended_at is null ${foragerId ? sql`and o.forager_id = ${foragerId}` : sql``}
+    ) stale
+    where v.id = stale.id and stale.ends <= ${instant}::timestamptz`);
 }
 
 async function usageFor(db: Executor, parcel: ParcelFacts, answer: CheckInAnswer, { foragerId, visitId }: { foragerId: string; visitId: string | null }): Promise<Usage> {
@@ -35,45 +39,67 @@ async function usageFor(db: Executor, parcel: ParcelFacts, answer: CheckInAnswer
   });
 }
 
-/** Runs the engine twice: once to find the parcel and verdict, then with that parcel's tallies. */
-async function decide(db: Executor, { forager, position, accuracyM, now, visitId }: { forager: Forager; position: LonLat; accuracyM: number; now: Date; visitId: string | null }) {
-  const ids = await candidateParcelIds(db, { longitude: position[0], latitude: position[1], radiusM: Math.max(accuracyM, 1) });
-  const parcels = await loadParcelFacts(db, { parcelIds: ids, forager });
-  const first = decideCheckIn({ position, accuracyM, at: now, forager, parcels, usage: () => ({}) });
-  const parcel = parcels.find((p) => p.id === first.parcel?.id);
-  if (first.verdict !== 'clear' || !parcel) return { answer: first, parcel: parcel ?? null };
-  const usage = await usageFor(db, parcel, first, { foragerId: forager.id, visitId });
-  return { answer: decideCheckIn({ position, accuracyM, at: now, forager, parcels: [parcel], usage: () => usage }), parcel, usage };
+type Situation = { forager: Forager; position: LonLat; accuracyM: number; now: Date };
+
+/** The verdict from the candidate parcels (found through the GiST index), before any tallies. */
+async function locate(db: Executor, s: Situation) {
+  const parcels = await loadParcelFactsNear(db, { longitude: s.position[0], latitude: s.position[1], radiusM: Math.max(s.accuracyM, 1), forager: s.forager });
+  const answer = decideCheckIn({ position: s.position, accuracyM: s.accuracyM, at: s.now, forager: s.forager, parcels, usage: () => ({}) });
+  return { answer, parcel: parcels.find((p) => p.id === answer.parcel?.id) ?? null };
+}
+
+/** The same verdict with the parcel's running totals for this forager and visit. */
+async function withTallies(db: Executor, s: Situation, parcel: ParcelFacts, first: CheckInAnswer, visitId: string | null) {
+  const usage = await usageFor(db, parcel, first, { foragerId: s.forager.id, visitId });
+  return { answer: decideCheckIn({ position: s.position, accuracyM: s.accuracyM, at: s.now, forager: s.forager, parcels: [parcel], usage: () => usage }), usage };
+}
+
+async function decide(db: Executor, s: Situation & { visitId: string | null }) {
+  const { answer, parcel } = await locate(db, s);
+  if (answer.verdict !== 'clear' || !parcel) return { answer, parcel, usage: null };
+  return { ...(await withTallies(db, s, parcel, answer, s.visitId)), parcel };
 }
 
 /** "I am here": the verdict, and a visit opened (or continued) when harvest is allowed. */
 export async function checkIn(db: Db, { forager, position, accuracyM, now }: { forager: Forager; position: LonLat; accuracyM: number; now: Date }) {
-  await closeStaleVisits(db, { now, foragerId: forager.id });
-  const first = await decide(db, { forager, position, accuracyM, now, visitId: null });
-  let visitId: string | null = null;
-  if (first.answer.verdict === 'clear' && first.parcel) {
-    const [open] = await db
-      .select({ id: visits.id })
-      .from(visits)
-      .where(and(eq(visits.foragerId, forager.id), eq(visits.parcelId, first.parcel.id), isNull(visits.endedAt), eq(visits.localDate, first.answer.localDate)))
-      .orderBy(desc(visits.startedAt))
-      .limit(1);
-    visitId = open?.id ?? null;
-    if (!visitId) {
-      const [created] = await db
-        .insert(visits)
-        .values({ foragerId: forager.id, parcelId: first.parcel.id, permitId: first.answer.permitId, localDate: first.answer.localDate, startedAt: now })
-        .returning({ id: visits.id });
-      visitId = created?.id ?? null;
-    }
-  }
-  // A continued visit has its own tallies so far.
-  const answer = visitId && first.parcel ? (await decide(db, { forager, position, accuracyM, now, visitId })).answer : first.answer;
-  await db.transaction(async (tx) => {
-    // The check-in log is a record, not the ledger: it may wait for the next disk flush.
+  const situation = { forager, position, accuracyM, now };
+  const { answer: first, parcel } = await locate(db, situation);
+  const clear = first.verdict === 'clear' && parcel ? parcel : null;
+  const instant = now.toISOString();
+  const clearId = clear?.id ?? null;
+  const visitId = await db.transaction(async (tx) => {
+    // Visits and the check-in log are records, not the ledger: they may wait for the next disk
+    // flush (a harvest entry's own commit flushes them first, as WAL is written in order).
     await tx.execute(sql`set local synchronous_commit = off`);
-    await tx.insert(checkIns).values({ foragerId: forager.id, position: { type: 'Point', coordinates: position }, accuracyM, verdict: answer.verdict, parcelId: answer.parcel?.id ?? null, visitId, at: now });
+    // Visits past their local day end then; and, one person being on one parcel at a time, a clear
+    // check-in elsewhere ends any other open visit.
+    await tx.execute(sql`
+      update visits v set
+        ended_at = case when o.ends <= ${instant}::timestamptz then o.ends else ${instant}::timestamptz end,
+        ended_by = case when o.ends <= ${instant}::timestamptz then 'end-of-day'::visit_end else 'check-out'::visit_end end
+      from (select x.id, x.parcel_id, ((x.local_date + 1)::timestamp at time zone (select p.time_zone from parcels p where p.id = x.parcel_id)) as ends
+            from visits x where x.ended_at is null and x.forager_id = ${forager.id}) o
+      where v.id = o.id and (o.ends <= ${instant}::timestamptz or (${clearId}::uuid is not null and o.parcel_id <> ${clearId}::uuid))`);
+    // Continue today's open visit here, or open one; and log the check-in, in one statement.
+    const [row] = await tx.execute<{ visit_id: string | null }>(sql`
+      with open as (
+        select id from visits where forager_id = ${forager.id} and parcel_id = ${clearId}::uuid and ended_at is null and local_date = ${first.localDate}::date
+        order by started_at desc limit 1),
+      created as (
+        insert into visits (forager_id, parcel_id, permit_id, local_date, started_at)
+        select ${forager.id}, ${clearId}::uuid, ${first.permitId}::uuid, ${first.localDate}::date, ${instant}::timestamptz
+        where ${clearId}::uuid is not null and not exists (select 1 from open)
+        returning id),
+      visit as (select id from open union all select id from created),
+      log as (
+        insert into check_ins (forager_id, position, accuracy_m, verdict, parcel_id, visit_id, at)
+        values (${forager.id}, ST_SetSRID(ST_MakePoint(${position[0]}, ${position[1]}), 4326), ${accuracyM}, ${first.verdict}::verdict,
+          ${first.parcel?.id ?? null}::uuid, (select id from visit limit 1), ${instant}::timestamptz)
+        returning visit_id)
+      select visit_id from log`);
+    return row?.visit_id ?? null;
   });
+  const answer = clear ? (await withTallies(db, situation, clear, first, visitId)).answer : first;
   return { ...answer, visitId };
 }
 
@@ -139,6 +165,14 @@ export async function recordHarvest(db: Db, { forager, input, now, preview = fal
     if (breach && !input.acknowledgeOver) {
       throw new AppError(409, 'would-go-over', 'This entry would take a limit over. Take less, or confirm that you are going over; the landowner is told.', 'quantity', { projection });
     }
+    let photoDistanceM: number | null = null;
+    if (input.photoUploadId) {
+      const [photo] = await tx.execute<{ distance: number | null }>(sql`
+        select ST_Distance(u.gps_position::geography, ST_SetSRID(ST_MakePoint(${checkInRow.position.coordinates[0]}, ${checkInRow.position.coordinates[1]}), 4326)::geography) as distance
+        from uploads u where u.id = ${input.photoUploadId} and u.owner_id = ${forager.id} and u.purpose = 'harvest-photo'`);
+      if (!photo) throw invalidInput('photoUploadId', 'That photo was not found among your uploads; upload it again.');
+      photoDistanceM = photo.distance;
+    }
     if (input.corrects) {
       const [original] = await tx.select({ id: harvestEntries.id }).from(harvestEntries).where(and(eq(harvestEntries.id, input.corrects.entryId), eq(harvestEntries.foragerId, forager.id)));
       if (!original) throw notFound('The entry to correct');
@@ -160,6 +194,7 @@ export async function recordHarvest(db: Db, { forager, input, now, preview = fal
         localDate: localDate(now, parcel.timeZone),
         position: { type: 'Point', coordinates: checkInRow.position.coordinates },
         photoUploadId: input.photoUploadId ?? null,
+        photoDistanceM,
         breach,
         acknowledgedOver: Boolean(input.acknowledgeOver),
         correctsEntryId: input.corrects?.entryId ?? null,

@@ -2,76 +2,53 @@ import { sql } from 'drizzle-orm';
 import type { Forager, LimitScope, ParcelFacts, Usage } from '../lib/field/types';
 import type { Executor } from './client';
 
-/**
- * Parcels within `radiusM` of a position, through the GiST index on the boundary's geography
- * (ST_DWithin on geography uses it; a scan of every parcel never happens).
- */
-export async function candidateParcelIds(db: Executor, { longitude, latitude, radiusM }: { longitude: number; latitude: number; radiusM: number }) {
-  const rows = await db.execute<{ id: string }>(sql`
-    select id from parcels
-    where status <> 'archived'
-      and ST_DWithin(boundary::geography, ST_SetSRID(ST_MakePoint(${longitude}, ${latitude}), 4326)::geography, ${radiusM})`);
-  return rows.map((r) => r.id);
-}
-
 type Row = Record<string, unknown>;
 
-/** Everything the engine needs about the candidate parcels, for one forager: six indexed queries in parallel. */
-export async function loadParcelFacts(db: Executor, { parcelIds, forager }: { parcelIds: string[]; forager: Forager }): Promise<ParcelFacts[]> {
-  if (parcelIds.length === 0) return [];
-  const ids = sql`${`{${parcelIds.join(',')}}`}::uuid[]`;
+/**
+ * Everything the engine needs about the parcels within `radiusM` of a position, for one forager,
+ * in one statement: the candidates come through the GiST index on the boundary's geography
+ * (ST_DWithin on geography uses it; no scan of every parcel), and each candidate's zones,
+ * closures, hazards, permits and allowances are gathered by key beside it.
+ */
+export async function loadParcelFactsNear(
+  db: Executor,
+  { longitude, latitude, radiusM, forager }: { longitude: number; latitude: number; radiusM: number; forager: Forager },
+): Promise<ParcelFacts[]> {
   const clubs = sql`${`{${forager.clubIds.join(',')}}`}::uuid[]`;
-  const [parcels, zones, closures, hazards, permits, allowances] = await Promise.all([
-    db.execute<Row>(sql`
-      select p.id, p.name, p.time_zone, p.nearing_threshold_percent, ST_AsGeoJSON(p.boundary)::json as boundary,
-        (select t.id from terms t where t.parcel_id = p.id order by t.version desc limit 1) as current_terms_id
-      from parcels p where p.id = any(${ids})`),
-    db.execute<Row>(sql`select parcel_id, id, name, reason, ST_AsGeoJSON(boundary)::json as boundary from no_harvest_zones where parcel_id = any(${ids})`),
-    db.execute<Row>(sql`select parcel_id, starts_on::text, ends_on::text, reason from closures where parcel_id = any(${ids})`),
-    db.execute<Row>(sql`select parcel_id, kind, title, detail from hazards where parcel_id = any(${ids}) order by title`),
-    db.execute<Row>(sql`
-      select parcel_id, id, holder_user_id, holder_club_id, state, starts_on::text, ends_on::text, fee_minor, fee_paid_at is not null as fee_paid, accepted_terms_id
-      from permits where parcel_id = any(${ids}) and (holder_user_id = ${forager.id} or holder_club_id = any(${clubs}))`),
-    db.execute<Row>(sql`
-      select a.parcel_id, s.id as species_id, s.common_name, s.scientific_name, a.seasons, a.methods::text[] as methods, s.cautions, s.lookalikes,
-        coalesce((select json_agg(json_build_object('scope', l.scope, 'quantity', l.quantity::text, 'unit', l.unit, 'permitId', l.permit_id))
-          from limits l left join permits lp on lp.id = l.permit_id
-          where l.allowance_id = a.id and (l.permit_id is null or lp.holder_user_id = ${forager.id} or lp.holder_club_id = any(${clubs}))), '[]'::json) as limits
-      from allowances a join species s on s.id = a.species_id
-      where a.parcel_id = any(${ids}) order by s.common_name`),
-  ]);
-  const of = (rows: Row[], parcelId: unknown) => rows.filter((r) => r.parcel_id === parcelId);
-  return parcels.map((p) => ({
+  const rows = await db.execute<Row>(sql`
+    select p.id, p.name, p.time_zone, p.nearing_threshold_percent, ST_AsGeoJSON(p.boundary)::json as boundary,
+      (select t.id from terms t where t.parcel_id = p.id order by t.version desc limit 1) as current_terms_id,
+      coalesce((select json_agg(json_build_object('id', z.id, 'name', z.name, 'reason', z.reason, 'boundary', ST_AsGeoJSON(z.boundary)::json))
+        from no_harvest_zones z where z.parcel_id = p.id), '[]') as zones,
+      coalesce((select json_agg(json_build_object('startsOn', c.starts_on::text, 'endsOn', c.ends_on::text, 'reason', c.reason))
+        from closures c where c.parcel_id = p.id), '[]') as closures,
+      coalesce((select json_agg(json_build_object('kind', h.kind, 'title', h.title, 'detail', h.detail) order by h.title)
+        from hazards h where h.parcel_id = p.id), '[]') as hazards,
+      coalesce((select json_agg(json_build_object('id', pm.id, 'holderUserId', pm.holder_user_id, 'holderClubId', pm.holder_club_id, 'state', pm.state,
+          'startsOn', pm.starts_on::text, 'endsOn', pm.ends_on::text, 'feeMinor', pm.fee_minor, 'feePaid', pm.fee_paid_at is not null, 'acceptedTermsId', pm.accepted_terms_id))
+        from permits pm where pm.parcel_id = p.id and (pm.holder_user_id = ${forager.id} or pm.holder_club_id = any(${clubs}))), '[]') as permits,
+      coalesce((select json_agg(json_build_object('speciesId', s.id, 'commonName', s.common_name, 'scientificName', s.scientific_name,
+          'seasons', a.seasons, 'methods', a.methods, 'cautions', s.cautions, 'lookalikes', s.lookalikes,
+          'limits', coalesce((select json_agg(json_build_object('scope', l.scope, 'quantity', l.quantity::text, 'unit', l.unit, 'permitId', l.permit_id))
+            from limits l left join permits lp on lp.id = l.permit_id
+            where l.allowance_id = a.id and (l.permit_id is null or lp.holder_user_id = ${forager.id} or lp.holder_club_id = any(${clubs}))), '[]'))
+          order by s.common_name)
+        from allowances a join species s on s.id = a.species_id where a.parcel_id = p.id), '[]') as allowances
+    from parcels p
+    where p.status <> 'archived'
+      and ST_DWithin(p.boundary::geography, ST_SetSRID(ST_MakePoint(${longitude}, ${latitude}), 4326)::geography, ${radiusM})`);
+  return rows.map((p) => ({
     id: String(p.id),
     name: String(p.name),
     timeZone: String(p.time_zone),
     nearingThresholdPercent: Number(p.nearing_threshold_percent),
     boundary: p.boundary as ParcelFacts['boundary'],
     currentTermsId: (p.current_terms_id as string | null) ?? null,
-    zones: of(zones, p.id).map((z) => ({ id: String(z.id), name: String(z.name), reason: String(z.reason), boundary: z.boundary as ParcelFacts['boundary'] })),
-    closures: of(closures, p.id).map((c) => ({ startsOn: String(c.starts_on), endsOn: String(c.ends_on), reason: String(c.reason) })),
-    hazards: of(hazards, p.id).map((h) => ({ kind: String(h.kind), title: String(h.title), detail: String(h.detail) })),
-    permits: of(permits, p.id).map((r) => ({
-      id: String(r.id),
-      holderUserId: (r.holder_user_id as string | null) ?? null,
-      holderClubId: (r.holder_club_id as string | null) ?? null,
-      state: r.state as ParcelFacts['permits'][number]['state'],
-      startsOn: String(r.starts_on),
-      endsOn: String(r.ends_on),
-      feeMinor: r.fee_minor === null ? null : Number(r.fee_minor),
-      feePaid: Boolean(r.fee_paid),
-      acceptedTermsId: (r.accepted_terms_id as string | null) ?? null,
-    })),
-    allowances: of(allowances, p.id).map((a) => ({
-      speciesId: String(a.species_id),
-      commonName: String(a.common_name),
-      scientificName: String(a.scientific_name),
-      seasons: a.seasons as ParcelFacts['allowances'][number]['seasons'],
-      methods: a.methods as ParcelFacts['allowances'][number]['methods'],
-      limits: a.limits as ParcelFacts['allowances'][number]['limits'],
-      cautions: a.cautions as string[],
-      lookalikes: a.lookalikes as ParcelFacts['allowances'][number]['lookalikes'],
-    })),
+    zones: p.zones as ParcelFacts['zones'],
+    closures: p.closures as ParcelFacts['closures'],
+    hazards: p.hazards as ParcelFacts['hazards'],
+    permits: p.permits as ParcelFacts['permits'],
+    allowances: p.allowances as ParcelFacts['allowances'],
   }));
 }
 

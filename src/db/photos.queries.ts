@@ -5,11 +5,11 @@ import { uploads } from './schema';
 /** Records a stored harvest photo (the original's key; the shared copy's key is derived from it). */
 export async function insertPhotoUpload(
   db: Executor,
-  input: { ownerId: string; storageKey: string; contentType: string; byteSize: number; sha256: string },
+  { gps, ...input }: { ownerId: string; storageKey: string; contentType: string; byteSize: number; sha256: string; gps?: { longitude: number; latitude: number } | null },
 ) {
   const [row] = await db
     .insert(uploads)
-    .values({ ...input, purpose: 'harvest-photo' })
+    .values({ ...input, purpose: 'harvest-photo', gpsPosition: gps ? { type: 'Point', coordinates: [gps.longitude, gps.latitude] } : null })
     .returning({ id: uploads.id });
   if (!row) throw new Error('the photo upload was not recorded');
   return row;

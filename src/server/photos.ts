@@ -29,6 +29,7 @@ export async function savePhoto(
       contentType: processed.contentType,
       byteSize: original.byteSize,
       sha256: original.sha256,
+      gps: processed.gps,
     });
     return { uploadId: row.id, gps: processed.gps };
   } catch (error) {

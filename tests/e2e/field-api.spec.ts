@@ -105,3 +105,20 @@ test('given a 50 MB photo or a file that is not an image, the upload is refused 
   const text = await forager.post('/api/photos', { multipart: { photo: { name: 'notes.jpg', mimeType: 'image/jpeg', buffer: Buffer.from('these are my notes, not a photo') } } });
   expect(text.status()).toBe(415);
 });
+
+test("given a photo whose EXIF places it 0.001° north of the check-in, the entry records about 111 m between them", async () => {
+  const sharp = (await import('sharp')).default;
+  // The check-in is at 43.8915°N, 72.9885°W; the photo says 43°53′33″N (43.8925°N), 72°59′18.6″W.
+  const exif = { IFD3: { GPSLatitudeRef: 'N', GPSLatitude: '43/1 53/1 33/1', GPSLongitudeRef: 'W', GPSLongitude: '72/1 59/1 186/10' } };
+  const jpeg = await sharp({ create: { width: 16, height: 12, channels: 3, background: '#4f7d47' } }).jpeg().withExif(exif).toBuffer();
+  const upload = await forager.post('/api/photos', { multipart: { photo: { name: 'oyster.jpg', mimeType: 'image/jpeg', buffer: jpeg } } });
+  expect(upload.status(), await upload.text()).toBe(201);
+  const { uploadId, gps } = await upload.json();
+  expect(gps.latitude).toBeCloseTo(43.8925, 6);
+  const saved = await forager.post('/api/harvest-entries', { data: entry('Oyster mushroom', '50', 'g', { photoUploadId: uploadId }) });
+  expect(saved.status(), await saved.text()).toBe(201);
+  // 0.001° of latitude at 43.9°N is about 111.1 m on the WGS 84 meridian (from memory ✱).
+  const { entry: recorded } = await saved.json();
+  expect(recorded.photoDistanceM).toBeGreaterThan(110);
+  expect(recorded.photoDistanceM).toBeLessThan(112.5);
+});

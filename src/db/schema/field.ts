@@ -22,7 +22,12 @@ export const visits = pgTable(
     endedAt: at('ended_at'),
     endedBy: visitEndEnum('ended_by'),
   },
-  (t) => [index('visits_forager').on(t.foragerId, t.startedAt), index('visits_parcel').on(t.parcelId, t.localDate)],
+  (t) => [
+    index('visits_forager').on(t.foragerId, t.startedAt),
+    index('visits_parcel').on(t.parcelId, t.localDate),
+    /** Open visits are few: closing them at the end of the day reads only these. */
+    index('visits_open').on(t.foragerId).where(sql`${t.endedAt} is null`),
+  ],
 );
 
 /** Every "I am here", whatever the verdict; a check-in that allows harvest opens a visit. */
@@ -66,6 +71,8 @@ export const harvestEntries = pgTable(
     localDate: date('local_date', { mode: 'string' }).notNull(),
     position: point('position'),
     photoUploadId: uuid('photo_upload_id').references(() => uploads.id),
+    /** Metres from the check-in to where the photo's metadata places it; null without a GPS tag. */
+    photoDistanceM: doublePrecision('photo_distance_m'),
     breach: boolean('breach').notNull().default(false),
     acknowledgedOver: boolean('acknowledged_over').notNull().default(false),
     correctsEntryId: uuid('corrects_entry_id').references((): AnyPgColumn => harvestEntries.id),

@@ -1,6 +1,6 @@
 import { sql } from 'drizzle-orm';
 import { check, index, integer, jsonb, pgTable, text, uuid } from 'drizzle-orm/pg-core';
-import { at, createdAt, id } from './columns';
+import { at, createdAt, id, point } from './columns';
 import { mailStateEnum, paymentStateEnum, uploadPurposeEnum } from './enums';
 import { users } from './auth';
 import { permits } from './permits';
@@ -16,6 +16,8 @@ export const uploads = pgTable(
     contentType: text('content_type').notNull(),
     byteSize: integer('byte_size').notNull(),
     sha256: text('sha256').notNull(),
+    /** Where a photo says it was taken (its EXIF GPS), when it says so. */
+    gpsPosition: point('gps_position'),
     createdAt: createdAt(),
   },
   (t) => [index('uploads_owner').on(t.ownerId), check('uploads_size', sql`${t.byteSize} >= 0`)],

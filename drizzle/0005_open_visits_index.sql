@@ -1,0 +1,1 @@
+CREATE INDEX "visits_open" ON "visits" USING btree ("forager_id") WHERE "visits"."ended_at" is null;
