@@ -3,7 +3,7 @@ import { currentSeason, decideCheckIn, projectEntry } from '../lib/field';
 import type { CheckInAnswer, Forager, LonLat, ParcelFacts, Usage } from '../lib/field/types';
 import { AppError, invalidInput, notFound } from '../lib/errors';
 import { localDate } from '../lib/local-time';
-import { toBaseScaled, units } from '../lib/units';
+import { toBaseScaled, toScaled, units } from '../lib/units';
 import type { HarvestInput } from '../lib/field.schemas';
 import type { Db, Executor, Tx } from './client';
 import { loadParcelFactsNear, usageOnParcel } from './field.queries';
@@ -34,7 +34,8 @@ async function usageFor(db: Executor, parcel: ParcelFacts, answer: CheckInAnswer
     clubPermitId: permit?.holderClubId ? permit.id : null,
     windows: parcel.allowances.map((a) => {
       const season = currentSeason(a.seasons, answer.localDate);
-      return { speciesId: a.speciesId, seasonStart: season?.start ?? null, seasonEnd: season?.end ?? null };
+      const measured = a.limits[0];
+      return { speciesId: a.speciesId, seasonStart: season?.start ?? null, seasonEnd: season?.end ?? null, dimension: measured ? units[measured.unit].dimension : null };
     }),
   });
 }
@@ -157,10 +158,11 @@ export async function recordHarvest(db: Db, { forager, input, now, preview = fal
       throw invalidInput('method', `${allowance.commonName} may be taken here only by: ${allowance.methods.join(', ')}.`);
     }
     const permit = parcel.permits.find((p) => p.id === answer.permitId) ?? null;
-    const isCorrection = Boolean(input.corrects);
+    // Taking away (a negative correction) never breaches; adding, even as a correction, is checked.
+    const reversing = input.quantity.startsWith('-');
     // A unit of another dimension throws UnitMismatch: a 400 naming the unit field.
     const projection = projectEntry(allowance, usage, { quantity: input.quantity, unit: input.unit }, { forager, permit, thresholdPercent: parcel.nearingThresholdPercent });
-    const breach = projection.wouldBreach && !isCorrection;
+    const breach = projection.wouldBreach && !reversing;
     if (preview) return { entry: null, replayed: false, projection };
     if (breach && !input.acknowledgeOver) {
       throw new AppError(409, 'would-go-over', 'This entry would take a limit over. Take less, or confirm that you are going over; the landowner is told.', 'quantity', { projection });
@@ -173,9 +175,18 @@ export async function recordHarvest(db: Db, { forager, input, now, preview = fal
       if (!photo) throw invalidInput('photoUploadId', 'That photo was not found among your uploads; upload it again.');
       photoDistanceM = photo.distance;
     }
+    const baseQuantity = baseDecimal(input.quantity, input.unit);
     if (input.corrects) {
-      const [original] = await tx.select({ id: harvestEntries.id }).from(harvestEntries).where(and(eq(harvestEntries.id, input.corrects.entryId), eq(harvestEntries.foragerId, forager.id)));
-      if (!original) throw notFound('The entry to correct');
+      // A correction belongs to the same forager, parcel and species, and cannot take away more
+      // than the entry (with its earlier corrections) still counts.
+      const [original] = await tx.execute<{ remaining: string }>(sql`
+        select (o.base_quantity + coalesce((select sum(c.base_quantity) from harvest_entries c where c.corrects_entry_id = o.id), 0))::text as remaining
+        from harvest_entries o
+        where o.id = ${input.corrects.entryId} and o.forager_id = ${forager.id} and o.parcel_id = ${parcel.id} and o.species_id = ${input.speciesId}`);
+      if (!original) throw notFound('The entry to correct (yours, on this parcel, for this species)');
+      if (toScaled(original.remaining) + toScaled(baseQuantity) < 0n) {
+        throw invalidInput('quantity', 'A correction cannot take away more than the entry still counts.');
+      }
     }
     const [entry] = await tx
       .insert(harvestEntries)
@@ -190,7 +201,7 @@ export async function recordHarvest(db: Db, { forager, input, now, preview = fal
         quantity: input.quantity,
         unit: input.unit,
         dimension: units[input.unit].dimension,
-        baseQuantity: baseDecimal(input.quantity, input.unit),
+        baseQuantity,
         localDate: localDate(now, parcel.timeZone),
         position: { type: 'Point', coordinates: checkInRow.position.coordinates },
         photoUploadId: input.photoUploadId ?? null,

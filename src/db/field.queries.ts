@@ -52,7 +52,8 @@ export async function loadParcelFactsNear(
   }));
 }
 
-export type UsageWindow = { speciesId: string; seasonStart: string | null; seasonEnd: string | null };
+/** Per species: its current season occurrence, and the dimension its limits measure (only those entries count). */
+export type UsageWindow = { speciesId: string; seasonStart: string | null; seasonEnd: string | null; dimension: 'mass' | 'volume' | 'count' | null };
 
 /**
  * Sums of the ledger for one forager on one parcel, per species and scope, in base units. Corrections
@@ -66,6 +67,7 @@ export async function usageOnParcel(
   const species = sql`${`{${windows.map((w) => w.speciesId).join(',')}}`}::uuid[]`;
   const starts = sql`${`{${windows.map((w) => w.seasonStart ?? 'NULL').join(',')}}`}::date[]`;
   const ends = sql`${`{${windows.map((w) => w.seasonEnd ?? 'NULL').join(',')}}`}::date[]`;
+  const dimensions = sql`${`{${windows.map((w) => w.dimension ?? 'NULL').join(',')}}`}::dimension[]`;
   const rows = await db.execute<{ species_id: string; visit: string; day: string; season: string; parcel_season: string; club_season: string }>(sql`
     select w.species_id,
       coalesce(sum(e.base_quantity) filter (where e.visit_id = ${visitId}::uuid), 0)::text as visit,
@@ -73,8 +75,8 @@ export async function usageOnParcel(
       coalesce(sum(e.base_quantity) filter (where e.forager_id = ${foragerId} and e.local_date between w.season_start and w.season_end), 0)::text as season,
       coalesce(sum(e.base_quantity) filter (where e.local_date between w.season_start and w.season_end), 0)::text as parcel_season,
       coalesce(sum(e.base_quantity) filter (where e.permit_id = ${clubPermitId}::uuid and e.local_date between w.season_start and w.season_end), 0)::text as club_season
-    from unnest(${species}, ${starts}, ${ends}) as w(species_id, season_start, season_end)
-    left join harvest_entries e on e.parcel_id = ${parcelId} and e.species_id = w.species_id
+    from unnest(${species}, ${starts}, ${ends}, ${dimensions}) as w(species_id, season_start, season_end, dimension)
+    left join harvest_entries e on e.parcel_id = ${parcelId} and e.species_id = w.species_id and (w.dimension is null or e.dimension = w.dimension)
     group by w.species_id`);
   const usage: Usage = {};
   for (const r of rows) {

@@ -1,6 +1,7 @@
 import { and, eq, isNull, sql } from 'drizzle-orm';
 import { AppError, invalidInput, notFound } from '../lib/errors';
 import type { GrantPermitInput } from '../lib/permits.schemas';
+import { localDate } from '../lib/local-time';
 import { sameDimension, toBaseScaled, units, type Unit } from '../lib/units';
 import type { Tx } from './client';
 import { activateIfReady, lockPermit, movePermit } from './permits.lifecycle';
@@ -118,6 +119,9 @@ export async function decideRequest(
   if (permit.ownerId !== ownerId) throw notFound('Permit');
   if (decision === 'decline') {
     return movePermit(tx, permit, { to: 'declined', by: 'landowner', actorId: ownerId, reason: message || 'Declined by the landowner.', now });
+  }
+  if (permit.endsOn < localDate(now, permit.timeZone)) {
+    throw new AppError(409, 'dates-passed', `The dates asked for ended on ${permit.endsOn}; decline this request and ask the forager to send a new one.`);
   }
   if (feeMinor !== undefined) {
     await tx.update(permits).set({ feeMinor: feeMinor > 0 ? feeMinor : null, currency: feeMinor > 0 ? (permit.currency ?? 'usd') : null }).where(eq(permits.id, permitId));

@@ -103,6 +103,8 @@ export async function advancePermitsByDate(tx: Tx, { now }: { now: Date }) {
       or (${permits.state} = 'approved' and ${permits.startsOn} <= (${instant}::timestamptz at time zone ${parcels.timeZone})::date))`);
   for (const { id } of due) {
     const permit = await lockPermit(tx, id);
+    // It may have been revoked (or moved on) between the select and the lock.
+    if (permit.state !== 'approved' && permit.state !== 'active') continue;
     if (permit.endsOn < localDate(now, permit.timeZone)) {
       await movePermit(tx, permit, { to: 'expired', by: 'system', actorId: null, reason: 'The last day of the permit has passed.', now });
     } else {

@@ -26,16 +26,23 @@ export const monthDay = z
     return m !== undefined && d !== undefined && m >= 1 && m <= 12 && d >= 1 && d <= (daysInMonth[m - 1] ?? 0);
   }, 'That month-day does not exist.');
 
-export const parcelSettingsSchema = z.object({
+const settingsFields = {
   name: z.string().trim().min(1, 'Give the parcel a name.').max(120, 'Keep the name to 120 characters or fewer.'),
-  description: z.string().trim().max(2000, 'Keep the description to 2 000 characters or fewer.').default(''),
+  description: z.string().trim().max(2000, 'Keep the description to 2 000 characters or fewer.'),
   timeZone: z.string().trim().refine(isTimeZone, 'That is not an IANA time zone (for example America/New_York).'),
   nearingThresholdPercent: z.coerce.number().int('Use a whole percentage.').min(1, 'Use a percentage from 1 to 100.').max(100, 'Use a percentage from 1 to 100.'),
-  openToRequests: z.boolean().default(false),
+  openToRequests: z.boolean(),
+};
+
+export const parcelSettingsSchema = z.object({
+  ...settingsFields,
+  description: settingsFields.description.default(''),
+  openToRequests: settingsFields.openToRequests.default(false),
 });
 
 export const newParcelSchema = parcelSettingsSchema.extend({ boundary: boundaryGeometry });
-export const parcelUpdateSchema = parcelSettingsSchema.partial().extend({
+/** Only the fields sent change: no defaults here, so a boundary edit keeps the description. */
+export const parcelUpdateSchema = z.object(settingsFields).partial().extend({
   boundary: boundaryGeometry.optional(),
   /** A draft becomes listed (visible to foragers) only for a verified landowner. */
   status: z.enum(['draft', 'listed', 'archived']).optional(),

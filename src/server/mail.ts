@@ -6,6 +6,11 @@ import { markMail, recordMail } from '../db/mail.queries';
 /** True while mail goes to the local catcher (and so the mailbox page exists). */
 export const usingMailCatcher = !SMTP_URL;
 
+/** The local mailbox shows every sign-in link, so it answers only requests from this machine. */
+export function isLoopback(address: string | undefined) {
+  return address === '127.0.0.1' || address === '::1' || address === '::ffff:127.0.0.1';
+}
+
 const transport = nodemailer.createTransport(
   SMTP_URL ?? { host: '127.0.0.1', port: MAIL_CATCHER_SMTP_PORT, secure: false, ignoreTLS: true },
 );

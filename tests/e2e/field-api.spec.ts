@@ -122,3 +122,20 @@ test("given a photo whose EXIF places it 0.001° north of the check-in, the entr
   expect(recorded.photoDistanceM).toBeGreaterThan(110);
   expect(recorded.photoDistanceM).toBeLessThan(112.5);
 });
+
+test('given a correction, it may take away at most what the entry still counts, on the same parcel and species', async () => {
+  const saved = await forager.post('/api/harvest-entries', { data: entry('Oyster mushroom', '100', 'g') });
+  expect(saved.status()).toBe(201);
+  const original = (await saved.json()).entry.id as string;
+  const tooMuch = await forager.post('/api/harvest-entries', { data: entry('Oyster mushroom', '-150', 'g', { corrects: { entryId: original, reason: 'Weighed again at home' } }) });
+  expect(tooMuch.status()).toBe(400);
+  expect((await tooMuch.json()).error.field).toBe('quantity');
+  const otherSpecies = await forager.post('/api/harvest-entries', { data: entry('Fiddlehead (ostrich fern)', '-1', 'stem', { corrects: { entryId: original, reason: 'Wrong species' } }) });
+  expect(otherSpecies.status()).toBe(404);
+  const fair = await forager.post('/api/harvest-entries', { data: entry('Oyster mushroom', '-0.04', 'kg', { corrects: { entryId: original, reason: 'Weighed again at home: 60 g' } }) });
+  expect(fair.status(), await fair.text()).toBe(201);
+  expect((await fair.json()).entry).toMatchObject({ correctsEntryId: original, breach: false });
+  // 100 g − 0.04 kg leaves 60 g; another −61 g would take away more than remains.
+  const past = await forager.post('/api/harvest-entries', { data: entry('Oyster mushroom', '-61', 'g', { corrects: { entryId: original, reason: 'Again' } }) });
+  expect(past.status()).toBe(400);
+});

@@ -41,6 +41,15 @@ test("given Walter's demo parcels, the list counts each parcel's own active perm
   expect(parcels.find((p) => p.name === 'Alder Bottom')?.activePermits).toBe(0);
 });
 
+test('given only a new boundary, the parcel keeps its description and its openness to requests', async () => {
+  const set = await walter.patch(`/api/parcels/${walterParcelId}`, { data: { description: 'Oak and hickory on the west slope.', openToRequests: true } });
+  expect(set.status(), await set.text()).toBe(200);
+  const moved = await walter.patch(`/api/parcels/${walterParcelId}`, { data: { boundary: square(-72.95, 43.9, 0.0011) } });
+  expect(moved.status(), await moved.text()).toBe(200);
+  const { parcel } = await (await walter.get(`/api/parcels/${walterParcelId}`)).json();
+  expect(parcel).toMatchObject({ description: 'Oak and hickory on the west slope.', openToRequests: true });
+});
+
 test('given a self-crossing bow-tie, it answers 400 saying where the boundary crosses itself', async () => {
   const before = await parcelCount(walter);
   const bowTie = { type: 'Polygon', coordinates: [[[-72.95, 43.91], [-72.949, 43.912], [-72.95, 43.912], [-72.949, 43.91], [-72.95, 43.91]]] };

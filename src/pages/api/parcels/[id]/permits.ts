@@ -20,21 +20,24 @@ export const GET = endpoint(async ({ locals, params }) => {
 export const POST = endpoint(async ({ locals, params, request, url }) => {
   const { actor, parcelId } = await ownedParcel(locals, params, 'permit:grant');
   const input = await readJson(request, grantPermitSchema);
-  let invited = false;
-  let holder: { userId: string } | { clubId: string };
-  if (input.holder.kind === 'forager') {
-    let user = await findUserByEmail(db, { email: input.holder.email });
-    if (!user) {
-      user = await createAccount(db, { email: input.holder.email, name: input.holder.email.split('@')[0] ?? input.holder.email, managesLand: false });
-      invited = true;
+  // The invitee's account and the permit are made together, or neither is.
+  const { permit, invited } = await db.transaction(async (tx) => {
+    let invited = false;
+    let holder: { userId: string } | { clubId: string };
+    if (input.holder.kind === 'forager') {
+      let user = await findUserByEmail(tx, { email: input.holder.email });
+      if (!user) {
+        user = await createAccount(tx, { email: input.holder.email, name: input.holder.email.split('@')[0] ?? input.holder.email, managesLand: false });
+        invited = true;
+      }
+      if (!user) throw invalidInput('holder.email', 'That address could not be used; try again.');
+      if (user.id === actor.id) throw invalidInput('holder.email', 'You need no permit for your own parcel.');
+      holder = { userId: user.id };
+    } else {
+      holder = { clubId: input.holder.clubId };
     }
-    if (!user) throw invalidInput('holder.email', 'That address could not be used; try again.');
-    if (user.id === actor.id) throw invalidInput('holder.email', 'You need no permit for your own parcel.');
-    holder = { userId: user.id };
-  } else {
-    holder = { clubId: input.holder.clubId };
-  }
-  const permit = await db.transaction((tx) => grantPermit(tx, { parcelId, ownerId: actor.id, holder, input, now: new Date() }));
+    return { permit: await grantPermit(tx, { parcelId, ownerId: actor.id, holder, input, now: new Date() }), invited };
+  });
   await noticeGranted({ permitId: permit.id, origin: url.origin, invited });
   return json({ permit: { id: permit.id, state: permit.state }, invited }, 201);
 });

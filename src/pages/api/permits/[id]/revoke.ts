@@ -19,7 +19,13 @@ export const POST = endpoint(async ({ locals, params, request, url }) => {
   const now = new Date();
   const permit = await db.transaction((tx) => revokePermit(tx, { permitId, ownerId: actor.id, reason, now }));
   const beforeStart = Boolean(existing.feePaidAt) && existing.startsOn > localDate(now, existing.timeZone);
-  const refund = beforeStart ? await refundPermitFee(db, { permitId, actorId: actor.id, reason, origin: url.origin, now }) : null;
+  // The revocation stands whatever the provider says; a refund that fails is reported, not hidden.
+  const refund = beforeStart
+    ? await refundPermitFee(db, { permitId, actorId: actor.id, reason, origin: url.origin, now }).catch((error) => {
+        console.error('refund after revocation failed:', error);
+        return { outcome: 'failed' as const };
+      })
+    : null;
   const refunded = refund?.outcome === 'refunded';
   await noticeRevoked({ permitId, origin: url.origin, reason, refunded });
   return json({ permit: { id: permit.id, state: permit.state }, refunded, refund: refund?.outcome ?? 'not-due' });
