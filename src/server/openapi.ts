@@ -2,6 +2,7 @@ import { z } from 'zod';
 import { signInSchema, signUpSchema } from '../lib/accounts.schemas';
 import { allowanceSchema, closureSchema, hazardSchema, newParcelSchema, parcelUpdateSchema, termsSchema, zoneSchema } from '../lib/land.schemas';
 import { accessRequestSchema, decisionSchema, grantPermitSchema, permitLimitSchema, revokeSchema } from '../lib/permits.schemas';
+import { checkInSchema, harvestSchema } from '../lib/field.schemas';
 
 type Route = { method: 'get' | 'post' | 'put' | 'patch' | 'delete'; path: string; summary: string; body?: z.ZodType; auth?: boolean; tag: string };
 
@@ -34,6 +35,14 @@ const routes: Route[] = [
   { method: 'post', path: '/api/permits/{id}/accept-terms', summary: "Accept the parcel's current terms", tag: 'permits' },
   { method: 'post', path: '/api/permits/{id}/checkout', summary: 'Start paying the fee; answers the hosted checkout URL', tag: 'payments' },
   { method: 'post', path: '/api/payments/webhook', summary: "The payment provider's signed events (idempotent)", auth: false, tag: 'payments' },
+  { method: 'post', path: '/api/check-ins', summary: 'Check in: position and accuracy radius; answers the verdict, hazards and remaining quantities', body: checkInSchema, tag: 'field' },
+  { method: 'post', path: '/api/harvest-entries', summary: 'Record a harvest entry or a correction (idempotent by key; over a limit needs acknowledgeOver)', body: harvestSchema, tag: 'field' },
+  { method: 'post', path: '/api/harvest-entries/preview', summary: 'The tallies as they would be after this entry; saves nothing', body: harvestSchema, tag: 'field' },
+  { method: 'post', path: '/api/visits/{id}/check-out', summary: 'End a visit', tag: 'field' },
+  { method: 'post', path: '/api/photos', summary: 'Upload a harvest photo (multipart `photo`, images only, 10 MB); answers its GPS position if it has one', tag: 'field' },
+  { method: 'get', path: '/api/photos/{id}', summary: 'A photo: the original for its owner, a copy without location metadata for the landowner', tag: 'field' },
+  { method: 'get', path: '/api/ledger', summary: 'Your own entries and totals', tag: 'ledger' },
+  { method: 'get', path: '/api/ledger/export.csv', summary: 'Your ledger as CSV (RFC 4180)', tag: 'ledger' },
   { method: 'get', path: '/api/species', summary: 'The species catalogue with cautions', tag: 'catalogue' },
   { method: 'get', path: '/api/open-parcels', summary: 'Parcels open to access requests', tag: 'permits' },
   { method: 'post', path: '/api/access-requests', summary: 'Ask for access to a parcel', body: accessRequestSchema, tag: 'permits' },

@@ -53,7 +53,16 @@ export default function FieldApp({ tiles, parcels }: { tiles: ParcelMapProps['ti
       </div>
       <p className="text-sm text-loam-700">Or tap your spot on the map (taken as a {tapAccuracyM} m fix).</p>
       {problem && <p role="alert" className="field-error text-base">{problem}</p>}
-      <ParcelMap tiles={tiles} features={parcels} markers={markers} height="20rem" testId="field-map" onPick={(at) => void checkIn(at, tapAccuracyM)} />
+      <ParcelMap
+        tiles={tiles}
+        features={parcels}
+        markers={markers}
+        // Once there is a fix, the map shows the few hundred metres around it.
+        fitTo={fix ? [[fix.at[0] - 0.004, fix.at[1] - 0.003], [fix.at[0] + 0.004, fix.at[1] + 0.003]] : 'features'}
+        height="20rem"
+        testId="field-map"
+        onPick={(at) => void checkIn(at, tapAccuracyM)}
+      />
       {answer && (
         <>
           <VerdictPanel answer={answer} />
