@@ -213,8 +213,15 @@ export async function recordHarvest(db: Db, { forager, input, now, preview = fal
         recordedBy: forager.id,
         recordedAt: now,
       })
+      // The same key sent at the same moment for another species took another lock: the later
+      // insert waits for the first, then finds the key taken, and answers with the first entry.
+      .onConflictDoNothing({ target: harvestEntries.idempotencyKey })
       .returning();
-    if (!entry) throw new Error('the entry was not saved');
+    if (!entry) {
+      const first = await findEntryByKey(tx, input.idempotencyKey);
+      if (!first || first.foragerId !== forager.id) throw new AppError(409, 'key-in-use', 'That idempotency key belongs to another entry; send a new key.', 'idempotencyKey');
+      return { entry: first, replayed: true, projection: null };
+    }
     return { entry, replayed: false, projection, parcelId: parcel.id, permit };
   });
 }

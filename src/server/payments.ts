@@ -22,6 +22,12 @@ function createStripeClient(apiUrl: string, secretKey: string) {
     throw new Error(`STRIPE_API_URL ${apiUrl} is plain HTTP; only a test key (sk_test_…) may be sent there.`);
   }
   const port = Number(api.port || (protocol === 'http' ? 80 : 443));
+  // The default webhook secret is public (it is in this repository): anyone could sign a "paid"
+  // event with it. It is accepted only while payments go to a fake on this machine.
+  const local = api.hostname === '127.0.0.1' || api.hostname === 'localhost' || api.hostname === '::1';
+  if (!local && STRIPE_WEBHOOK_SECRET.startsWith('whsec_tallywood_')) {
+    throw new Error('STRIPE_WEBHOOK_SECRET is still the local default; set the signing secret the provider gives for this webhook.');
+  }
   return new Stripe(secretKey, { host: api.hostname, port, protocol, maxNetworkRetries: 2, timeout: 20_000 });
 }
 
