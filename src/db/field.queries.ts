@@ -68,15 +68,17 @@ export async function usageOnParcel(
   const starts = sql`${`{${windows.map((w) => w.seasonStart ?? 'NULL').join(',')}}`}::date[]`;
   const ends = sql`${`{${windows.map((w) => w.seasonEnd ?? 'NULL').join(',')}}`}::date[]`;
   const dimensions = sql`${`{${windows.map((w) => w.dimension ?? 'NULL').join(',')}}`}::dimension[]`;
+  // A correction counts where its entry counted: on the original's day, visit and permit.
   const rows = await db.execute<{ species_id: string; visit: string; day: string; season: string; parcel_season: string; club_season: string }>(sql`
     select w.species_id,
-      coalesce(sum(e.base_quantity) filter (where e.visit_id = ${visitId}::uuid), 0)::text as visit,
-      coalesce(sum(e.base_quantity) filter (where e.forager_id = ${foragerId} and e.local_date = ${localDate}::date), 0)::text as day,
-      coalesce(sum(e.base_quantity) filter (where e.forager_id = ${foragerId} and e.local_date between w.season_start and w.season_end), 0)::text as season,
-      coalesce(sum(e.base_quantity) filter (where e.local_date between w.season_start and w.season_end), 0)::text as parcel_season,
-      coalesce(sum(e.base_quantity) filter (where e.permit_id = ${clubPermitId}::uuid and e.local_date between w.season_start and w.season_end), 0)::text as club_season
+      coalesce(sum(e.base_quantity) filter (where coalesce(o.visit_id, e.visit_id) = ${visitId}::uuid), 0)::text as visit,
+      coalesce(sum(e.base_quantity) filter (where e.forager_id = ${foragerId} and coalesce(o.local_date, e.local_date) = ${localDate}::date), 0)::text as day,
+      coalesce(sum(e.base_quantity) filter (where e.forager_id = ${foragerId} and coalesce(o.local_date, e.local_date) between w.season_start and w.season_end), 0)::text as season,
+      coalesce(sum(e.base_quantity) filter (where coalesce(o.local_date, e.local_date) between w.season_start and w.season_end), 0)::text as parcel_season,
+      coalesce(sum(e.base_quantity) filter (where coalesce(o.permit_id, e.permit_id) = ${clubPermitId}::uuid and coalesce(o.local_date, e.local_date) between w.season_start and w.season_end), 0)::text as club_season
     from unnest(${species}, ${starts}, ${ends}, ${dimensions}) as w(species_id, season_start, season_end, dimension)
     left join harvest_entries e on e.parcel_id = ${parcelId} and e.species_id = w.species_id and (w.dimension is null or e.dimension = w.dimension)
+    left join harvest_entries o on o.id = e.corrects_entry_id
     group by w.species_id`);
   const usage: Usage = {};
   for (const r of rows) {
