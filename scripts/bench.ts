@@ -15,7 +15,7 @@ import { findOrBuildServer, measureCheckIns, startServer, stopServer, type HttpF
 import { measureNaiveScan } from './bench/naive-scan';
 import { benchPositions, regionAreaKm2 } from './bench/parcels';
 import { report, type BenchResults } from './bench/report';
-import { describeParcels, prepareForager, seedBench } from './bench/seed';
+import { describeParcels, prepareMembers, prewarm, seedBench } from './bench/seed';
 import { coveringCounts, measureSql } from './bench/sql-lookup';
 import { ensureDatabase, ensurePostgres, localDir, root, say, startCluster } from './lib/setup.mjs';
 
@@ -57,6 +57,7 @@ try {
   const seed = await seedBench(sql, parcelTarget, say);
   say(seed.seeded > 0 ? `seeded ${seed.seeded} parcels in ${(seed.ms / 1000).toFixed(1)} s` : `${seed.existing} bench parcels already there; nothing seeded`);
   const parcels = await describeParcels(sql, regionAreaKm2());
+  say(`pre-warmed ${await prewarm(sql)} blocks of the parcels, permits and allowances into PostgreSQL's buffers`);
 
   say(`bare SQL lookups: ${sqlQueries} from ${concurrency} connections…`);
   const sqlFigures = await measureSql(sql, benchPositions(1, sqlQueries + 1000, parcelTarget), { concurrency, count: sqlQueries, maxMs });
@@ -66,7 +67,7 @@ try {
   const naivePositions = benchPositions(2, naivePoints, parcelTarget);
   const naive = await measureNaiveScan(sql, naivePositions, await coveringCounts(sql, naivePositions));
 
-  const token = await prepareForager(sql, seed.foragerId);
+  const tokens = await prepareMembers(sql, concurrency);
   let http: HttpFigures & { entry: string | null };
   let entry: string | null = null;
   try {
@@ -74,7 +75,7 @@ try {
     say(`starting ${entry.replace(`${root}/`, '')} on 127.0.0.1:4341 against the bench database…`);
     server = await startServer(entry, databaseUrl);
     say(`check-ins over HTTP: ${requests} from ${concurrency} clients…`);
-    http = { ...(await measureCheckIns(token, benchPositions(3, requests + 1000, parcelTarget), { concurrency, count: requests, maxMs })), entry };
+    http = { ...(await measureCheckIns(tokens, benchPositions(3, requests + 1000, parcelTarget), { concurrency, count: requests, maxMs })), entry };
   } catch (error) {
     http = { available: false, status: 0, reason: `the app could not be started or reached: ${error instanceof Error ? error.message : error}`, entry };
   }

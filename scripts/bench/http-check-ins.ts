@@ -82,23 +82,27 @@ export type HttpFigures =
       verdicts: Record<string, number>;
     };
 
-/** POST /api/check-ins on loopback: a probe, a warm-up, `count` requests from `concurrency` clients, then a serial pass. */
+/**
+ * POST /api/check-ins on loopback: a probe, a warm-up, `count` requests from `concurrency` clients
+ * (each signed in as a club member of its own), then a serial pass.
+ */
 export async function measureCheckIns(
-  sessionToken: string,
+  sessionTokens: string[],
   positions: BenchPosition[],
   { concurrency, count, maxMs }: { concurrency: number; count: number; maxMs: number },
 ): Promise<HttpFigures> {
   const agent = new Agent({ keepAlive: true, maxSockets: concurrency });
-  const cookie = `authjs.session-token=${sessionToken}`;
+  const cookies = sessionTokens.map((token) => `authjs.session-token=${token}`);
+  const cookieOf = (worker: number) => cookies[worker % cookies.length] as string;
   try {
-    const probe = await postCheckIn(agent, cookie, positions[0] as BenchPosition);
+    const probe = await postCheckIn(agent, cookieOf(0), positions[0] as BenchPosition);
     if (probe.status === 404) return { available: false, status: 404, reason: 'POST /api/check-ins answered 404: this build has no check-in endpoint yet' };
     if (probe.status < 200 || probe.status >= 300) return { available: false, status: probe.status, reason: `POST /api/check-ins answered ${probe.status}: ${probe.body.slice(0, 300)}` };
 
     const statuses: Record<string, number> = {};
     const verdicts: Record<string, number> = {};
-    const send = async (p: BenchPosition, tally: boolean) => {
-      const answer = await postCheckIn(agent, cookie, p);
+    const send = async (p: BenchPosition, worker: number, tally: boolean) => {
+      const answer = await postCheckIn(agent, cookieOf(worker), p);
       if (tally) {
         statuses[answer.status] = (statuses[answer.status] ?? 0) + 1;
         const verdict = /"verdict":"([a-z-]+)"/.exec(answer.body)?.[1] ?? 'none';
@@ -106,9 +110,9 @@ export async function measureCheckIns(
       }
       if (answer.status >= 300) throw new Error(`HTTP ${answer.status}: ${answer.body.slice(0, 200)}`);
     };
-    await runConcurrently(positions, { concurrency, count: 300, maxMs: 30_000 }, (p) => send(p, false));
-    const run = await runConcurrently(positions.slice(300), { concurrency, count, maxMs }, (p) => send(p, true));
-    const serial = await runConcurrently(positions.slice(300 + count), { concurrency: 1, count: Math.min(500, count), maxMs: maxMs / 2 }, (p) => send(p, false));
+    await runConcurrently(positions, { concurrency, count: 300, maxMs: 30_000 }, (p, worker) => send(p, worker, false));
+    const run = await runConcurrently(positions.slice(300), { concurrency, count, maxMs }, (p, worker) => send(p, worker, true));
+    const serial = await runConcurrently(positions.slice(300 + count), { concurrency: 1, count: Math.min(500, count), maxMs: maxMs / 2 }, (p, worker) => send(p, worker, false));
     return {
       available: true,
       concurrent: { ...summarise(run.latencies), concurrency, perSecond: run.latencies.length / (run.wallMs / 1000), failures: run.failures, firstError: run.firstError },

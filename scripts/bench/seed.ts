@@ -4,6 +4,10 @@ import { parcelName, syntheticParcel } from './parcels';
 
 export const benchForagerEmail = 'bench-forager@bench.invalid';
 const landownerCount = 1000;
+/** Members of the bench club, each an HTTP client of its own: one person does not check in eight times at once. */
+export const benchMemberCount = 32;
+const benchClubSlug = 'bench-club';
+const memberId = (n: number) => `bench-member-${String(n).padStart(2, '0')}`;
 const batchSize = 2000;
 /**
  * A PostgreSQL array literal of text (PostgreSQL manual §8.15.6: elements double-quoted, with
@@ -29,14 +33,25 @@ async function ensureBase(sql: Sql) {
     insert into species (slug, scientific_name, common_name, kind, usual_unit, usual_methods)
     values ('bench-chanterelle', 'Cantharellus cibarius', 'Golden chanterelle (bench)', 'mushroom', 'g', '{pick}'::method[])
     on conflict do nothing`;
+  await sql`insert into clubs (slug, name) values (${benchClubSlug}, 'Bench club') on conflict do nothing`;
+  const members = Array.from({ length: benchMemberCount }, (_, n) => memberId(n));
+  await sql`
+    insert into users (id, email, name, roles)
+    select id, id || '@bench.invalid', 'Bench member ' || id, '{forager}'::role[] from unnest(${textArray(members)}::text[]) as t(id)
+    on conflict do nothing`;
+  await sql`
+    insert into club_memberships (club_id, user_id, role, state, joined_at)
+    select c.id, t.id, 'member', 'active', now() from clubs c, unnest(${textArray(members)}::text[]) as t(id) where c.slug = ${benchClubSlug}
+    on conflict do nothing`;
   const [forager] = await sql<{ id: string }[]>`select id from users where email = ${benchForagerEmail}`;
   const [species] = await sql<{ id: string }[]>`select id from species where slug = 'bench-chanterelle'`;
-  if (!forager || !species) throw new Error('the bench forager or species is missing');
-  return { foragerId: forager.id, speciesId: species.id };
+  const [club] = await sql<{ id: string }[]>`select id from clubs where slug = ${benchClubSlug}`;
+  if (!forager || !species || !club) throw new Error('the bench forager, club or species is missing');
+  return { foragerId: forager.id, speciesId: species.id, clubId: club.id };
 }
 
-/** One batch: parcels, one year-round allowance with a daily limit each, one active permit each. */
-async function insertBatch(sql: Sql, { from, to, foragerId, speciesId }: { from: number; to: number; foragerId: string; speciesId: string }) {
+/** One batch: parcels, one year-round allowance with a daily limit each, an active permit each for the forager and for the club. */
+async function insertBatch(sql: Sql, { from, to, foragerId, speciesId, clubId }: { from: number; to: number; foragerId: string; speciesId: string; clubId: string }) {
   const parcelIds: string[] = [];
   const owners: string[] = [];
   const names: string[] = [];
@@ -68,7 +83,19 @@ async function insertBatch(sql: Sql, { from, to, foragerId, speciesId }: { from:
     await tx`
       insert into permits (parcel_id, holder_user_id, state, starts_on, ends_on)
       select id, ${foragerId}::text, 'active'::permit_state, '2020-01-01'::date, '2099-12-31'::date from unnest(${parcelArray}::uuid[]) as p(id)`;
+    await tx`
+      insert into permits (parcel_id, holder_club_id, state, starts_on, ends_on)
+      select id, ${clubId}::uuid, 'active'::permit_state, '2020-01-01'::date, '2099-12-31'::date from unnest(${parcelArray}::uuid[]) as p(id)`;
   });
+}
+
+/** Bench databases seeded before the club existed: its permits on every bench parcel that lacks one. */
+async function topUpClubPermits(sql: Sql, clubId: string) {
+  const added = await sql`
+    insert into permits (parcel_id, holder_club_id, state, starts_on, ends_on)
+    select p.id, ${clubId}::uuid, 'active'::permit_state, '2020-01-01'::date, '2099-12-31'::date from parcels p
+    where p.name like 'Bench parcel %' and not exists (select 1 from permits x where x.parcel_id = p.id and x.holder_club_id = ${clubId}::uuid)`;
+  return added.count;
 }
 
 /**
@@ -78,7 +105,7 @@ async function insertBatch(sql: Sql, { from, to, foragerId, speciesId }: { from:
  */
 export async function seedBench(sql: Sql, target: number, log: (line: string) => void): Promise<SeedResult> {
   const started = performance.now();
-  const { foragerId, speciesId } = await ensureBase(sql);
+  const { foragerId, speciesId, clubId } = await ensureBase(sql);
   const [row] = await sql<{ next: number }[]>`
     select coalesce(max(substring(name from 14)::int) + 1, 0)::int as next from parcels where name like 'Bench parcel %'`;
   const existing = row?.next ?? 0;
@@ -86,14 +113,16 @@ export async function seedBench(sql: Sql, target: number, log: (line: string) =>
     log(`seeding bench parcels ${existing}…${target - 1} in batches of ${batchSize}…`);
     let inFlight: Promise<void> | null = null;
     for (let from = existing; from < target; from += batchSize) {
-      const batch = insertBatch(sql, { from, to: Math.min(target, from + batchSize), foragerId, speciesId });
+      const batch = insertBatch(sql, { from, to: Math.min(target, from + batchSize), foragerId, speciesId, clubId });
       await inFlight;
       inFlight = batch;
       if (from > existing && (from - existing) % (batchSize * 10) === 0) log(`  ${from} parcels (${(performance.now() - started) / 1000} s)`);
     }
     await inFlight;
-    await sql`analyze`;
   }
+  const toppedUp = await topUpClubPermits(sql, clubId);
+  if (toppedUp > 0) log(`added the bench club's permit on ${toppedUp} parcels`);
+  if (existing < target || toppedUp > 0) await sql`analyze`;
   return { seeded: Math.max(0, target - existing), existing, ms: performance.now() - started, foragerId };
 }
 
@@ -123,12 +152,32 @@ export async function describeParcels(sql: Sql, regionKm2: number): Promise<Parc
   };
 }
 
-/** A fresh session for the bench forager, and a clean slate of visits and check-ins so runs compare. */
-export async function prepareForager(sql: Sql, foragerId: string): Promise<string> {
-  const token = `bench-${randomUUID()}`;
-  await sql`delete from sessions where user_id = ${foragerId}`;
-  await sql`insert into sessions (session_token, user_id, expires) values (${token}, ${foragerId}, now() + interval '1 day')`;
-  await sql`delete from check_ins where forager_id = ${foragerId}`;
-  await sql`delete from visits where forager_id = ${foragerId} and id not in (select visit_id from harvest_entries where visit_id is not null)`;
-  return token;
+/**
+ * A fresh session for each bench club member (one per HTTP client), and a clean slate of their
+ * visits and check-ins so that runs compare.
+ */
+export async function prepareMembers(sql: Sql, count: number): Promise<string[]> {
+  if (count > benchMemberCount) throw new Error(`at most ${benchMemberCount} concurrent clients (one bench member each)`);
+  const ids = Array.from({ length: count }, (_, n) => memberId(n));
+  const tokens = ids.map(() => `bench-${randomUUID()}`);
+  const members = textArray(ids);
+  await sql`delete from sessions where user_id = any(${members}::text[])`;
+  await sql`
+    insert into sessions (session_token, user_id, expires)
+    select t.token, t.id, now() + interval '1 day' from unnest(${textArray(tokens)}::text[], ${members}::text[]) as t(token, id)`;
+  await sql`delete from check_ins where forager_id = any(${members}::text[])`;
+  await sql`delete from visits where forager_id = any(${members}::text[]) and id not in (select visit_id from harvest_entries where visit_id is not null)`;
+  return tokens;
+}
+
+/**
+ * Loads the parcels, their indexes and what a check-in reads by key into PostgreSQL's buffers
+ * (pg_prewarm, shipped with PostgreSQL), so that every measurement sees the steady state of a
+ * server that has been answering for a while rather than the first reads from disk.
+ */
+export async function prewarm(sql: Sql): Promise<number> {
+  await sql`create extension if not exists pg_prewarm`;
+  const relations = ['parcels', 'parcels_boundary_gist', 'parcels_boundary_geog_gist', 'permits', 'permits_parcel', 'allowances', 'allowances_parcel_species', 'limits', 'limits_one_per_scope', 'species'];
+  const [row] = await sql<{ blocks: number }[]>`select sum(pg_prewarm(r::regclass))::int as blocks from unnest(${textArray(relations)}::text[]) as t(r)`;
+  return row?.blocks ?? 0;
 }

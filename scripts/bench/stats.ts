@@ -24,13 +24,13 @@ export function summarise(samples: number[]): Latencies {
 }
 
 /**
- * Runs `task` from `concurrency` loops until `count` tasks have started or `maxMs` has passed,
+ * Runs `task` from `concurrency` loops (numbered from 0, passed to the task) until `count` tasks have started or `maxMs` has passed,
  * and times each one. Answers the latencies (ms), the wall time and how many failed.
  */
 export async function runConcurrently<T>(
   items: readonly T[],
   { concurrency, count, maxMs }: { concurrency: number; count: number; maxMs: number },
-  task: (item: T) => Promise<void>,
+  task: (item: T, worker: number) => Promise<void>,
 ): Promise<{ latencies: number[]; wallMs: number; failures: number; firstError: string | null }> {
   const latencies: number[] = [];
   let next = 0;
@@ -38,13 +38,13 @@ export async function runConcurrently<T>(
   let firstError: string | null = null;
   const started = performance.now();
   const deadline = started + maxMs;
-  const loop = async () => {
+  const loop = async (_: unknown, worker: number) => {
     while (next < count && performance.now() < deadline) {
       const item = items[next % items.length] as T;
       next += 1;
       const t0 = performance.now();
       try {
-        await task(item);
+        await task(item, worker);
         latencies.push(performance.now() - t0);
       } catch (error) {
         failures += 1;

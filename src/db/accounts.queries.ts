@@ -1,35 +1,34 @@
 import { and, asc, eq, gt, isNull, sql } from 'drizzle-orm';
 import type { AccountRole, Actor } from '../lib/actor';
-import type { Executor } from './client';
+import { executePrepared, type Executor } from './client';
 import { clubMemberships, sessions, users } from './schema';
+
+/**
+ * Every signed-in request runs this, so it is a prepared statement with a generic plan: the session
+ * by its key first, then the person by theirs, never a join that could scan users
+ * (tests/integration/check-in-plans.test.ts).
+ */
+export function actorBySessionQuery({ sessionToken, now }: { sessionToken: string; now: Date }) {
+  return sql`
+    select u.id, u.email, u.name, u.roles::text[] as roles, u.landowner_verified_at is not null as verified,
+      array(select m.club_id from club_memberships m where m.user_id = u.id and m.state = 'active' and m.role = 'steward') as steward_of,
+      array(select m.club_id from club_memberships m where m.user_id = u.id and m.state = 'active') as member_of
+    from users u
+    where u.id = (select s.user_id from sessions s where s.session_token = ${sessionToken}::text and s.expires > ${now.toISOString()}::timestamptz)`;
+}
 
 /** The person behind a session token, with their stewardships, or null when the session is gone. */
 export async function findActorBySession(db: Executor, { sessionToken, now }: { sessionToken: string; now: Date }): Promise<Actor | null> {
-  const rows = await db
-    .select({
-      id: users.id,
-      email: users.email,
-      name: users.name,
-      roles: users.roles,
-      landownerVerifiedAt: users.landownerVerifiedAt,
-      stewardOf: sql<string[]>`coalesce(array_agg(${clubMemberships.clubId}) filter (where ${clubMemberships.role} = 'steward'), '{}')`,
-      memberOf: sql<string[]>`coalesce(array_agg(${clubMemberships.clubId}) filter (where ${clubMemberships.clubId} is not null), '{}')`,
-    })
-    .from(sessions)
-    .innerJoin(users, eq(users.id, sessions.userId))
-    .leftJoin(clubMemberships, and(eq(clubMemberships.userId, users.id), eq(clubMemberships.state, 'active')))
-    .where(and(eq(sessions.sessionToken, sessionToken), gt(sessions.expires, now)))
-    .groupBy(users.id);
-  const row = rows[0];
+  const [row] = await executePrepared<{ id: string; email: string; name: string | null; roles: AccountRole[]; verified: boolean; steward_of: string[]; member_of: string[] }>(db, actorBySessionQuery({ sessionToken, now }));
   if (!row) return null;
   return {
     id: row.id,
     email: row.email,
     name: row.name,
     roles: row.roles,
-    landownerVerified: row.landownerVerifiedAt !== null,
-    stewardOfClubIds: row.stewardOf,
-    memberOfClubIds: row.memberOf,
+    landownerVerified: row.verified,
+    stewardOfClubIds: row.steward_of,
+    memberOfClubIds: row.member_of,
   };
 }
 

@@ -1,11 +1,29 @@
+import type { SQL } from 'drizzle-orm';
 import { drizzle } from 'drizzle-orm/postgres-js';
+import { PgDialect } from 'drizzle-orm/pg-core';
 import postgres from 'postgres';
 import * as schema from './schema';
 
+/**
+ * The statements a check-in runs on every request go through a small second pool whose sessions
+ * use generic plans (`plan_cache_mode`, PostgreSQL manual §20.7.2): PostgreSQL then plans each
+ * prepared statement once per connection instead of on every call, which for the candidate query
+ * cost as much as running it. Only statements whose plan does not depend on their values belong
+ * there (tests/integration/check-in-plans.test.ts checks their generic plans). Its writes are
+ * records, not the ledger, so they do not wait for the disk flush (`synchronous_commit = off`); a
+ * harvest entry's own commit flushes them first, as WAL is written in order.
+ */
+const hotPools = new WeakMap<object, ReturnType<typeof postgres>>();
+
 /** A Drizzle database over postgres.js. Scripts and tests make their own; the app uses src/db/index.ts. */
-export function createDb(url: string, { max = 10 }: { max?: number } = {}) {
+export function createDb(url: string, { max = 10, hotMax = 4 }: { max?: number; hotMax?: number } = {}) {
   const client = postgres(url, { max, onnotice: () => {} });
-  return drizzle(client, { schema });
+  const db = drizzle(client, { schema });
+  // Made at once but connecting only when first used; Drizzle's drizzle() sets the same value parsers on it.
+  const hot = postgres(url, { max: hotMax, onnotice: () => {}, connection: { plan_cache_mode: 'force_generic_plan', synchronous_commit: 'off' } });
+  drizzle(hot);
+  hotPools.set(db, hot);
+  return db;
 }
 
 export type Db = ReturnType<typeof createDb>;
@@ -15,5 +33,19 @@ export type Tx = Parameters<Parameters<Db['transaction']>[0]>[0];
 export type Executor = Db | Tx;
 
 export async function closeDb(db: Db) {
-  await db.$client.end({ timeout: 5 });
+  await Promise.all([db.$client.end({ timeout: 5 }), hotPools.get(db)?.end({ timeout: 5 })]);
+}
+
+const dialect = new PgDialect();
+
+/**
+ * Runs a raw statement of the check-in path as a prepared statement on the hot pool: postgres.js
+ * keeps it per connection and PostgreSQL plans it once (Drizzle's `execute` never prepares).
+ * Inside a transaction it runs on the transaction's connection, as `execute` does.
+ */
+export async function executePrepared<Row extends Record<string, unknown>>(db: Executor, query: SQL): Promise<Row[]> {
+  const hot = hotPools.get(db);
+  if (!hot) return (await db.execute<Row>(query)) as unknown as Row[];
+  const { sql, params } = dialect.sqlToQuery(query);
+  return (await hot.unsafe(sql, params as postgres.ParameterOrJSON<never>[], { prepare: true })) as unknown as Row[];
 }

@@ -5,7 +5,7 @@ import { AppError, invalidInput, notFound } from '../lib/errors';
 import { localDate } from '../lib/local-time';
 import { toBaseScaled, toScaled, units } from '../lib/units';
 import type { HarvestInput } from '../lib/field.schemas';
-import type { Db, Executor, Tx } from './client';
+import { executePrepared, type Db, type Executor, type Tx } from './client';
 import { loadParcelFactsNear, usageOnParcel } from './field.queries';
 import { allowances, checkIns, harvestEntries, visits } from './schema';
 
@@ -61,6 +61,41 @@ async function decide(db: Executor, s: Situation & { visitId: string | null }) {
   return { ...(await withTallies(db, s, parcel, answer, s.visitId)), parcel };
 }
 
+/**
+ * The visit bookkeeping and the check-in log of one check-in, as one statement, so one implicit
+ * transaction and one round trip. Visits past their local day end then; one person being on one
+ * parcel at a time, a clear check-in elsewhere ends any other open visit; today's open visit here
+ * continues, or one opens; and the check-in is logged. The visits it ends and the one it may
+ * continue are disjoint (another parcel or an earlier day vs. today here), so the statement's
+ * single snapshot is enough. Its generic plan is checked in tests/integration/check-in-plans.test.ts.
+ */
+export function checkInRecordQuery({ forager, position, accuracyM, instant, clearId, first }: { forager: Forager; position: LonLat; accuracyM: number; instant: string; clearId: string | null; first: CheckInAnswer }) {
+  return sql`
+  with ended as (
+    update visits v set
+      ended_at = case when o.ends <= ${instant}::timestamptz then o.ends else ${instant}::timestamptz end,
+      ended_by = case when o.ends <= ${instant}::timestamptz then 'end-of-day'::visit_end else 'check-out'::visit_end end
+    from (select x.id, x.parcel_id, ((x.local_date + 1)::timestamp at time zone (select p.time_zone from parcels p where p.id = x.parcel_id)) as ends
+          from visits x where x.ended_at is null and x.forager_id = ${forager.id}::text) o
+    where v.id = o.id and (o.ends <= ${instant}::timestamptz or (${clearId}::uuid is not null and o.parcel_id <> ${clearId}::uuid))
+    returning v.id),
+  open as (
+    select id from visits where forager_id = ${forager.id}::text and parcel_id = ${clearId}::uuid and ended_at is null and local_date = ${first.localDate}::date
+    order by started_at desc limit 1),
+  created as (
+    insert into visits (forager_id, parcel_id, permit_id, local_date, started_at)
+    select ${forager.id}::text, ${clearId}::uuid, ${first.permitId}::uuid, ${first.localDate}::date, ${instant}::timestamptz
+    where ${clearId}::uuid is not null and not exists (select 1 from open)
+    returning id),
+  visit as (select id from open union all select id from created),
+  log as (
+    insert into check_ins (forager_id, position, accuracy_m, verdict, parcel_id, visit_id, at)
+    values (${forager.id}::text, ST_SetSRID(ST_MakePoint(${position[0]}::float8, ${position[1]}::float8), 4326), ${accuracyM}::float8, ${first.verdict}::verdict,
+      ${first.parcel?.id ?? null}::uuid, (select id from visit limit 1), ${instant}::timestamptz)
+    returning visit_id)
+  select visit_id from log`;
+}
+
 /** "I am here": the verdict, and a visit opened (or continued) when harvest is allowed. */
 export async function checkIn(db: Db, { forager, position, accuracyM, now }: { forager: Forager; position: LonLat; accuracyM: number; now: Date }) {
   const situation = { forager, position, accuracyM, now };
@@ -68,38 +103,8 @@ export async function checkIn(db: Db, { forager, position, accuracyM, now }: { f
   const clear = first.verdict === 'clear' && parcel ? parcel : null;
   const instant = now.toISOString();
   const clearId = clear?.id ?? null;
-  const visitId = await db.transaction(async (tx) => {
-    // Visits and the check-in log are records, not the ledger: they may wait for the next disk
-    // flush (a harvest entry's own commit flushes them first, as WAL is written in order).
-    await tx.execute(sql`set local synchronous_commit = off`);
-    // Visits past their local day end then; and, one person being on one parcel at a time, a clear
-    // check-in elsewhere ends any other open visit.
-    await tx.execute(sql`
-      update visits v set
-        ended_at = case when o.ends <= ${instant}::timestamptz then o.ends else ${instant}::timestamptz end,
-        ended_by = case when o.ends <= ${instant}::timestamptz then 'end-of-day'::visit_end else 'check-out'::visit_end end
-      from (select x.id, x.parcel_id, ((x.local_date + 1)::timestamp at time zone (select p.time_zone from parcels p where p.id = x.parcel_id)) as ends
-            from visits x where x.ended_at is null and x.forager_id = ${forager.id}) o
-      where v.id = o.id and (o.ends <= ${instant}::timestamptz or (${clearId}::uuid is not null and o.parcel_id <> ${clearId}::uuid))`);
-    // Continue today's open visit here, or open one; and log the check-in, in one statement.
-    const [row] = await tx.execute<{ visit_id: string | null }>(sql`
-      with open as (
-        select id from visits where forager_id = ${forager.id} and parcel_id = ${clearId}::uuid and ended_at is null and local_date = ${first.localDate}::date
-        order by started_at desc limit 1),
-      created as (
-        insert into visits (forager_id, parcel_id, permit_id, local_date, started_at)
-        select ${forager.id}, ${clearId}::uuid, ${first.permitId}::uuid, ${first.localDate}::date, ${instant}::timestamptz
-        where ${clearId}::uuid is not null and not exists (select 1 from open)
-        returning id),
-      visit as (select id from open union all select id from created),
-      log as (
-        insert into check_ins (forager_id, position, accuracy_m, verdict, parcel_id, visit_id, at)
-        values (${forager.id}, ST_SetSRID(ST_MakePoint(${position[0]}, ${position[1]}), 4326), ${accuracyM}, ${first.verdict}::verdict,
-          ${first.parcel?.id ?? null}::uuid, (select id from visit limit 1), ${instant}::timestamptz)
-        returning visit_id)
-      select visit_id from log`);
-    return row?.visit_id ?? null;
-  });
+  const [row] = await executePrepared<{ visit_id: string | null }>(db, checkInRecordQuery({ forager, position, accuracyM, instant, clearId, first }));
+  const visitId = row?.visit_id ?? null;
   const answer = clear ? (await withTallies(db, situation, clear, first, visitId)).answer : first;
   return { ...answer, visitId };
 }

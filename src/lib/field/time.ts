@@ -18,13 +18,24 @@ function formatter(timeZone: string): Intl.DateTimeFormat {
   return format;
 }
 
+/**
+ * The last answer per zone, by exact instant: one check-in asks about the same instant many times,
+ * and formatToParts is the slow part of the verdict.
+ */
+const lastWallClock = new Map<string, { ms: number; wall: { date: string; time: string } }>();
+
 /** The wall clock at an instant in a zone: { date: 'YYYY-MM-DD', time: 'HH:MM:SS' }. */
 export function localWallClock(instant: Date, timeZone: string): { date: string; time: string } {
-  if (Number.isNaN(instant.getTime())) throw new RangeError('not a valid instant');
+  const ms = instant.getTime();
+  if (Number.isNaN(ms)) throw new RangeError('not a valid instant');
+  const last = lastWallClock.get(timeZone);
+  if (last && last.ms === ms) return { ...last.wall };
   const parts: Record<string, string> = {};
   for (const { type, value } of formatter(timeZone).formatToParts(instant)) parts[type] = value;
   const year = (parts.year ?? '').padStart(4, '0');
-  return { date: `${year}-${parts.month}-${parts.day}`, time: `${parts.hour}:${parts.minute}:${parts.second}` };
+  const wall = { date: `${year}-${parts.month}-${parts.day}`, time: `${parts.hour}:${parts.minute}:${parts.second}` };
+  lastWallClock.set(timeZone, { ms, wall });
+  return { ...wall };
 }
 
 /** The parcel-local calendar date ('YYYY-MM-DD') of an instant in an IANA time zone. */
