@@ -75,7 +75,7 @@ try {
     say(`starting ${entry.replace(`${root}/`, '')} on 127.0.0.1:4341 against the bench database…`);
     server = await startServer(entry, databaseUrl);
     say(`check-ins over HTTP: ${requests} from ${concurrency} clients…`);
-    http = { ...(await measureCheckIns(tokens, benchPositions(3, requests + 1000, parcelTarget), { concurrency, count: requests, maxMs })), entry };
+    http = { ...(await measureCheckIns(server.pid, tokens, benchPositions(3, requests + 1000, parcelTarget), { concurrency, count: requests, maxMs })), entry };
   } catch (error) {
     http = { available: false, status: 0, reason: `the app could not be started or reached: ${error instanceof Error ? error.message : error}`, entry };
   }

@@ -1,5 +1,5 @@
 import type { ChildProcess } from 'node:child_process';
-import { existsSync, statSync } from 'node:fs';
+import { existsSync, readFileSync, statSync } from 'node:fs';
 import { Agent, request } from 'node:http';
 import { join } from 'node:path';
 import { bin, localDir, root, run, startChild, waitForHttp } from '../lib/setup.mjs';
@@ -54,6 +54,29 @@ export async function stopServer(server: ChildProcess | null) {
 
 type Answer = { status: number; body: string };
 
+/** CPU seconds (user + system) a process has used, from /proc (proc(5): utime and stime in clock ticks, 100 a second); null off Linux. */
+function cpuSeconds(pid: number | undefined): number | null {
+  try {
+    const fields = readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1]?.split(' ') ?? [];
+    return (Number(fields[11]) + Number(fields[12])) / 100;
+  } catch {
+    return null;
+  }
+}
+
+function get(agent: Agent, path: string): Promise<Answer> {
+  return new Promise((resolve, reject) => {
+    const req = request(`${origin}${path}`, { method: 'GET', agent }, (res) => {
+      const chunks: Buffer[] = [];
+      res.on('data', (chunk: Buffer) => chunks.push(chunk));
+      res.on('end', () => resolve({ status: res.statusCode ?? 0, body: Buffer.concat(chunks).toString('utf8') }));
+      res.on('error', reject);
+    });
+    req.on('error', reject);
+    req.end();
+  });
+}
+
 function postCheckIn(agent: Agent, cookie: string, { longitude, latitude, accuracyM }: BenchPosition): Promise<Answer> {
   const payload = JSON.stringify({ longitude, latitude, accuracyM });
   return new Promise((resolve, reject) => {
@@ -76,8 +99,10 @@ export type HttpFigures =
   | { available: false; status: number; reason: string }
   | {
       available: true;
-      concurrent: Latencies & { concurrency: number; perSecond: number; failures: number; firstError: string | null };
+      concurrent: Latencies & { concurrency: number; perSecond: number; failures: number; firstError: string | null; serverCpuMsPerRequest: number | null };
       serial: Latencies;
+      /** GET /api/me signed out: a 401 from the middleware and endpoint with no database work, the server's floor. */
+      floor: Latencies & { perSecond: number };
       statuses: Record<string, number>;
       verdicts: Record<string, number>;
     };
@@ -87,6 +112,7 @@ export type HttpFigures =
  * (each signed in as a club member of its own), then a serial pass.
  */
 export async function measureCheckIns(
+  serverPid: number | undefined,
   sessionTokens: string[],
   positions: BenchPosition[],
   { concurrency, count, maxMs }: { concurrency: number; count: number; maxMs: number },
@@ -111,12 +137,26 @@ export async function measureCheckIns(
       if (answer.status >= 300) throw new Error(`HTTP ${answer.status}: ${answer.body.slice(0, 200)}`);
     };
     await runConcurrently(positions, { concurrency, count: 300, maxMs: 30_000 }, (p, worker) => send(p, worker, false));
+    const cpuBefore = cpuSeconds(serverPid);
     const run = await runConcurrently(positions.slice(300), { concurrency, count, maxMs }, (p, worker) => send(p, worker, true));
+    const cpuAfter = cpuSeconds(serverPid);
     const serial = await runConcurrently(positions.slice(300 + count), { concurrency: 1, count: Math.min(500, count), maxMs: maxMs / 2 }, (p, worker) => send(p, worker, false));
+    const floor = await runConcurrently(positions, { concurrency, count, maxMs: maxMs / 2 }, async () => {
+      const answer = await get(agent, '/api/me');
+      if (answer.status !== 401) throw new Error(`GET /api/me signed out answered ${answer.status}`);
+    });
     return {
       available: true,
-      concurrent: { ...summarise(run.latencies), concurrency, perSecond: run.latencies.length / (run.wallMs / 1000), failures: run.failures, firstError: run.firstError },
+      concurrent: {
+        ...summarise(run.latencies),
+        concurrency,
+        perSecond: run.latencies.length / (run.wallMs / 1000),
+        failures: run.failures,
+        firstError: run.firstError,
+        serverCpuMsPerRequest: cpuBefore === null || cpuAfter === null ? null : ((cpuAfter - cpuBefore) * 1000) / Math.max(1, run.latencies.length),
+      },
       serial: summarise(serial.latencies),
+      floor: { ...summarise(floor.latencies), perSecond: floor.latencies.length / (floor.wallMs / 1000) },
       statuses,
       verdicts,
     };

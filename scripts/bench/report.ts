@@ -33,6 +33,7 @@ function rows(r: BenchResults): string[][] {
   if (http.available) {
     out.push(['POST /api/check-ins over loopback', `${http.concurrent.concurrency} clients`, ms(http.concurrent.p50), ms(http.concurrent.p95), rate(http.concurrent.perSecond)]);
     out.push(['POST /api/check-ins, one client', 'serial', ms(http.serial.p50), ms(http.serial.p95), rate(1000 / http.serial.mean)]);
+    out.push(['floor: GET /api/me signed out (no database)', `${http.concurrent.concurrency} clients`, ms(http.floor.p50), ms(http.floor.p95), rate(http.floor.perSecond)]);
   }
   return out;
 }
@@ -55,7 +56,8 @@ function summaryLines(r: BenchResults): string[] {
     `SQL: ${r.sql.meanCandidates.toFixed(2)} candidates per lookup, ${(100 * r.sql.coveredShare).toFixed(0)} % of positions inside a parcel; GiST index on boundary::geography used: ${r.sql.indexUsed ? 'yes' : 'NO'}`,
     `naive scan: boundaries loaded in ${(r.naive.loadMs / 1000).toFixed(1)} s; its answers match PostGIS ST_Covers at ${r.naive.matchesPostgis} of ${r.naive.points} points`,
     r.http.available
-      ? `endpoint: ${r.http.concurrent.count} requests measured (${r.http.concurrent.failures} failed), statuses ${JSON.stringify(r.http.statuses)}, verdicts ${JSON.stringify(r.http.verdicts)}; server ${r.http.entry}`
+      ? `endpoint: ${r.http.concurrent.count} requests measured (${r.http.concurrent.failures} failed), statuses ${JSON.stringify(r.http.statuses)}, verdicts ${JSON.stringify(r.http.verdicts)}; ` +
+        `app server CPU ${r.http.concurrent.serverCpuMsPerRequest === null ? '—' : r.http.concurrent.serverCpuMsPerRequest.toFixed(2)} ms per check-in; server ${r.http.entry}`
       : `endpoint: NOT MEASURED — ${r.http.reason}${r.http.entry ? ` (server ${r.http.entry})` : ''}`,
     `ratios: endpoint p50 / bare SQL p50 = ${times(r.ratios.endpointOverSqlP50)}; naive scan / endpoint p50 = ${times(r.ratios.naiveOverEndpointP50)}; naive scan / bare SQL p50 = ${times(r.ratios.naiveOverSqlP50)}`,
   ];
