@@ -13,7 +13,8 @@ const pageRules: [prefix: string, action: Action][] = [
   ['/requests', 'parcel:list-own'],
   ['/my-permits', 'permit:request'],
   ['/ledger', 'ledger:read-own'],
-  ['/club', 'club:read'],
+  ['/club', 'club:join'],
+  ['/reports', 'report:read'],
   ['/catalogue', 'catalogue:read'],
   ['/accounts', 'account:list'],
 ];

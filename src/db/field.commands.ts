@@ -1,13 +1,13 @@
 import { and, desc, eq, isNull, sql } from 'drizzle-orm';
-import { currentSeason, decideCheckIn, projectEntry } from '../lib/field';
-import type { CheckInAnswer, Forager, LonLat, ParcelFacts, Usage } from '../lib/field/types';
+import { currentSeason, decideCheckIn, projectEntry, talliesFor } from '../lib/field';
+import type { CheckInAnswer, Forager, LimitScope, LonLat, ParcelFacts, Tally, TallyState, Usage } from '../lib/field/types';
 import { AppError, invalidInput, notFound } from '../lib/errors';
 import { localDate } from '../lib/local-time';
 import { toBaseScaled, toScaled, units } from '../lib/units';
 import type { HarvestInput } from '../lib/field.schemas';
 import { executePrepared, type Db, type Executor, type Tx } from './client';
 import { loadParcelFactsNear, usageOnParcel } from './field.queries';
-import { allowances, checkIns, harvestEntries, visits } from './schema';
+import { allowances, checkIns, flags, harvestEntries, visits } from './schema';
 
 /**
  * Visits left open close themselves at the end of their parcel-local day (DST-correct in SQL).
@@ -166,7 +166,8 @@ export async function recordHarvest(db: Db, { forager, input, now, preview = fal
     // Taking away (a negative correction) never breaches; adding, even as a correction, is checked.
     const reversing = input.quantity.startsWith('-');
     // A unit of another dimension throws UnitMismatch: a 400 naming the unit field.
-    const projection = projectEntry(allowance, usage, { quantity: input.quantity, unit: input.unit }, { forager, permit, thresholdPercent: parcel.nearingThresholdPercent });
+    const tallyContext = { forager, permit, thresholdPercent: parcel.nearingThresholdPercent };
+    const projection = projectEntry(allowance, usage, { quantity: input.quantity, unit: input.unit }, tallyContext);
     const breach = projection.wouldBreach && !reversing;
     if (preview) return { entry: null, replayed: false, projection };
     if (breach && !input.acknowledgeOver) {
@@ -227,8 +228,41 @@ export async function recordHarvest(db: Db, { forager, input, now, preview = fal
       if (!first || first.foragerId !== forager.id) throw new AppError(409, 'key-in-use', 'That idempotency key belongs to another entry; send a new key.', 'idempotencyKey');
       return { entry: first, replayed: true, projection: null };
     }
+    const flag = flagFor(talliesFor(allowance, usage, tallyContext), projection.tallies, breach);
+    if (flag) {
+      await tx.insert(flags).values({
+        kind: flag.kind,
+        entryId: entry.id,
+        parcelId: parcel.id,
+        speciesId: input.speciesId,
+        foragerId: forager.id,
+        permitId: permit?.id ?? null,
+        scopes: flag.scopes,
+        worstState: flag.worstState,
+        tallies: projection.tallies.map((t) => ({ scope: t.scope, state: t.state, used: t.used, limit: t.limit.quantity, unit: t.limit.unit, percent: t.percent })),
+        createdAt: now,
+      });
+    }
     return { entry, replayed: false, projection, parcelId: parcel.id, permit };
   });
+}
+
+const stateRank: Record<TallyState, number> = { within: 0, nearing: 1, reached: 2, over: 3 };
+
+/**
+ * Whether an entry raises a flag: a breach always does; otherwise an entry that moves a tally up
+ * into nearing or reached. Entries that keep a tally where it already stood raise none, so a
+ * steward sees each crossing once.
+ */
+export function flagFor(before: Tally[], after: Tally[], breach: boolean): { kind: 'breach' | 'nearing'; scopes: LimitScope[]; worstState: TallyState } | null {
+  const raised = after.filter((t) => {
+    const was = before.find((b) => b.scope === t.scope)?.state ?? 'within';
+    return stateRank[t.state] > stateRank[was] && t.state !== 'within';
+  });
+  if (!breach && raised.length === 0) return null;
+  const scopes = (breach ? after.filter((t) => t.state === 'over' || raised.includes(t)) : raised).map((t) => t.scope);
+  const worstState = after.map((t) => t.state).reduce<TallyState>((worst, s) => (stateRank[s] > stateRank[worst] ? s : worst), 'within');
+  return { kind: breach ? 'breach' : 'nearing', scopes, worstState };
 }
 
 /** A quantity in its dimension's base unit as a decimal string (exact: see src/lib/units.ts). */

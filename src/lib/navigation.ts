@@ -10,7 +10,7 @@ export const navigation: NavItem[] = [
   { href: '/ledger', label: 'My ledger', action: 'ledger:read-own' },
   { href: '/land', label: 'Land', action: 'parcel:list-own' },
   { href: '/requests', label: 'Requests', action: 'parcel:list-own' },
-  { href: '/club', label: 'Club', action: 'club:read' },
+  { href: '/club', label: 'Club', action: 'club:join' },
   { href: '/catalogue', label: 'Catalogue', action: 'catalogue:read' },
   { href: '/accounts', label: 'Accounts', action: 'account:list' },
 ];

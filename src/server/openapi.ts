@@ -1,3 +1,4 @@
+import { answerMembershipSchema, flagNoteSchema, inviteMemberSchema, manageMembershipSchema, sendSeasonReportSchema } from '../lib/clubs.schemas';
 import { z } from 'zod';
 import { signInSchema, signUpSchema } from '../lib/accounts.schemas';
 import { allowanceSchema, closureSchema, hazardSchema, newParcelSchema, parcelUpdateSchema, termsSchema, zoneSchema } from '../lib/land.schemas';
@@ -46,6 +47,19 @@ const routes: Route[] = [
   { method: 'get', path: '/api/species', summary: 'The species catalogue with cautions', tag: 'catalogue' },
   { method: 'get', path: '/api/open-parcels', summary: 'Parcels open to access requests', tag: 'permits' },
   { method: 'post', path: '/api/access-requests', summary: 'Ask for access to a parcel', body: accessRequestSchema, tag: 'permits' },
+  { method: 'post', path: '/api/clubs/{id}/members', summary: 'Invite someone to the club by e-mail (steward)', body: inviteMemberSchema, tag: 'clubs' },
+  { method: 'post', path: '/api/clubs/{id}/members/{membershipId}', summary: 'Remove a member or change their role (steward)', body: manageMembershipSchema, tag: 'clubs' },
+  { method: 'post', path: '/api/memberships/{id}', summary: 'Accept or decline your invitation, or leave the club', body: answerMembershipSchema, tag: 'clubs' },
+  { method: 'get', path: '/api/clubs/{id}/audit', summary: "The club's tallies by parcel, species and member against every limit (query: asOf)", tag: 'audit' },
+  { method: 'get', path: '/api/clubs/{id}/audit/entries', summary: 'The entries behind one club tally, without positions (query: parcelId, speciesId, foragerId, permitId, asOf)', tag: 'audit' },
+  { method: 'get', path: '/api/clubs/{id}/flags', summary: 'Breaches and nearing tallies under the club permits, newest first', tag: 'audit' },
+  { method: 'get', path: '/api/parcels/{id}/audit', summary: "Every holder's tallies on your parcel against every limit (query: asOf)", tag: 'audit' },
+  { method: 'get', path: '/api/parcels/{id}/audit/entries', summary: 'The entries behind one tally on your parcel, with positions', tag: 'audit' },
+  { method: 'get', path: '/api/parcels/{id}/flags', summary: 'Breaches and nearing tallies on your parcel, newest first', tag: 'audit' },
+  { method: 'post', path: '/api/flags/{id}/notes', summary: 'Record a follow-up on a flag; `handled` marks it handled', body: flagNoteSchema, tag: 'audit' },
+  { method: 'get', path: '/api/parcels/{id}/season-report', summary: 'The season report of a parcel (query: asOf, club)', tag: 'reports' },
+  { method: 'get', path: '/api/parcels/{id}/season-report/csv', summary: 'The season report as CSV (RFC 4180)', tag: 'reports' },
+  { method: 'post', path: '/api/parcels/{id}/season-report/send', summary: "E-mail the season report to the parcel's landowner", body: sendSeasonReportSchema, tag: 'reports' },
 ];
 
 const errorSchema = {

@@ -3,7 +3,7 @@ import { mailFor, signIn, submitSignInForm } from './support';
 
 /** One demo account per role (data/demo/people.csv) and the navigation each should see. */
 const accounts = [
-  { email: 'forager@example.org', role: 'forager', sees: ['My permits', 'Catalogue'], not: ['Land', 'Accounts', 'Club'] },
+  { email: 'forager@example.org', role: 'forager', sees: ['My permits', 'Catalogue', 'Club'], not: ['Land', 'Accounts'] },
   { email: 'landowner@example.org', role: 'landowner', sees: ['Land', 'Catalogue'], not: ['Accounts', 'Club'] },
   { email: 'steward@example.org', role: 'steward', sees: ['Club', 'My permits'], not: ['Land', 'Accounts'] },
   { email: 'admin@example.org', role: 'admin', sees: ['Accounts', 'Catalogue'], not: ['Land', 'Club'] },

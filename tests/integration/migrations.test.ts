@@ -139,8 +139,9 @@ describe('the append-only records and constraints', () => {
     expect(error.message).toMatch(/harvest_entries is append-only: DELETE refused/);
   });
 
-  it('given the ledger, it refuses a TRUNCATE of it', async () => {
-    const error = await refusal(db().execute(sql`truncate harvest_entries`));
+  it('given the ledger, it refuses a TRUNCATE of it, even one that would take its flags along', async () => {
+    // Plain TRUNCATE stops at the flags' foreign key first; CASCADE reaches the ledger's own trigger.
+    const error = await refusal(db().execute(sql`truncate harvest_entries cascade`));
     expect(error.message).toMatch(/harvest_entries is append-only: TRUNCATE refused/);
   });
 

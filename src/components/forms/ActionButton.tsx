@@ -2,8 +2,10 @@ import { useState } from 'react';
 import { sendJson } from '../api-client';
 
 /** A button that sends one request (remove a closure, accept terms …) and reloads, or shows why not. */
-export default function ActionButton({ action, method = 'POST', label, confirm, quiet = true, redirectToResponseUrl = false }: {
+export default function ActionButton({ action, method = 'POST', body = {}, label, confirm, quiet = true, redirectToResponseUrl = false }: {
   action: string;
+  /** The JSON a POST sends; an empty object unless the endpoint asks for more. */
+  body?: Record<string, unknown>;
   method?: 'POST' | 'DELETE';
   label: string;
   confirm?: string;
@@ -22,7 +24,7 @@ export default function ActionButton({ action, method = 'POST', label, confirm, 
         onClick={async () => {
           if (confirm && !window.confirm(confirm)) return;
           setBusy(true);
-          const result = await sendJson(method, action, method === 'POST' ? {} : undefined);
+          const result = await sendJson(method, action, method === 'POST' ? body : undefined);
           setBusy(false);
           if (!result.ok) return setProblem(result.error.message);
           const url = (result.data as { url?: string } | null)?.url;

@@ -21,3 +21,5 @@ export const visitEndEnum = pgEnum('visit_end', ['check-out', 'end-of-day']);
 export const uploadPurposeEnum = pgEnum('upload_purpose', ['harvest-photo', 'boundary-file']);
 export const mailStateEnum = pgEnum('mail_state', ['queued', 'sent', 'failed']);
 export const paymentStateEnum = pgEnum('payment_state', ['pending', 'paid', 'cancelled', 'refunded', 'failed']);
+export const tallyStateEnum = pgEnum('tally_state', ['within', 'nearing', 'reached', 'over']);
+export const flagKindEnum = pgEnum('flag_kind', ['breach', 'nearing']);

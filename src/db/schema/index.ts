@@ -6,3 +6,4 @@ export * from './species';
 export * from './permits';
 export * from './field';
 export * from './system';
+export * from './flags';

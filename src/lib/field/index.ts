@@ -2,7 +2,7 @@
 export * from './types';
 export { boundaryContains, distanceToEdgeM, placePosition } from './geometry';
 export { geodesicDistanceM } from './geodesy';
-export { addDays, closuresOn, currentSeason, endOfLocalDay, localDateAt, localWallClock, startOfLocalDay } from './time';
+export { addDays, closuresOn, currentSeason, endOfLocalDay, seasonAsOf, localDateAt, localWallClock, startOfLocalDay } from './time';
 export { limitsInForce, projectEntry, scopeOrder, talliesFor, tallyState, worstState, type Projection, type TallyContext } from './tallies';
 export { checkPermit, permitCovers, type PermitCheck } from './permit-check';
 export { decideCheckIn, methodAllowed, type CheckIn } from './verdict';

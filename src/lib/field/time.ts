@@ -146,6 +146,31 @@ export function currentSeason(windows: SeasonWindow[], localDate: string): { sta
   };
 }
 
+/**
+ * The season an audit or a season report covers on a local date: the occurrence in progress (as
+ * `currentSeason` joins it), or else the most recent one that has ended; null with no windows.
+ * A window's occurrence that starts later in the same year is not yet a season to report.
+ */
+export function seasonAsOf(windows: SeasonWindow[], localDate: string): { start: string; end: string } | null {
+  const current = currentSeason(windows, localDate);
+  if (current) return current;
+  const [year] = parseIsoDate(localDate);
+  let latest: { start: string; end: string } | null = null;
+  for (const w of windows) {
+    checkMonthDay(w.start);
+    checkMonthDay(w.end);
+    for (const startYear of [year, year - 1, year - 2]) {
+      const endYear = w.start <= w.end ? startYear : startYear + 1;
+      const occurrence = { start: occurrenceDay(startYear, w.start, 'start'), end: occurrenceDay(endYear, w.end, 'end') };
+      if (occurrence.end < localDate) {
+        if (!latest || occurrence.end > latest.end) latest = occurrence;
+        break;
+      }
+    }
+  }
+  return latest;
+}
+
 /** Every closure whose date range (both ends included) holds a local date. */
 export function closuresOn<C extends { startsOn: string; endsOn: string }>(closures: C[], localDate: string): C[] {
   parseIsoDate(localDate);

@@ -1,0 +1,307 @@
+import { Fragment, useEffect, useId, useMemo, useRef, useState } from 'react';
+import {
+  createColumnHelper, flexRender, getCoreRowModel, getFilteredRowModel, getSortedRowModel, useReactTable,
+  type ColumnFiltersState, type FilterFn, type SortingState,
+} from '@tanstack/react-table';
+import { Bar, BarChart, CartesianGrid, Cell, LabelList, ReferenceLine, ResponsiveContainer, Tooltip, XAxis, YAxis } from 'recharts';
+import type { LimitScope, Tally, TallyState } from '../../lib/field/types';
+import type { Audit, AuditChartBar, AuditEntry, AuditRow } from '../../db/audit.queries';
+import { formatQuantity } from '../ledger/ledger-view';
+import { formatDate } from '../../lib/format';
+import { sendJson } from '../api-client';
+import {
+  ariaSort, auditRowKey, auditScopeLabels, capitalise, chartCeiling, entriesQuery, formatMethod, formatPercent, formatPosition, formatSeason, formatTally, formatUsage,
+  isIsoDate, matchesStateChoice, stateFills, tallyStates, rankOf, scopesPresent, stateChoices, statePatterns, stateSymbols, stateTones, stateWords, type StateChoice,
+} from './audit-view';
+
+export type AuditPanelProps = {
+  /** The club's or the parcel's audit endpoint; the panel adds `?asOf=`. */
+  auditUrl: string;
+  entriesUrl: string;
+  initialAsOf: string;
+  /** A landowner sees where entries were made; a steward never does. */
+  showPositions: boolean;
+};
+
+type Load<T> = { status: 'loading' } | { status: 'error'; message: string } | { status: 'ready'; data: T };
+
+/** The audit of tallies against limits for one season: a chart per limit, a table per forager, and the entries behind each row. */
+export default function AuditPanel({ auditUrl, entriesUrl, initialAsOf, showPositions }: AuditPanelProps) {
+  const id = useId();
+  const [draft, setDraft] = useState(initialAsOf);
+  const [asOf, setAsOf] = useState(initialAsOf);
+  const [audit, setAudit] = useState<Load<Audit>>({ status: 'loading' });
+  const latest = useRef(0);
+  const [hydrated, setHydrated] = useState(false);
+  useEffect(() => setHydrated(true), []);
+
+  useEffect(() => {
+    const ticket = ++latest.current;
+    setAudit({ status: 'loading' });
+    void sendJson('GET', `${auditUrl}?${new URLSearchParams({ asOf })}`).then((result) => {
+      if (ticket !== latest.current) return;
+      setAudit(result.ok ? { status: 'ready', data: result.data as Audit } : { status: 'error', message: result.error.message });
+    });
+  }, [auditUrl, asOf]);
+
+  return (
+    <div data-testid="audit-panel" data-hydrated={hydrated ? 'true' : undefined} data-status={audit.status}>
+      <div className="max-w-md">
+        <label htmlFor={`${id}-as-of`} className="field-label">As of</label>
+        <input
+          id={`${id}-as-of`} type="date" className="field-input" value={draft} aria-describedby={`${id}-as-of-help`}
+          onChange={(e) => { setDraft(e.target.value); if (isIsoDate(e.target.value)) setAsOf(e.target.value); }}
+        />
+        <p id={`${id}-as-of-help`} className="mt-1 text-xs text-loam-600">The audit covers the season in progress on this date, or the last one that ended before it.</p>
+      </div>
+      {audit.status === 'loading' && <p className="mt-4 text-loam-700" aria-live="polite">Loading the audit…</p>}
+      {audit.status === 'error' && <p role="alert" className="field-error mt-4">{audit.message}</p>}
+      {audit.status === 'ready' && (audit.data.rows.length === 0
+        ? <p className="card mt-4">No entries in this season yet.</p>
+        : (
+          <>
+            {audit.data.chart.length > 0 && <AuditChart bars={audit.data.chart} />}
+            <AuditTable rows={audit.data.rows} asOf={audit.data.asOf} entriesUrl={entriesUrl} showPositions={showPositions} />
+          </>
+        ))}
+    </div>
+  );
+}
+
+function AuditChart({ bars }: { bars: AuditChartBar[] }) {
+  const uid = useId().replace(/[^\w-]/g, '');
+  const ceiling = chartCeiling(bars.map((b) => b.percent));
+  const ticks = Array.from({ length: ceiling / 20 + 1 }, (_, i) => i * 20);
+  const data = bars.map((b) => ({
+    key: `${b.parcelId}|${b.speciesId}|${b.scope}`,
+    name: `${b.parcelName} · ${b.commonName} · ${auditScopeLabels[b.scope]}`,
+    value: Math.min(b.percent, ceiling),
+    state: b.state,
+    caption: `${stateSymbols[b.state]} ${formatPercent(b.percent)} ${stateWords[b.state]}`,
+    usage: formatUsage(b),
+  }));
+  const count = (s: TallyState) => bars.filter((b) => b.state === s).length;
+  const highest = bars.reduce<AuditChartBar | null>((top, b) => (!top || b.percent > top.percent ? b : top), null);
+  const summary = `Bar chart of the share of each limit used, one bar per parcel, species and limit: ${bars.length} ${bars.length === 1 ? 'bar' : 'bars'}, `
+    + `${count('over')} over, ${count('reached')} reached, ${count('nearing')} nearing, ${count('within')} within.`
+    + (highest ? ` Highest: ${highest.parcelName}, ${highest.commonName}, ${auditScopeLabels[highest.scope]}, ${formatPercent(highest.percent)} ${stateWords[highest.state]}.` : '');
+
+  return (
+    <figure className="card mt-4" data-testid="audit-chart">
+      <figcaption className="font-semibold text-moss-800">Share of each limit used</figcaption>
+      <svg width="0" height="0" className="absolute" aria-hidden="true" focusable="false">
+        <defs>
+          <pattern id={`${uid}-within`} width="6" height="6" patternUnits="userSpaceOnUse"><rect width="6" height="6" fill={stateFills.within.ground} /></pattern>
+          <pattern id={`${uid}-nearing`} width="6" height="6" patternUnits="userSpaceOnUse" patternTransform="rotate(45)">
+            <rect width="6" height="6" fill={stateFills.nearing.ground} /><path d="M3 0V6" stroke={stateFills.nearing.ink} strokeWidth="2.5" />
+          </pattern>
+          {(['reached', 'over'] as const).map((s) => (
+            <pattern key={s} id={`${uid}-${s}`} width="6" height="6" patternUnits="userSpaceOnUse" patternTransform="rotate(45)">
+              <rect width="6" height="6" fill={stateFills[s].ground} /><path d="M3 0V6M0 3H6" stroke={stateFills[s].ink} strokeWidth="1.5" />
+            </pattern>
+          ))}
+        </defs>
+      </svg>
+      <div role="img" aria-label={summary} style={{ height: data.length * 30 + 60 }} className="mt-2">
+        <ResponsiveContainer width="100%" height="100%">
+          <BarChart data={data} layout="vertical" margin={{ top: 24, right: 120, bottom: 4, left: 4 }}>
+            <CartesianGrid horizontal={false} stroke="#eee7dd" />
+            <XAxis type="number" domain={[0, ceiling]} ticks={ticks} allowDataOverflow tickFormatter={(v: number) => `${v} %`} tick={{ fontSize: 12, fill: '#5c4431' }} />
+            <YAxis type="category" dataKey="name" width={240} interval={0} tick={{ fontSize: 12, fill: '#293f27' }} />
+            <ReferenceLine x={100} stroke="#86391a" strokeDasharray="5 3" strokeWidth={2} label={{ value: 'limit, 100 %', position: 'top', fill: '#86391a', fontSize: 12 }} />
+            <Tooltip cursor={{ fill: '#f8f5f1' }} formatter={(_v, _n, item) => [(item.payload as { usage: string }).usage, 'used']} />
+            <Bar dataKey="value" barSize={18} isAnimationActive={false}>
+              {data.map((d) => <Cell key={d.key} fill={`url(#${uid}-${d.state})`} stroke={stateFills[d.state].edge} />)}
+              <LabelList dataKey="caption" position="right" fill="#1f2f1e" fontSize={12} />
+            </Bar>
+          </BarChart>
+        </ResponsiveContainer>
+      </div>
+      <ul className="mt-3 flex flex-wrap gap-x-5 gap-y-1 text-sm" aria-label="Chart legend">
+        {tallyStates.map((s) => (
+          <li key={s} className="inline-flex items-center gap-2">
+            <svg width="28" height="14" aria-hidden="true" focusable="false"><rect x="0.5" y="0.5" width="27" height="13" fill={`url(#${uid}-${s})`} stroke={stateFills[s].edge} /></svg>
+            <span><span aria-hidden="true">{stateSymbols[s]} </span>{stateWords[s]}: {statePatterns[s]}</span>
+          </li>
+        ))}
+        <li className="inline-flex items-center gap-2">
+          <svg width="28" height="14" aria-hidden="true" focusable="false"><path d="M14 0V14" stroke="#86391a" strokeWidth="2" strokeDasharray="5 3" /></svg>
+          dashed line: the limit (100 %)
+        </li>
+      </ul>
+    </figure>
+  );
+}
+
+const column = createColumnHelper<AuditRow>();
+const textMatches: FilterFn<AuditRow> = (row, _id, value: string) => {
+  const words = value.trim().toLowerCase();
+  const r = row.original;
+  return [r.parcelName, r.commonName, r.scientificName, r.foragerName].some((s) => s.toLowerCase().includes(words));
+};
+const stateMatches: FilterFn<AuditRow> = (row, _id, value: StateChoice) => matchesStateChoice(row.original.state, value);
+
+function StateMark({ state }: { state: TallyState | null }) {
+  if (!state) return <span className="text-loam-600">no limit</span>;
+  return <span className={`pill whitespace-nowrap ${stateTones[state]}`} data-state={state}><span aria-hidden="true">{stateSymbols[state]} </span>{stateWords[state]}</span>;
+}
+
+function TallyCell({ tally }: { tally: Tally | undefined }) {
+  if (!tally) return <span className="text-loam-500" title="No limit of this kind">—</span>;
+  return (
+    <span className="block min-w-[9rem]" data-scope={tally.scope} data-state={tally.state}>
+      <span className="block whitespace-nowrap">{formatTally(tally)}</span>
+      <StateMark state={tally.state} />{tally.limit.fromPermit && <span className="ml-1 text-xs text-loam-600">permit's limit</span>}
+    </span>
+  );
+}
+
+function buildColumns(scopes: LimitScope[]) {
+  return [
+    column.accessor('parcelName', { id: 'parcel', header: 'Parcel' }),
+    column.accessor('commonName', {
+      id: 'species', header: 'Species',
+      cell: ({ row }) => <>{row.original.commonName}<span className="block text-xs italic text-loam-600">{row.original.scientificName}</span></>,
+    }),
+    column.accessor('foragerName', { id: 'forager', header: 'Forager' }),
+    column.accessor('holderName', { id: 'holder', header: 'Permit holder' }),
+    column.accessor((r) => r.season.start, { id: 'season', header: 'Season dates', cell: ({ row }) => <span className="whitespace-nowrap">{formatSeason(row.original.season)}</span> }),
+    ...scopes.map((scope) => column.accessor((r) => r.tallies.find((t) => t.scope === scope)?.percent ?? -1, {
+      id: `scope-${scope}`, header: capitalise(auditScopeLabels[scope]), sortDescFirst: true,
+      cell: ({ row }) => <TallyCell tally={row.original.tallies.find((t) => t.scope === scope)} />,
+    })),
+    column.accessor((r) => rankOf(r.state), { id: 'state', header: 'Worst state', sortDescFirst: true, filterFn: stateMatches, cell: ({ row }) => <StateMark state={row.original.state} /> }),
+    column.accessor('entries', { header: 'Entries', sortDescFirst: true }),
+    column.accessor('breaches', {
+      header: 'Breaches', sortDescFirst: true,
+      cell: ({ getValue }) => (getValue() > 0 ? <span className="pill border-2 border-ember-600 text-ember-700">{getValue()} breach{getValue() === 1 ? '' : 'es'}</span> : 0),
+    }),
+  ];
+}
+
+function AuditTable({ rows, asOf, entriesUrl, showPositions }: { rows: AuditRow[]; asOf: string; entriesUrl: string; showPositions: boolean }) {
+  const id = useId();
+  const columns = useMemo(() => buildColumns(scopesPresent(rows)), [rows]);
+  const [sorting, setSorting] = useState<SortingState>([]);
+  const [columnFilters, setColumnFilters] = useState<ColumnFiltersState>([]);
+  const [globalFilter, setGlobalFilter] = useState('');
+  const [open, setOpen] = useState<Record<string, Load<AuditEntry[]>>>({});
+  useEffect(() => setOpen({}), [rows]);
+
+  const table = useReactTable({
+    data: rows,
+    columns,
+    state: { sorting, columnFilters, globalFilter },
+    onSortingChange: setSorting,
+    onColumnFiltersChange: setColumnFilters,
+    onGlobalFilterChange: setGlobalFilter,
+    globalFilterFn: textMatches,
+    getRowId: auditRowKey,
+    getCoreRowModel: getCoreRowModel(),
+    getFilteredRowModel: getFilteredRowModel(),
+    getSortedRowModel: getSortedRowModel(),
+  });
+  const shown = table.getRowModel().rows;
+  const choice = (table.getColumn('state')?.getFilterValue() as StateChoice | undefined) ?? 'all';
+
+  async function toggle(row: AuditRow) {
+    const key = auditRowKey(row);
+    if (open[key]) return setOpen(({ [key]: _closed, ...rest }) => rest);
+    setOpen((o) => ({ ...o, [key]: { status: 'loading' } }));
+    const result = await sendJson('GET', `${entriesUrl}?${entriesQuery(row, asOf)}`);
+    const load: Load<AuditEntry[]> = result.ok ? { status: 'ready', data: (result.data as { entries: AuditEntry[] }).entries } : { status: 'error', message: result.error.message };
+    setOpen((o) => (key in o ? { ...o, [key]: load } : o));
+  }
+
+  return (
+    <section className="mt-6" aria-labelledby={`${id}-title`}>
+      <h3 id={`${id}-title`} className="font-semibold text-moss-800">Tallies by forager</h3>
+      <div className="mt-2 flex flex-wrap items-end gap-3">
+        <div className="min-w-[12rem] flex-1">
+          <label htmlFor={`${id}-text`} className="field-label">Filter</label>
+          <input id={`${id}-text`} type="search" className="field-input" placeholder="parcel, species or forager" value={globalFilter} onChange={(e) => setGlobalFilter(e.target.value)} />
+        </div>
+        <div>
+          <label htmlFor={`${id}-state`} className="field-label">Show</label>
+          <select id={`${id}-state`} className="field-input" value={choice} onChange={(e) => table.getColumn('state')?.setFilterValue(e.target.value === 'all' ? undefined : e.target.value)}>
+            {stateChoices.map((c) => <option key={c.value} value={c.value}>{c.label}</option>)}
+          </select>
+        </div>
+      </div>
+      <p className="mt-2 text-sm text-loam-700" aria-live="polite" data-testid="audit-count">{shown.length} of {rows.length} {rows.length === 1 ? 'row' : 'rows'}.</p>
+      <div className="mt-2 overflow-x-auto rounded-lg border border-loam-200 bg-white">
+        <table className="table min-w-[64rem]">
+          <caption className="sr-only">Tallies for the season on {formatDate(asOf)}, one row per parcel, species, forager and permit. Select a column heading to sort.</caption>
+          <thead>
+            {table.getHeaderGroups().map((group) => (
+              <tr key={group.id}>
+                {group.headers.map((header) => {
+                  const sorted = header.column.getIsSorted();
+                  return (
+                    <th key={header.id} scope="col" aria-sort={ariaSort(sorted)}>
+                      <button type="button" className="inline-flex items-center gap-1 whitespace-nowrap font-semibold hover:underline" onClick={header.column.getToggleSortingHandler()}>
+                        {flexRender(header.column.columnDef.header, header.getContext())}
+                        <span aria-hidden="true" className="text-xs text-loam-600">{sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : '↕'}</span>
+                      </button>
+                    </th>
+                  );
+                })}
+                <th scope="col"><span className="sr-only">Entries behind the row</span></th>
+              </tr>
+            ))}
+          </thead>
+          <tbody>
+            {shown.length === 0 && <tr><td colSpan={columns.length + 1} className="text-loam-700">No rows match these filters.</td></tr>}
+            {shown.map((row) => {
+              const detail = open[row.id];
+              const panelId = `${id}-entries-${row.index}`;
+              return (
+                <Fragment key={row.id}>
+                  <tr data-row={row.id} data-state={row.original.state ?? 'none'} className={row.original.state === 'over' ? 'bg-ember-50' : ''}>
+                    {row.getVisibleCells().map((cell) => <td key={cell.id}>{flexRender(cell.column.columnDef.cell, cell.getContext())}</td>)}
+                    <td>
+                      <button type="button" className="button-quiet whitespace-nowrap" aria-expanded={detail ? 'true' : 'false'} aria-controls={detail ? panelId : undefined} onClick={() => void toggle(row.original)}>
+                        {detail ? 'Hide entries' : 'Show entries'}
+                      </button>
+                    </td>
+                  </tr>
+                  {detail && (
+                    <tr id={panelId} className="bg-loam-50" data-entries-for={row.id}>
+                      <td colSpan={columns.length + 1}><EntryList load={detail} showPositions={showPositions} /></td>
+                    </tr>
+                  )}
+                </Fragment>
+              );
+            })}
+          </tbody>
+        </table>
+      </div>
+    </section>
+  );
+}
+
+function EntryList({ load, showPositions }: { load: Load<AuditEntry[]>; showPositions: boolean }) {
+  if (load.status === 'loading') return <p aria-live="polite">Loading entries…</p>;
+  if (load.status === 'error') return <p role="alert" className="field-error">{load.message}</p>;
+  if (load.data.length === 0) return <p>No entries behind this row.</p>;
+  return (
+    <table className="table" data-testid="audit-entries">
+      <caption className="sr-only">The entries behind this row, oldest first</caption>
+      <thead>
+        <tr><th scope="col">Date</th><th scope="col">Quantity</th><th scope="col">Method</th><th scope="col">Breach</th><th scope="col">Correction</th>{showPositions && <th scope="col">Position</th>}</tr>
+      </thead>
+      <tbody>
+        {load.data.map((e) => (
+          <tr key={e.id} data-entry={e.id}>
+            <td className="whitespace-nowrap">{formatDate(e.localDate)}</td>
+            <td className="whitespace-nowrap">{formatQuantity(e)}</td>
+            <td>{formatMethod(e.method)}</td>
+            <td>{e.breach ? <span className="pill border-2 border-ember-600 text-ember-700"><span aria-hidden="true">✕ </span>breach{e.acknowledgedOver ? ', acknowledged' : ''}</span> : 'no'}</td>
+            <td>{e.correctsEntryId ? `Correction: ${e.correctionReason ?? 'no reason given'}` : '—'}</td>
+            {showPositions && <td className="whitespace-nowrap">{e.position ? formatPosition(e.position) : 'not recorded'}</td>}
+          </tr>
+        ))}
+      </tbody>
+    </table>
+  );
+}

@@ -1,0 +1,88 @@
+import { sql } from 'drizzle-orm';
+import type { FlaggedTally } from './schema/flags';
+import type { AuditScope } from './audit.queries';
+import type { Executor } from './client';
+import { flagNotes } from './schema';
+
+export type FlagNoteView = { id: string; note: string; handled: boolean; authorName: string; createdAt: string };
+
+export type FlagView = {
+  id: string;
+  kind: 'breach' | 'nearing';
+  worstState: 'within' | 'nearing' | 'reached' | 'over';
+  scopes: string[];
+  tallies: FlaggedTally[];
+  createdAt: string;
+  parcelId: string;
+  parcelName: string;
+  speciesId: string;
+  commonName: string;
+  foragerId: string;
+  foragerName: string;
+  permitId: string | null;
+  entry: { id: string; quantity: string; unit: string; localDate: string };
+  /** The newest note decides: handled until a later note reopens it. */
+  handled: boolean;
+  notes: FlagNoteView[];
+};
+
+/** Flags in view, newest first: a club's (raised under its permits) or a landowner's (on their parcels). */
+export async function listFlags(db: Executor, scope: AuditScope, { limit = 200 }: { limit?: number } = {}): Promise<FlagView[]> {
+  const inView =
+    'clubId' in scope
+      ? sql`f.permit_id in (select cp.id from permits cp where cp.holder_club_id = ${scope.clubId}::uuid) ${scope.parcelId ? sql`and f.parcel_id = ${scope.parcelId}::uuid` : sql``}`
+      : scope.parcelId
+        ? sql`f.parcel_id = ${scope.parcelId}::uuid and p.owner_id = ${scope.ownerId}`
+        : sql`p.owner_id = ${scope.ownerId}`;
+  const rows = await db.execute<{
+    id: string; kind: FlagView['kind']; worst_state: FlagView['worstState']; scopes: string[]; tallies: FlaggedTally[]; created_at: string;
+    parcel_id: string; parcel_name: string; species_id: string; common_name: string; forager_id: string; forager_name: string; permit_id: string | null;
+    entry_id: string; quantity: string; unit: string; local_date: string; notes: FlagNoteView[];
+  }>(sql`
+    select f.id, f.kind, f.worst_state, f.scopes::text[] as scopes, f.tallies, f.created_at::text, f.parcel_id, p.name as parcel_name,
+      f.species_id, s.common_name, f.forager_id, coalesce(u.name, u.email) as forager_name, f.permit_id,
+      e.id as entry_id, trim_scale(e.quantity)::text as quantity, e.unit, e.local_date::text,
+      coalesce((select json_agg(json_build_object('id', n.id, 'note', n.note, 'handled', n.handled, 'authorName', coalesce(a.name, a.email), 'createdAt', n.created_at) order by n.created_at, n.id)
+        from flag_notes n join users a on a.id = n.author_id where n.flag_id = f.id), '[]') as notes
+    from flags f
+    join parcels p on p.id = f.parcel_id
+    join species s on s.id = f.species_id
+    join users u on u.id = f.forager_id
+    join harvest_entries e on e.id = f.entry_id
+    where ${inView}
+    order by f.created_at desc, f.id
+    limit ${limit}`);
+  return rows.map((r) => ({
+    id: r.id,
+    kind: r.kind,
+    worstState: r.worst_state,
+    scopes: r.scopes,
+    tallies: r.tallies,
+    createdAt: new Date(r.created_at).toISOString(),
+    parcelId: r.parcel_id,
+    parcelName: r.parcel_name,
+    speciesId: r.species_id,
+    commonName: r.common_name,
+    foragerId: r.forager_id,
+    foragerName: r.forager_name,
+    permitId: r.permit_id,
+    entry: { id: r.entry_id, quantity: r.quantity, unit: r.unit, localDate: r.local_date },
+    handled: r.notes.length > 0 ? Boolean(r.notes[r.notes.length - 1]?.handled) : false,
+    notes: r.notes.map((n) => ({ ...n, createdAt: new Date(n.createdAt).toISOString() })),
+  }));
+}
+
+/** Who may follow a flag up: the landowner of its parcel, and the club whose permit it was raised under. */
+export async function flagAccess(db: Executor, { flagId }: { flagId: string }): Promise<{ ownerId: string; clubId: string | null } | null> {
+  const [row] = await db.execute<{ owner_id: string; club_id: string | null }>(sql`
+    select p.owner_id, pm.holder_club_id as club_id
+    from flags f join parcels p on p.id = f.parcel_id left join permits pm on pm.id = f.permit_id
+    where f.id = ${flagId}::uuid`);
+  return row ? { ownerId: row.owner_id, clubId: row.club_id } : null;
+}
+
+/** A follow-up note; `handled` marks the flag handled (or, false, reopens it). Notes are never changed. */
+export async function addFlagNote(db: Executor, { flagId, authorId, note, handled, now }: { flagId: string; authorId: string; note: string; handled: boolean; now: Date }) {
+  const [row] = await db.insert(flagNotes).values({ flagId, authorId, note: note.trim(), handled, createdAt: now }).returning();
+  return row;
+}

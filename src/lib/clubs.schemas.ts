@@ -1,0 +1,42 @@
+import { z } from 'zod';
+
+/** The API's and the forms' rules for club memberships, audits, flags and season reports. */
+
+const isoDate = z
+  .string()
+  .regex(/^\d{4}-\d{2}-\d{2}$/, 'Use a date like 2026-11-14.')
+  .refine((s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)) && new Date(`${s}T00:00:00Z`).toISOString().startsWith(s), 'That date does not exist.');
+const uuid = z.string().uuid('That is not a valid id.');
+
+export const inviteMemberSchema = z.object({
+  email: z.string().trim().toLowerCase().email('Enter an e-mail address like name@example.org.').max(254),
+  role: z.enum(['member', 'steward'], { error: 'Choose member or steward.' }).default('member'),
+});
+
+export const manageMembershipSchema = z.object({ action: z.enum(['remove', 'make-steward', 'make-member'], { error: 'Choose remove, make-steward or make-member.' }) });
+
+export const answerMembershipSchema = z.object({ action: z.enum(['accept', 'decline', 'leave'], { error: 'Choose accept, decline or leave.' }) });
+
+export const flagNoteSchema = z.object({
+  note: z.string().trim().min(1, 'Write what was done or agreed.').max(2000, 'Keep the note under 2,000 characters.'),
+  handled: z.boolean().default(false),
+});
+
+/** `asOf`: the date whose season is audited (the season in progress then, or the last one ended). */
+export const auditQuerySchema = z.object({ asOf: isoDate.optional() });
+
+export const auditEntriesQuerySchema = z.object({
+  asOf: isoDate.optional(),
+  parcelId: uuid,
+  speciesId: uuid,
+  foragerId: z.string().min(1, 'Name the forager.'),
+  /** Empty for entries made without a permit. */
+  permitId: z.union([uuid, z.literal('')]).default(''),
+});
+
+export const seasonReportQuerySchema = z.object({ asOf: isoDate.optional(), club: z.union([uuid, z.literal('')]).optional() });
+
+export const sendSeasonReportSchema = z.object({ asOf: isoDate.optional(), clubId: uuid.nullish() });
+
+export type InviteMemberInput = z.infer<typeof inviteMemberSchema>;
+export type FlagNoteInput = z.infer<typeof flagNoteSchema>;

@@ -1,0 +1,125 @@
+import { expect, test, type APIRequestContext } from '@playwright/test';
+import { apiAs, mailFor, pageAs, signIn } from './support';
+
+/*
+ * A steward's season, end to end in Chromium: the steward invites a new member, who accepts; the
+ * steward asks for a club permit on Walter's parcel; Walter approves; the member harvests past the
+ * day limit (acknowledged), which is a breach; the steward sees the flag, records a follow-up, and
+ * sends the season report, which reaches Walter.
+ *
+ * Walter's parcel for this file lies clear of the demo valley and the other specs' parcels, open to
+ * requests, with oyster mushrooms allowed all year and 1 kg a day. 1200 g is 120 % of 1 kg: over,
+ * a breach (GLOSSARY.md "tally states").
+ */
+const west = -72.93;
+const south = 43.83;
+const size = 0.003;
+const centre = { longitude: west + size / 2, latitude: south + size / 2 };
+const clubName = 'Three Ridges Foraging Society';
+const stamp = Date.now();
+const parcelName = `Stewardship lot ${stamp}`;
+const memberEmail = `new-member-${stamp}@example.org`;
+
+let walter: APIRequestContext;
+let parcelId = '';
+
+test.describe.configure({ mode: 'serial' });
+
+test.beforeAll(async () => {
+  walter = await apiAs('landowner@example.org');
+  const ring = [[west, south], [west + size, south], [west + size, south + size], [west, south + size], [west, south]];
+  const created = await walter.post('/api/parcels', { data: { name: parcelName, timeZone: 'America/New_York', nearingThresholdPercent: 80, openToRequests: true, description: 'Oyster logs in the hemlock draw.', boundary: { type: 'Polygon', coordinates: [ring] } } });
+  expect(created.status(), await created.text()).toBe(201);
+  parcelId = (await created.json()).parcel.id;
+  const listed = await walter.patch(`/api/parcels/${parcelId}`, { data: { status: 'listed' } });
+  expect(listed.status(), await listed.text()).toBe(200);
+  const { species } = (await (await walter.get('/api/species')).json()) as { species: { id: string; commonName: string }[] };
+  const oyster = species.find((s) => s.commonName === 'Oyster mushroom');
+  const allowed = await walter.put(`/api/parcels/${parcelId}/allowances`, { data: { speciesId: oyster?.id, seasons: [{ start: '01-01', end: '12-31' }], methods: ['pick'], limits: [{ scope: 'day', quantity: '1', unit: 'kg' }] } });
+  expect(allowed.status(), await allowed.text()).toBe(200);
+});
+
+test.afterAll(async () => walter?.dispose());
+
+test('given a steward, a new member and a landowner, the club permit, a breach, its follow-up and the season report all work', async ({ browser }) => {
+  // 1. The steward invites someone Tallywood does not know yet.
+  const steward = await pageAs(browser, 'steward@example.org');
+  await steward.goto('/club');
+  const club = steward.locator(`[data-club="${clubName}"]`);
+  await club.locator('[data-hydrated="true"]').first().waitFor();
+  await club.getByLabel('E-mail').fill(memberEmail);
+  await club.getByLabel('Role').selectOption('member');
+  await club.getByRole('button', { name: 'Send invitation' }).click();
+  await expect(club.getByRole('row').filter({ hasText: memberEmail })).toContainText('invited');
+  await expect.poll(async () => (await mailFor(steward.request, memberEmail)).some((m) => m.subject === `You are invited to join ${clubName}`)).toBe(true);
+
+  // 2. They sign in with that address and join.
+  const memberContext = await browser.newContext({ geolocation: { ...centre, accuracy: 5 }, permissions: ['geolocation'] });
+  const member = await memberContext.newPage();
+  await signIn(member, memberEmail);
+  await member.goto('/club');
+  await member.getByRole('button', { name: `Join ${clubName}` }).click();
+  await expect(member.locator(`[data-membership="${clubName}"]`)).toContainText('member since');
+
+  // 3. The steward asks for access for the club.
+  await steward.goto('/my-permits');
+  const card = steward.getByTestId('open-parcels').locator(`[data-parcel="${parcelName}"]`);
+  await card.getByText('Ask for access').click();
+  await card.getByLabel('Ask for').selectOption({ label: `${clubName} (club)` });
+  await card.getByLabel(/What you would like to harvest/).fill('Oyster mushrooms for the club, a few pounds over the winter.');
+  await card.getByRole('button', { name: 'Send request' }).click();
+  await expect(steward.getByTestId('my-permits').locator('li').filter({ hasText: parcelName }).locator('[data-state="requested"]')).toBeVisible();
+
+  // 4. Walter approves it (no fee, no terms on this parcel: active from today).
+  const { permits } = (await (await walter.get(`/api/parcels/${parcelId}/permits`)).json()) as { permits: { id: string; state: string; holderClubId: string | null }[] };
+  const request = permits.find((p) => p.state === 'requested' && p.holderClubId);
+  expect(request).toBeTruthy();
+  const decided = await walter.post(`/api/permits/${request?.id}/decision`, { data: { decision: 'approve', message: 'Welcome, club.' } });
+  expect(decided.status(), await decided.text()).toBe(200);
+  await steward.goto('/club');
+  await expect(club.getByTestId('club-permits').locator('li').filter({ hasText: parcelName }).locator('[data-state="active"]')).toBeVisible();
+
+  // 5. The member harvests past the day limit, acknowledging it: a breach.
+  await member.goto('/field');
+  await member.locator('[data-hydrated]').first().waitFor();
+  await member.getByRole('button', { name: 'Use my location' }).click();
+  await expect(member.getByTestId('verdict')).toHaveAttribute('data-verdict', 'clear');
+  const form = member.getByTestId('harvest-form');
+  await form.getByLabel('Species').selectOption({ label: 'Oyster mushroom' });
+  await form.getByLabel('Unit').selectOption('g');
+  await form.getByLabel('Quantity').fill('1200');
+  await expect(form.getByTestId('projection').locator('[data-scope="day"]')).toHaveAttribute('data-state', 'over');
+  await form.getByText('This takes a limit over').click();
+  await form.getByRole('button', { name: 'Save entry' }).click();
+  await expect(member.getByTestId('species').locator('[data-species="Oyster mushroom"]')).toHaveAttribute('data-state', 'over');
+  await memberContext.close();
+
+  // 6. The steward sees the flag and records a follow-up that handles it.
+  await steward.goto('/club');
+  await club.getByTestId('flags-panel').and(club.locator('[data-hydrated="true"]')).waitFor();
+  const flag = club.locator('[data-flag]').filter({ hasText: parcelName });
+  await expect(flag).toContainText('Breach');
+  await flag.getByLabel('Follow-up note').fill('Spoke with the member; the extra was shared at the club walk. Reminded of the 1 kg day limit.');
+  await flag.getByLabel('Mark as handled').check();
+  await flag.getByRole('button', { name: 'Record follow-up' }).click();
+  await club.getByRole('button', { name: 'All', exact: true }).click();
+  await expect(club.locator('[data-flag]').filter({ hasText: parcelName })).toHaveAttribute('data-handled', 'true');
+  await expect(club.locator('[data-flag]').filter({ hasText: parcelName })).toContainText('Reminded of the 1 kg day limit');
+
+  // The audit shows the member over on the day limit.
+  await expect(club.getByRole('row').filter({ hasText: parcelName }).filter({ hasText: 'over' }).first()).toBeVisible();
+
+  // 7. The season report, sent to the landowner.
+  await club.getByTestId('club-permits').locator('li').filter({ hasText: parcelName }).getByRole('link', { name: 'Season report' }).click();
+  const report = steward.getByTestId('season-report');
+  await expect(report.getByTestId('breaches')).toHaveText('1');
+  await expect(report.getByTestId('visits')).toHaveText('1');
+  await expect(report).toContainText('Reminded of the 1 kg day limit');
+  await report.getByRole('button', { name: 'Send to the landowner by e-mail' }).click();
+  await expect
+    .poll(async () => (await mailFor(steward.request, 'landowner@example.org')).some((m) => m.subject === `Season report for ${parcelName} from ${clubName}`))
+    .toBe(true);
+  const mail = (await mailFor(steward.request, 'landowner@example.org')).find((m) => m.subject === `Season report for ${parcelName} from ${clubName}`);
+  expect(mail?.text).toContain('1 breach,');
+  await steward.context().close();
+});
