@@ -1,20 +1,24 @@
-// `npm run bench`: figures for the check-in path on a large synthetic register. Prints a table and
-// writes .local/bench/results.json and results.md. A benchmark, not a test: it asserts nothing.
+// `npm run bench`: figures for the check-in path on a large synthetic register, then for the club
+// audit and the season report over a synthetic ledger (1 000 000 harvest entries on the first 200
+// bench parcels, scripts/bench/audit.ts), with the plan of the audit's aggregate statement. Prints a
+// table and writes .local/bench/results.json and results.md. A benchmark, not a test: it asserts nothing.
 //
 // Its own PostgreSQL cluster (.local/pg-bench, 127.0.0.1:54349, database tallywood_bench) keeps the
-// seeded parcels between runs, so only the first run seeds. Environment (all optional):
+// seeded parcels and entries between runs, so only the first run seeds. Environment (all optional):
 //   BENCH_PARCELS (100000) · BENCH_REQUESTS (5000) · BENCH_SQL_QUERIES (5000) · BENCH_NAIVE_POINTS (20)
-//   BENCH_CONCURRENCY (8) · BENCH_MAX_SECONDS (60, per measured phase) · TALLYWOOD_BENCH_PG_PORT (54349)
+//   BENCH_ENTRIES (1000000) · BENCH_CONCURRENCY (8) · BENCH_MAX_SECONDS (60, per measured phase)
+//   TALLYWOOD_BENCH_PG_PORT (54349)
 import type { ChildProcess } from 'node:child_process';
 import { cpus, totalmem } from 'node:os';
 import { join } from 'node:path';
 import postgres from 'postgres';
 import { closeDb, createDb } from '../src/db/client';
 import { applyMigrations } from '../src/db/migrations';
+import { measureAudit, seedEntries } from './bench/audit';
 import { findOrBuildServer, measureCheckIns, startServer, stopServer, type HttpFigures } from './bench/http-check-ins';
 import { measureNaiveScan } from './bench/naive-scan';
 import { benchPositions, regionAreaKm2 } from './bench/parcels';
-import { report, type BenchResults } from './bench/report';
+import { auditTargets, report, type AuditResults, type BenchResults } from './bench/report';
 import { describeParcels, prepareMembers, prewarm, seedBench } from './bench/seed';
 import { coveringCounts, measureSql } from './bench/sql-lookup';
 import { ensureDatabase, ensurePostgres, localDir, root, say, startCluster } from './lib/setup.mjs';
@@ -28,6 +32,7 @@ const parcelTarget = setting('BENCH_PARCELS', 100_000);
 const requests = setting('BENCH_REQUESTS', 5000);
 const sqlQueries = setting('BENCH_SQL_QUERIES', 5000);
 const naivePoints = setting('BENCH_NAIVE_POINTS', 20);
+const entryTarget = setting('BENCH_ENTRIES', 1_000_000);
 const concurrency = setting('BENCH_CONCURRENCY', 8);
 const maxMs = setting('BENCH_MAX_SECONDS', 60) * 1000;
 const pgPort = setting('TALLYWOOD_BENCH_PG_PORT', 54349);
@@ -84,6 +89,19 @@ try {
     if (http.status !== 404) exitCode = 1;
   }
 
+  let audit: AuditResults;
+  try {
+    const entries = await seedEntries(sql, entryTarget, say);
+    say(entries.seeded > 0 ? `seeded ${entries.seeded} harvest entries in ${(entries.ms / 1000).toFixed(1)} s` : `${entries.entries} bench harvest entries already there; nothing seeded`);
+    say(`club audit and season reports over ${entries.entries} harvest entries…`);
+    audit = { available: true, seeding: { seeded: entries.seeded, ms: entries.ms, limitsAdded: entries.limitsAdded }, ...(await measureAudit(databaseUrl, { clubId: entries.clubId, parcelId: entries.parcelId, maxMs })) };
+    console.log(`\nEXPLAIN (ANALYZE, BUFFERS) of the audit's aggregate statement:\n${audit.plan}\n`);
+  } catch (error) {
+    exitCode = 1;
+    audit = { available: false, reason: error instanceof Error ? error.message : String(error) };
+    console.log(`\n*** The audit and season report were not measured: ${audit.reason} ***\n`);
+  }
+
   const endpointP50 = http.available ? http.concurrent.p50 : null;
   const endpointOverSqlP50 = endpointP50 === null ? null : endpointP50 / sqlFigures.concurrent.p50;
   const [versions] = await sql<{ postgres: string; postgis: string }[]>`select current_setting('server_version') as postgres, postgis_lib_version() as postgis`;
@@ -102,6 +120,7 @@ try {
     sql: sqlFigures,
     naive,
     http,
+    audit,
     ratios: {
       endpointOverSqlP50,
       naiveOverEndpointP50: endpointP50 === null ? null : naive.msPerLookup / endpointP50,
@@ -111,6 +130,7 @@ try {
       { name: 'endpoint p95 ms', value: http.available ? http.concurrent.p95 : null, target: '< 10', met: http.available ? http.concurrent.p95 < 10 : null },
       { name: 'check-ins per second', value: http.available ? http.concurrent.perSecond : null, target: '≥ 1000', met: http.available ? http.concurrent.perSecond >= 1000 : null },
       { name: 'endpoint p50 / bare SQL p50', value: endpointOverSqlP50, target: '≤ 4', met: endpointOverSqlP50 === null ? null : endpointOverSqlP50 <= 4 },
+      ...auditTargets(audit),
     ],
     totalMs: performance.now() - started,
   };

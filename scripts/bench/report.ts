@@ -1,9 +1,31 @@
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
+import type { AuditFigures } from './audit';
 import type { HttpFigures } from './http-check-ins';
 import type { NaiveFigures } from './naive-scan';
 import type { ParcelFigures } from './seed';
 import type { SqlFigures } from './sql-lookup';
+
+export type AuditResults = (AuditFigures & { available: true; seeding: { seeded: number; ms: number; limitsAdded: number } }) | { available: false; reason: string };
+
+type Target = { name: string; value: number | null; target: string; met: boolean | null };
+
+const count = (n: number) => (n >= 1e6 && n % 1e6 === 0 ? `${n / 1e6}M` : n.toLocaleString('en-US'));
+
+/** Issue 5: the club audit and a season report over 1 000 000 entries, each under a second (medians of the timed runs). */
+export function auditTargets(audit: AuditResults): Target[] {
+  if (!audit.available) {
+    return [
+      { name: 'audit over the bench entries ms', value: null, target: '< 1000', met: null },
+      { name: 'season report ms', value: null, target: '< 1000', met: null },
+    ];
+  }
+  const report = Math.max(audit.clubReport.medianMs, audit.ownerReport.medianMs);
+  return [
+    { name: `audit over ${count(audit.entries)} entries ms`, value: audit.audit.medianMs, target: '< 1000', met: audit.audit.medianMs < 1000 },
+    { name: 'season report ms (slower of club and landowner)', value: report, target: '< 1000', met: report < 1000 },
+  ];
+}
 
 export type BenchResults = {
   at: string;
@@ -13,13 +35,14 @@ export type BenchResults = {
   sql: SqlFigures;
   naive: NaiveFigures;
   http: HttpFigures & { entry: string | null };
+  audit: AuditResults;
   ratios: { endpointOverSqlP50: number | null; naiveOverEndpointP50: number | null; naiveOverSqlP50: number };
-  targets: { name: string; value: number | null; target: string; met: boolean | null }[];
+  targets: Target[];
   totalMs: number;
 };
 
 const ms = (value: number) => (Number.isFinite(value) ? value.toFixed(value < 10 ? 2 : 1) : '—');
-const rate = (value: number) => Math.round(value).toLocaleString('en-US');
+const rate = (value: number) => (value < 1 ? value.toFixed(2) : Math.round(value).toLocaleString('en-US'));
 const times = (value: number | null) => (value === null ? '—' : `${value.toFixed(value < 10 ? 2 : 0)}×`);
 const mark = (met: boolean | null) => (met === null ? 'not measured' : met ? 'met' : 'NOT met');
 
@@ -34,6 +57,13 @@ function rows(r: BenchResults): string[][] {
     out.push(['POST /api/check-ins over loopback', `${http.concurrent.concurrency} clients`, ms(http.concurrent.p50), ms(http.concurrent.p95), rate(http.concurrent.perSecond)]);
     out.push(['POST /api/check-ins, one client', 'serial', ms(http.serial.p50), ms(http.serial.p95), rate(1000 / http.serial.mean)]);
     out.push(['floor: GET /api/me signed out (no database)', `${http.concurrent.concurrency} clients`, ms(http.floor.p50), ms(http.floor.p95), rate(http.floor.perSecond)]);
+  }
+  const { audit } = r;
+  if (audit.available) {
+    out.push(['club audit, whole club (auditTallies)', `${count(audit.entries)} entries, ${audit.audit.runs} runs`, ms(audit.audit.medianMs), '', rate(1000 / audit.audit.medianMs)]);
+    out.push([`audit's aggregate alone, ${audit.narrowed.windows} parcels in view`, `${count(audit.entries)} entries, ${audit.narrowed.runs} runs`, ms(audit.narrowed.medianMs), '', rate(1000 / audit.narrowed.medianMs)]);
+    out.push(['season report, club, one parcel', `${count(audit.entries)} entries, ${audit.clubReport.runs} runs`, ms(audit.clubReport.medianMs), '', rate(1000 / audit.clubReport.medianMs)]);
+    out.push(['season report, landowner, one parcel', `${count(audit.entries)} entries, ${audit.ownerReport.runs} runs`, ms(audit.ownerReport.medianMs), '', rate(1000 / audit.ownerReport.medianMs)]);
   }
   return out;
 }
@@ -59,7 +89,25 @@ function summaryLines(r: BenchResults): string[] {
       ? `endpoint: ${r.http.concurrent.count} requests measured (${r.http.concurrent.failures} failed), statuses ${JSON.stringify(r.http.statuses)}, verdicts ${JSON.stringify(r.http.verdicts)}; ` +
         `app server CPU ${r.http.concurrent.serverCpuMsPerRequest === null ? '—' : r.http.concurrent.serverCpuMsPerRequest.toFixed(2)} ms per check-in; server ${r.http.entry}`
       : `endpoint: NOT MEASURED — ${r.http.reason}${r.http.entry ? ` (server ${r.http.entry})` : ''}`,
+    ...auditLines(r.audit),
     `ratios: endpoint p50 / bare SQL p50 = ${times(r.ratios.endpointOverSqlP50)}; naive scan / endpoint p50 = ${times(r.ratios.naiveOverEndpointP50)}; naive scan / bare SQL p50 = ${times(r.ratios.naiveOverSqlP50)}`,
+  ];
+}
+
+function auditLines(audit: AuditResults): string[] {
+  if (!audit.available) return [`audit and season report: NOT MEASURED — ${audit.reason}`];
+  const span = (t: { minMs: number; medianMs: number; maxMs: number }) => `min ${ms(t.minMs)}, median ${ms(t.medianMs)}, max ${ms(t.maxMs)} ms`;
+  return [
+    `ledger: ${audit.entries.toLocaleString('en-US')} bench harvest entries on ${audit.entryParcels} parcels; ` +
+      (audit.seeding.seeded > 0 ? `${audit.seeding.seeded.toLocaleString('en-US')} seeded in ${(audit.seeding.ms / 1000).toFixed(1)} s` : 'none seeded this run') +
+      (audit.seeding.limitsAdded > 0 ? `, ${audit.seeding.limitsAdded} season and parcel-season limits added` : ''),
+    `audit (club, as of ${audit.asOf}, ${audit.clubParcels.toLocaleString('en-US')} parcels in the club's view): ${span(audit.audit)}; ${audit.audit.rows} rows; ` +
+      `its statements: ${audit.audit.statements.map((s) => `${s.label} ${ms(s.ms)} ms (${s.rows} rows)`).join(', ')}`,
+    `audit aggregate statement alone, windows narrowed to the ${audit.narrowed.windows} of ${audit.narrowed.ofWindows.toLocaleString('en-US')} parcels with entries: ${span(audit.narrowed)}; ${audit.narrowed.rows} rows; indexes in its plan: ${audit.narrowed.indexesUsed.join(', ') || 'none'}`,
+    `season report, club: ${span(audit.clubReport)}; ${audit.clubReport.species} species, ${audit.clubReport.entries} entries, ${audit.clubReport.foragers} foragers`,
+    `season report, landowner ${audit.ownerReport.ownerId}: ${span(audit.ownerReport)}; ${audit.ownerReport.species} species, ${audit.ownerReport.entries} entries, ${audit.ownerReport.foragers} foragers`,
+    `audit aggregate under EXPLAIN ANALYZE: ${audit.planExecutionMs === null ? '—' : `${ms(audit.planExecutionMs)} ms`}; ` +
+      `harvest_entries_parcel_species or harvest_entries_permit used: ${audit.indexUsed ? 'yes' : 'NO'} (indexes in the plan: ${audit.indexesUsed.join(', ') || 'none'})`,
   ];
 }
 
@@ -91,6 +139,22 @@ export function report(r: BenchResults, dir: string): string {
     r.sql.plan,
     '```',
     '',
+    ...(r.audit.available
+      ? [
+          "## Plan of the audit's aggregate statement (EXPLAIN (ANALYZE, BUFFERS), with the parameters auditTallies sent)",
+          '',
+          '```',
+          r.audit.plan,
+          '```',
+          '',
+          `## Plan of the same statement, windows narrowed to the ${r.audit.narrowed.windows} parcels with entries`,
+          '',
+          '```',
+          r.audit.narrowed.plan,
+          '```',
+          '',
+        ]
+      : []),
   ].join('\n');
   writeFileSync(join(dir, 'results.md'), md);
   return text;
