@@ -3,27 +3,13 @@ import { AppError, conflict, notFound } from '../lib/errors';
 import { localDate } from '../lib/local-time';
 import { missingForActive, mayMove, type Missing, type PermitState } from '../lib/permit-states';
 import type { Tx } from './client';
+import { permitCoreColumns } from './permits.queries';
 import { auditEvents, parcels, permitEvents, permits, terms } from './schema';
 
 /** Locks a permit row for the rest of the transaction, with what its state decisions need. */
 export async function lockPermit(tx: Tx, permitId: string) {
   const rows = await tx
-    .select({
-      id: permits.id,
-      parcelId: permits.parcelId,
-      ownerId: parcels.ownerId,
-      state: permits.state,
-      holderUserId: permits.holderUserId,
-      holderClubId: permits.holderClubId,
-      startsOn: permits.startsOn,
-      endsOn: permits.endsOn,
-      feeMinor: permits.feeMinor,
-      currency: permits.currency,
-      feePaidAt: permits.feePaidAt,
-      acceptedTermsId: permits.acceptedTermsId,
-      timeZone: parcels.timeZone,
-      parcelName: parcels.name,
-    })
+    .select({ ...permitCoreColumns, ownerId: parcels.ownerId })
     .from(permits)
     .innerJoin(parcels, eq(parcels.id, permits.parcelId))
     .where(eq(permits.id, permitId))

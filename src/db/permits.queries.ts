@@ -6,7 +6,8 @@ import { allowances, clubs, limits, parcels, permitEvents, permits, species, ter
 const holderUser = alias(users, 'holder_user');
 const actor = alias(users, 'actor');
 
-const permitColumns = {
+/** A permit with its parcel's name and zone: what both the lists here and the lifecycle's row lock read. */
+export const permitCoreColumns = {
   id: permits.id,
   state: permits.state,
   startsOn: permits.startsOn,
@@ -15,14 +16,18 @@ const permitColumns = {
   currency: permits.currency,
   feePaidAt: permits.feePaidAt,
   acceptedTermsId: permits.acceptedTermsId,
-  termsAcceptedAt: permits.termsAcceptedAt,
-  requestNote: permits.requestNote,
-  createdAt: permits.createdAt,
-  parcelId: parcels.id,
+  parcelId: permits.parcelId,
   parcelName: parcels.name,
   timeZone: parcels.timeZone,
   holderUserId: permits.holderUserId,
   holderClubId: permits.holderClubId,
+};
+
+const permitColumns = {
+  ...permitCoreColumns,
+  termsAcceptedAt: permits.termsAcceptedAt,
+  requestNote: permits.requestNote,
+  createdAt: permits.createdAt,
   holderName: holderUser.name,
   holderEmail: holderUser.email,
   clubName: clubs.name,
