@@ -82,9 +82,11 @@ function makeReachable(dir) {
 
 /**
  * Creates (when missing) and starts a cluster in `dir`, listening only on 127.0.0.1:`port`.
- * Returns a stop function. `fresh` removes any earlier cluster first.
+ * Returns a stop function. `fresh` removes any earlier cluster first; `settings` ("name=value")
+ * are passed to the server when this call starts it.
+ * @param {{ dir: string; port: number; fresh?: boolean; settings?: string[] }} options
  */
-export function startCluster({ dir, port, fresh = false }) {
+export function startCluster({ dir, port, fresh = false, settings = [] }) {
   const log = `${dir}.log`;
   mkdirSync(dirname(dir), { recursive: true });
   if (fresh && existsSync(dir)) {
@@ -110,7 +112,7 @@ export function startCluster({ dir, port, fresh = false }) {
     say(`starting PostgreSQL on 127.0.0.1:${port}…`);
     const [cmd, args] = asClusterOwner(join(pgBin, 'pg_ctl'), [
       '-D', dir, '-l', log, '-w', '-t', '60',
-      '-o', `-c listen_addresses=127.0.0.1 -p ${port} -c unix_socket_directories=''`,
+      '-o', [`-c listen_addresses=127.0.0.1 -p ${port} -c unix_socket_directories=''`, ...settings.map((s) => `-c ${s}`)].join(' '),
       'start',
     ]);
     const started = quiet(cmd, args);

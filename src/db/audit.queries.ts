@@ -3,7 +3,7 @@ import { seasonAsOf, talliesFor, worstState } from '../lib/field';
 import type { AllowanceFacts, LimitScope, PermitFacts, Tally, TallyState } from '../lib/field/types';
 import { units, type Unit } from '../lib/units';
 
-import type { Executor } from './client';
+import { isPool, type Executor } from './client';
 
 /**
  * Whose view an audit is. A steward sees a club's entries: those made under the club's permits, on
@@ -25,8 +25,13 @@ type AuditParcel = {
   permits: (PermitFacts & { holderName: string })[];
 };
 
-/** The parcels in view, each with its allowances (every limit, the permits' own included) and the permits in view. */
-export async function loadAuditParcels(db: Executor, scope: AuditScope): Promise<AuditParcel[]> {
+/**
+ * The parcels in view, each with its allowances (every limit, the permits' own included) and the
+ * permits in view. With `withTotals`, only those with anything in the kept totals: a club's permits
+ * or an owner's parcels can run to many thousands, most of them never harvested.
+ */
+export async function loadAuditParcels(db: Executor, scope: AuditScope, { withTotals = false } = {}): Promise<AuditParcel[]> {
+  const harvested = withTotals ? sql`and p.id in (select h.parcel_id from harvested_parcels h)` : sql``;
   const inView = isClub(scope)
     ? sql`p.id in (select cp.parcel_id from permits cp where cp.holder_club_id = ${scope.clubId}::uuid and cp.state in ('approved', 'active', 'expired', 'revoked')) ${scope.parcelId ? sql`and p.id = ${scope.parcelId}::uuid` : sql``}`
     : scope.parcelId
@@ -47,7 +52,7 @@ export async function loadAuditParcels(db: Executor, scope: AuditScope): Promise
         from permits pm left join clubs hc on hc.id = pm.holder_club_id left join users hu on hu.id = pm.holder_user_id
         where pm.parcel_id = p.id and ${permitInView}), '[]') as permits
     from parcels p
-    where ${inView}
+    where ${inView} ${harvested}
     order by p.name`);
   return rows.map((r) => ({
     id: r.id,
@@ -61,9 +66,10 @@ export async function loadAuditParcels(db: Executor, scope: AuditScope): Promise
 }
 
 /** The season each allowance in view covers on `asOf`, and the dimension its limits measure. */
-type Window = { parcel: AuditParcel; allowance: AllowanceFacts; start: string; end: string; dimension: 'mass' | 'volume' | 'count' | null };
+export type AuditWindow = { parcel: AuditParcel; allowance: AllowanceFacts; start: string; end: string; dimension: 'mass' | 'volume' | 'count' | null };
+type Window = AuditWindow;
 
-function windowsOf(parcels: AuditParcel[], asOf: string): Window[] {
+export function windowsOf(parcels: AuditParcel[], asOf: string): Window[] {
   return parcels.flatMap((parcel) =>
     parcel.allowances.flatMap((allowance) => {
       const season = seasonAsOf(allowance.seasons, asOf);
@@ -72,6 +78,14 @@ function windowsOf(parcels: AuditParcel[], asOf: string): Window[] {
       return [{ parcel, allowance, start: season.start, end: season.end, dimension: measured ? units[measured.unit].dimension : null }];
     }),
   );
+}
+
+/** The windows as a table: (parcel_id, species_id, season_start, season_end, dimension). */
+function windowsTable(windows: Window[]) {
+  return sql`
+    select * from unnest(${uuidArray(windows.map((w) => w.parcel.id))}, ${uuidArray(windows.map((w) => w.allowance.speciesId))},
+      ${`{${windows.map((w) => w.start).join(',')}}`}::date[], ${`{${windows.map((w) => w.end).join(',')}}`}::date[],
+      ${`{${windows.map((w) => w.dimension ?? 'NULL').join(',')}}`}::dimension[]) as w(parcel_id, species_id, season_start, season_end, dimension)`;
 }
 
 /**
@@ -83,10 +97,7 @@ function windowsOf(parcels: AuditParcel[], asOf: string): Window[] {
 function countedEntries(windows: Window[], scope: AuditScope) {
   const permitFilter = isClub(scope) ? sql`and coalesce(o.permit_id, e.permit_id) in (select cp.id from permits cp where cp.holder_club_id = ${scope.clubId}::uuid)` : sql``;
   return sql`
-    w as (
-      select * from unnest(${uuidArray(windows.map((w) => w.parcel.id))}, ${uuidArray(windows.map((w) => w.allowance.speciesId))},
-        ${`{${windows.map((w) => w.start).join(',')}}`}::date[], ${`{${windows.map((w) => w.end).join(',')}}`}::date[],
-        ${`{${windows.map((w) => w.dimension ?? 'NULL').join(',')}}`}::dimension[]) as w(parcel_id, species_id, season_start, season_end, dimension)),
+    w as (${windowsTable(windows)}),
     counted as (
       select e.id, e.parcel_id, e.species_id, e.forager_id, coalesce(o.permit_id, e.permit_id) as permit_id,
         coalesce(o.local_date, e.local_date) as local_date, coalesce(o.visit_id, e.visit_id) as visit_id, e.base_quantity, e.breach
@@ -137,43 +148,53 @@ type SumRow = {
 };
 
 /**
+ * Per window, the kept totals of its season grouped by forager and permit, with the parcel's and
+ * the permit's season totals; in a club's view, the club's permits only.
+ */
+export function auditSumsQuery(windows: Window[], scope: AuditScope) {
+  // A club's view holds only its own permits (loadAuditParcels loaded those alone).
+  const inClub = isClub(scope) ? sql`m.permit_id = any(${uuidArray([...new Set(windows.flatMap((w) => w.parcel.permits.map((pm) => pm.id)))])})` : sql`true`;
+  // Per window, the kept totals of its season (harvest_totals, read from its index alone) grouped
+  // by forager and permit: the season's sum, the busiest day and visit (each row carries its day's
+  // and its visit's whole total), entries and breaches. The parcel's and the permit's season totals
+  // are sums of those, every holder's counted in the first, before a club's view keeps its own.
+  return sql`
+    with w as (${windowsTable(windows)}),
+    member as (
+      select w.parcel_id, w.species_id, m.*
+      from w cross join lateral (
+        select t.forager_id, t.permit_id, sum(t.total) as season_total, max(t.day_total) as day_peak, max(t.visit_total) as visit_peak,
+          sum(t.entries)::int as entries, sum(t.breaches)::int as breaches
+        from harvest_totals t
+        where t.parcel_id = w.parcel_id and t.species_id = w.species_id and t.local_date between w.season_start and w.season_end
+          and (w.dimension is null or t.dimension = w.dimension)
+        group by t.forager_id, t.permit_id) m),
+    totalled as (
+      select member.*, sum(season_total) over (partition by parcel_id, species_id) as parcel_total,
+        sum(season_total) over (partition by parcel_id, species_id, permit_id) as club_total
+      from member)
+    select m.parcel_id, m.species_id, m.forager_id, coalesce(u.name, u.email) as forager_name, m.permit_id,
+      trim_scale(m.season_total)::text as season_total, trim_scale(m.day_peak)::text as day_peak, coalesce(trim_scale(m.visit_peak), 0)::text as visit_peak,
+      m.entries, m.breaches, trim_scale(m.parcel_total)::text as parcel_total, trim_scale(m.club_total)::text as club_total
+    from totalled m
+    join users u on u.id = m.forager_id
+    where ${inClub}`;
+}
+
+/**
  * Tallies by parcel × species × forager (under one permit) against every limit in force, for the
- * season in progress or last ended on `asOf` (a parcel-local date). One statement sums the ledger;
- * the limit engine of the field screen turns the sums into tallies, so both agree by construction.
+ * season in progress or last ended on `asOf` (a parcel-local date), by parcel, species and forager
+ * name. The kept totals of the ledger are summed in SQL; the limit engine of the field screen turns
+ * the sums into tallies, so both agree by construction.
  */
 export async function auditTallies(db: Executor, scope: AuditScope, { asOf }: { asOf: string }): Promise<Audit> {
-  const parcels = await loadAuditParcels(db, scope);
+  const parcels = await loadAuditParcels(db, scope, { withTotals: true });
   const windows = windowsOf(parcels, asOf);
   if (windows.length === 0) return { asOf, rows: [], chart: [] };
-  const sums = await db.execute<SumRow>(sql`
-    with ${countedEntries(windows, scope)},
-    per_day as (select parcel_id, species_id, forager_id, permit_id, local_date, sum(base_quantity) as q from counted group by 1, 2, 3, 4, 5),
-    per_visit as (select parcel_id, species_id, forager_id, permit_id, visit_id, sum(base_quantity) as q from counted group by 1, 2, 3, 4, 5),
-    member as (
-      select parcel_id, species_id, forager_id, permit_id, sum(base_quantity) as season_total,
-        count(*) filter (where base_quantity > 0)::int as entries, count(*) filter (where breach)::int as breaches
-      from counted group by 1, 2, 3, 4),
-    day_peak as (select parcel_id, species_id, forager_id, permit_id, max(q) as peak from per_day group by 1, 2, 3, 4),
-    visit_peak as (select parcel_id, species_id, forager_id, permit_id, max(q) as peak from per_visit where visit_id is not null group by 1, 2, 3, 4),
-    club_total as (select parcel_id, species_id, permit_id, sum(base_quantity) as total from counted group by 1, 2, 3),
-    parcel_total as (
-      select w.parcel_id, w.species_id, coalesce(sum(e.base_quantity), 0) as total
-      from w
-      join harvest_entries e on e.parcel_id = w.parcel_id and e.species_id = w.species_id and e.local_date >= w.season_start
-        and (w.dimension is null or e.dimension = w.dimension)
-      left join harvest_entries o on o.id = e.corrects_entry_id
-      where coalesce(o.local_date, e.local_date) between w.season_start and w.season_end
-      group by 1, 2)
-    select m.parcel_id, m.species_id, m.forager_id, coalesce(u.name, u.email) as forager_name, m.permit_id,
-      trim_scale(m.season_total)::text as season_total, coalesce(d.peak, 0)::text as day_peak, coalesce(v.peak, 0)::text as visit_peak, m.entries, m.breaches,
-      coalesce(pt.total, 0)::text as parcel_total, coalesce(ct.total, 0)::text as club_total
-    from member m
-    join users u on u.id = m.forager_id
-    left join day_peak d using (parcel_id, species_id, forager_id, permit_id)
-    left join visit_peak v using (parcel_id, species_id, forager_id, permit_id)
-    left join parcel_total pt on pt.parcel_id = m.parcel_id and pt.species_id = m.species_id
-    left join club_total ct on ct.parcel_id = m.parcel_id and ct.species_id = m.species_id and ct.permit_id is not distinct from m.permit_id
-    order by m.parcel_id, m.species_id, forager_name`);
+  // The windows in two halves on two connections at once when there is a pool (PostgreSQL runs one
+  // statement on one core). A window is one parcel and species, and no sum crosses windows.
+  const halves = windows.length > 1 && isPool(db) ? [windows.slice(0, windows.length >> 1), windows.slice(windows.length >> 1)] : [windows];
+  const sums = (await Promise.all(halves.map((part) => db.execute<SumRow>(auditSumsQuery(part, scope))))).flat();
 
   const windowOf = new Map(windows.map((w) => [`${w.parcel.id}|${w.allowance.speciesId}`, w]));
   const rows: AuditRow[] = [];
@@ -202,7 +223,10 @@ export async function auditTallies(db: Executor, scope: AuditScope, { asOf }: { 
       seasonTotalBase: s.season_total,
     });
   }
-  return { asOf, rows, chart: chartBars(rows) };
+  // By code point, as the database's C collation orders text.
+  const keyOf = (r: AuditRow) => [r.parcelName, r.parcelId, r.commonName, r.speciesId, r.foragerName, r.foragerId, r.permitId ?? ''].join('\u0000');
+  const sorted = rows.map((row) => ({ row, key: keyOf(row) })).sort((a, b) => (a.key < b.key ? -1 : a.key > b.key ? 1 : 0)).map((k) => k.row);
+  return { asOf, rows: sorted, chart: chartBars(sorted) };
 }
 
 /** Per parcel, species and scope: the highest tally among the rows (a shared cap is the same in each). */

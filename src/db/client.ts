@@ -49,3 +49,8 @@ export async function executePrepared<Row extends Record<string, unknown>>(db: E
   const { sql, params } = dialect.sqlToQuery(query);
   return (await hot.unsafe(sql, params as postgres.ParameterOrJSON<never>[], { prepare: true })) as unknown as Row[];
 }
+
+/** Whether `db` is a pool (statements may run at once on several connections), not a transaction. */
+export function isPool(db: Executor): db is Db {
+  return hotPools.has(db);
+}

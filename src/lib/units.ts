@@ -69,12 +69,21 @@ const decimalPattern = /^([+-])?(\d+)(?:\.(\d+))?$/;
 const powers: bigint[] = [];
 const pow10 = (n: number) => (powers[n] ??= 10n ** BigInt(n));
 
+/** Parsed decimals by their text: an audit compares the same limits and totals thousands of times. Never mutated. */
+const parsed = new Map<string, Decimal>();
+
 function parseDecimal(text: string): Decimal {
-  const match = decimalPattern.exec(String(text).trim());
+  const key = String(text);
+  const known = parsed.get(key);
+  if (known) return known;
+  const match = decimalPattern.exec(key.trim());
   if (!match) throw new RangeError(`not a decimal number: ${text}`);
   const [, sign, whole = '0', fraction = ''] = match;
   const units = BigInt(whole + fraction);
-  return { units: sign === '-' ? -units : units, scale: fraction.length };
+  const decimal = { units: sign === '-' ? -units : units, scale: fraction.length };
+  if (parsed.size >= 10_000) parsed.clear();
+  parsed.set(key, decimal);
+  return decimal;
 }
 
 function formatDecimal({ units, scale }: Decimal): string {

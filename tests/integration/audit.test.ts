@@ -1,6 +1,6 @@
-import { eq } from 'drizzle-orm';
+import { eq, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { auditEntries, auditTallies, type AuditRow } from '../../src/db/audit.queries';
+import { auditEntries, auditSumsQuery, auditTallies, loadAuditParcels, windowsOf, type AuditRow } from '../../src/db/audit.queries';
 import { answerInvitation, inviteMember, leaveClub, manageMembership } from '../../src/db/clubs.commands';
 import { checkIn, recordHarvest } from '../../src/db/field.commands';
 import { addFlagNote, listFlags } from '../../src/db/flags.queries';
@@ -481,5 +481,27 @@ describe('recordHarvest raises flags', () => {
     expect(raised.map((f) => [f.kind, f.scopes, f.worstState])).toEqual([['breach', ['day'], 'over']]);
     // Four entries, three flags: the 50 g that kept the tally nearing raised none.
     expect((await listFlags(db(), { ownerId: ids.owner, parcelId })).map((f) => f.kind).sort()).toEqual(['breach', 'nearing', 'nearing']);
+  });
+});
+
+describe("the audit's statement over the kept totals", () => {
+  /*
+   * The audit sums harvest_totals (drizzle/0009), not the ledger: each window of a season must reach
+   * its rows through the key and read them from the index alone. The tables here are small, so scans
+   * of the whole table and bitmap scans are priced out (enable_seqscan, enable_bitmapscan; PostgreSQL
+   * manual §20.7.1): a plan that cannot use the index keeps its scan anyway and the assertion fails.
+   */
+  it('given the club scope, it reads each season from harvest_totals_key by an index-only scan, bounded by parcel, species and days', async () => {
+    const parcelsInView = await loadAuditParcels(db(), { clubId: ids.club }, { withTotals: true });
+    const windows = windowsOf(parcelsInView, asOf);
+    expect(windows.length).toBeGreaterThan(0);
+    const plan = await db().transaction(async (tx) => {
+      await tx.execute(sql`set local enable_seqscan = off`);
+      await tx.execute(sql`set local enable_bitmapscan = off`);
+      const rows = await tx.execute<{ 'QUERY PLAN': string }>(sql`explain (costs off) ${auditSumsQuery(windows, { clubId: ids.club })}`);
+      return rows.map((r) => r['QUERY PLAN']).join('\n');
+    });
+    expect(plan).toMatch(/Index Only Scan using harvest_totals_key on harvest_totals t\n\s+Index Cond: \(\(parcel_id = w\.parcel_id\) AND \(species_id = w\.species_id\) AND \(local_date >= w\.season_start\) AND \(local_date <= w\.season_end\)\)/);
+    expect(plan).not.toMatch(/Seq Scan on harvest_totals|harvest_entries/);
   });
 });

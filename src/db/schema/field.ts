@@ -1,5 +1,5 @@
 import { sql } from 'drizzle-orm';
-import { boolean, check, date, doublePrecision, index, numeric, pgTable, text, uuid, type AnyPgColumn } from 'drizzle-orm/pg-core';
+import { boolean, check, date, doublePrecision, index, integer, numeric, pgTable, text, uuid, type AnyPgColumn } from 'drizzle-orm/pg-core';
 import { at, createdAt, id, point } from './columns';
 import { dimensionEnum, methodEnum, unitEnum, verdictEnum, visitEndEnum } from './enums';
 import { users } from './auth';
@@ -44,7 +44,7 @@ export const checkIns = pgTable(
     visitId: uuid('visit_id').references(() => visits.id),
     at: at('at').notNull().defaultNow(),
   },
-  (t) => [index('check_ins_forager').on(t.foragerId, t.at), check('check_ins_accuracy', sql`${t.accuracyM} >= 0`)],
+  (t) => [index('check_ins_forager').on(t.foragerId, t.at), index('check_ins_visit').on(t.visitId), check('check_ins_accuracy', sql`${t.accuracyM} >= 0`)],
 );
 
 /**
@@ -84,10 +84,50 @@ export const harvestEntries = pgTable(
     index('harvest_entries_parcel_species').on(t.parcelId, t.speciesId, t.localDate),
     index('harvest_entries_forager').on(t.foragerId, t.recordedAt),
     index('harvest_entries_permit').on(t.permitId),
+    index('harvest_entries_visit').on(t.visitId),
+    /** Corrections are few: finding an entry's corrections reads only these. */
+    index('harvest_entries_corrects').on(t.correctsEntryId).where(sql`${t.correctsEntryId} is not null`),
     check('harvest_entries_correction_reason', sql`${t.correctsEntryId} is null or ${t.correctionReason} is not null`),
     check('harvest_entries_positive_unless_correction', sql`${t.correctsEntryId} is not null or ${t.quantity} > 0`),
   ],
 );
+
+/**
+ * The ledger summed as the limits count it, kept by a trigger on each new entry (drizzle/0009): one
+ * row per forager, parcel, species, dimension, permit, day and visit, a correction counted on its
+ * entry's day, visit and permit. Each row also carries the whole day's total of its forager and
+ * permit, and the whole visit's, so the audit finds the busiest day and visit with one MAX over
+ * these rows, with no second grouping of the ledger. Derived: rebuilt from the ledger at will.
+ * Its unique key, with NULLS NOT DISTINCT and the sums included for index-only scans, is made in
+ * that migration: drizzle's index builder has neither.
+ */
+export const harvestTotals = pgTable(
+  'harvest_totals',
+  {
+    parcelId: uuid('parcel_id').notNull().references(() => parcels.id),
+    speciesId: uuid('species_id').notNull().references(() => species.id),
+    dimension: dimensionEnum('dimension').notNull(),
+    foragerId: text('forager_id').notNull().references(() => users.id),
+    permitId: uuid('permit_id').references(() => permits.id),
+    localDate: date('local_date', { mode: 'string' }).notNull(),
+    visitId: uuid('visit_id').references(() => visits.id),
+    /** Base units (g, mL or count) of this row's entries. */
+    total: numeric('total', { mode: 'string' }).notNull(),
+    /** Base units of every row of this forager, parcel, species, dimension, permit and day. */
+    dayTotal: numeric('day_total', { mode: 'string' }).notNull(),
+    /** Base units of every row of this visit, species, dimension and permit; null without a visit. */
+    visitTotal: numeric('visit_total', { mode: 'string' }),
+    /** Entries that add (corrections that take away are not counted), and breaches. */
+    entries: integer('entries').notNull(),
+    breaches: integer('breaches').notNull(),
+  },
+  (t) => [index('harvest_totals_visit').on(t.visitId).where(sql`${t.visitId} is not null`)],
+);
+
+/** The parcels with anything in the ledger, kept by the same trigger: an audit skips the rest without reading the totals. */
+export const harvestedParcels = pgTable('harvested_parcels', {
+  parcelId: uuid('parcel_id').primaryKey().references(() => parcels.id),
+});
 
 export type Visit = typeof visits.$inferSelect;
 export type CheckIn = typeof checkIns.$inferSelect;

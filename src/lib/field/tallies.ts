@@ -60,6 +60,20 @@ function isClubPermitOf(permit: PermitFacts | null, forager: Forager): boolean {
  */
 export function limitsInForce(allowance: AllowanceFacts, { forager, permit }: Pick<TallyContext, 'forager' | 'permit'>): AppliedLimit[] {
   const clubPermit = isClubPermitOf(permit, forager);
+  const key = `${permit?.id ?? ''}|${clubPermit}`;
+  let known = chosenLimits.get(allowance.limits);
+  if (!known) chosenLimits.set(allowance.limits, (known = new Map()));
+  const cached = known.get(key);
+  if (cached) return cached;
+  const chosen = chooseLimits(allowance, permit, clubPermit);
+  known.set(key, chosen);
+  return chosen;
+}
+
+/** The limits chosen from one allowance's limits (loaded facts, never changed) per permit: an audit asks for the same ones on every row. */
+const chosenLimits = new WeakMap<LimitFacts[], Map<string, AppliedLimit[]>>();
+
+function chooseLimits(allowance: AllowanceFacts, permit: PermitFacts | null, clubPermit: boolean): AppliedLimit[] {
   const chosen = new Map<LimitScope, AppliedLimit>();
   const candidates = allowance.limits.filter((l) => l.permitId === null || (permit !== null && l.permitId === permit.id));
   // Parcel limits first, so a permit limit must be strictly tighter to replace one.
@@ -74,7 +88,22 @@ export function limitsInForce(allowance: AllowanceFacts, { forager, permit }: Pi
   return scopeOrder.flatMap((scope) => chosen.get(scope) ?? []);
 }
 
+/** Tallies already worked out per chosen limit, by amount used and threshold: an audit meets the same parcel-wide totals on every member's row. Never mutated. */
+const workedTallies = new WeakMap<AppliedLimit, Map<string, Tally>>();
+
 function tallyOf(limit: AppliedLimit, usedBase: string, thresholdPercent: number): Tally {
+  let worked = workedTallies.get(limit);
+  if (!worked) workedTallies.set(limit, (worked = new Map()));
+  const key = `${usedBase}|${thresholdPercent}`;
+  const known = worked.get(key);
+  if (known) return known;
+  if (worked.size >= 1000) worked.clear();
+  const tally = workOutTally(limit, usedBase, thresholdPercent);
+  worked.set(key, tally);
+  return tally;
+}
+
+function workOutTally(limit: AppliedLimit, usedBase: string, thresholdPercent: number): Tally {
   const remainingBase = subtractDecimals(limit.base, usedBase);
   // Cut, not rounded, to 2 decimals, so the figure never reads 80 while the state is still within.
   const percent = compareDecimals(limit.base, '0') > 0 ? Number(divideDecimals(multiplyDecimals(usedBase, '100'), limit.base, 2, 'toward-zero')) : 100;
