@@ -3,6 +3,7 @@ import { fileURLToPath } from 'node:url';
 import { sql } from 'drizzle-orm';
 import geodesic from 'geographiclib-geodesic';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { auditTallies } from '../../src/db/audit.queries';
 import { closeDb, createDb, type Db } from '../../src/db/client';
 import { readDemo, seedDemoIfEmpty } from '../../src/db/demo/seed-demo';
 
@@ -144,5 +145,52 @@ describe('the seeded demo scenario', () => {
     expect(beforeCounts?.users).toBeGreaterThan(0);
     expect(await seedDemoIfEmpty(db, readDemo(dataDir))).toBe(false);
     expect((await countAll())[0]).toEqual(beforeCounts);
+  });
+});
+
+describe("the demo club's season on Farrand Sugarbush (data/demo/scenario.json, visits)", () => {
+  /*
+   * Worked by hand from the demo's visits, counted under the club permit as of 2026-12-01: every
+   * season of these species had begun or ended in 2026 by then. Limits are the parcel's
+   * (scenario.json allowances); nearing from 75 % there. Percent cut to 2 places, as the engine does.
+   */
+  const tallies = async () => {
+    const [club] = await rows<{ id: string }>(sql`select id from clubs where slug = 'three-ridges-foragers'`);
+    const audit = await auditTallies(db, { clubId: club?.id ?? '' }, { asOf: '2026-12-01' });
+    return (forager: string, species: string) => {
+      const row = audit.rows.find((r) => r.foragerName === forager && r.commonName === species && r.parcelName === 'Farrand Sugarbush');
+      return row?.tallies.map((t) => [t.scope, t.used, t.limit.unit, t.percent, t.state]);
+    };
+  };
+
+  it('given a correction of the same visit, Irene\u2019s chanterelle counts 410 − 60 = 350 g: 70 % of the 500 g visit and day limits, 11.66 % of 3 kg', async () => {
+    const of = await tallies();
+    // Parcel-season: Beth 320 + 280, Irene 350, Sam 250 = 1200 g = 1.2 kg of 20 kg = 6 %.
+    expect(of('Irene Duval', 'Golden chanterelle')).toEqual([
+      ['visit', '350', 'g', 70, 'within'],
+      ['day', '350', 'g', 70, 'within'],
+      ['season', '0.35', 'kg', 11.66, 'within'],
+      ['parcel-season', '1.2', 'kg', 6, 'within'],
+    ]);
+  });
+
+  it('given two visits, Beth\u2019s chanterelle shows the busier (320 g, 64 %) and the season 600 g (20 % of 3 kg)', async () => {
+    const of = await tallies();
+    expect(of('Beth Lindqvist', 'Golden chanterelle')?.slice(0, 3)).toEqual([
+      ['visit', '320', 'g', 64, 'within'],
+      ['day', '320', 'g', 64, 'within'],
+      ['season', '0.6', 'kg', 20, 'within'],
+    ]);
+  });
+
+  it('given 1.1 kg of hen-of-the-woods in kilograms, the steward is at 73.33 % of the 1.5 kg day limit, just within the 75 % threshold', async () => {
+    const of = await tallies();
+    // 1.1 / 1.5 = 0.7333…; parcel-season 0.9 + 1.1 = 2 kg of 25 kg = 8 %.
+    expect(of('Marisol Kent', 'Hen of the woods (maitake)')).toEqual([
+      ['visit', '1.1', 'kg', 73.33, 'within'],
+      ['day', '1.1', 'kg', 73.33, 'within'],
+      ['season', '1.1', 'kg', 18.33, 'within'],
+      ['parcel-season', '2', 'kg', 8, 'within'],
+    ]);
   });
 });

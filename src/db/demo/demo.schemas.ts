@@ -69,6 +69,32 @@ export const zonesFile = z.object({
 });
 
 const limit = z.object({ scope: z.enum(limitScopeEnum.enumValues), quantity: z.string().regex(/^\d+(\.\d+)?$/), unit });
+/** A parcel-local time of day, HH:MM. */
+const clock = z.string().regex(/^([01]\d|2[0-3]):[0-5]\d$/);
+
+/** A past visit with its entries, under the permit of `holderClub` (or the forager's own) in force that day. */
+const demoVisit = z.object({
+  foragerEmail: z.email(),
+  parcelSlug: slug,
+  holderClub: slug.nullable().default(null),
+  localDate: isoDate,
+  from: clock,
+  to: clock,
+  entries: z
+    .array(
+      z.object({
+        speciesSlug: slug,
+        method,
+        /** Signed only for a correction, which names the time of the entry it corrects in this visit. */
+        quantity: z.string().regex(/^-?\d+(\.\d+)?$/),
+        unit,
+        at: clock,
+        corrects: clock.optional(),
+        reason: z.string().optional(),
+      }),
+    )
+    .min(1),
+});
 
 export const scenarioFile = z.object({
   hazards: z.array(z.object({ parcelSlug: slug, kind: z.enum(hazardKindEnum.enumValues), title: z.string(), detail: z.string() })),
@@ -101,6 +127,7 @@ export const scenarioFile = z.object({
         .min(1),
     }),
   ),
+  visits: z.array(demoVisit).default([]),
 });
 
 export type DemoPerson = z.infer<typeof person>;

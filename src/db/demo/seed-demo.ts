@@ -3,9 +3,10 @@ import { join } from 'node:path';
 import { count, sql } from 'drizzle-orm';
 import type { z } from 'zod';
 import type { Db, Tx } from '../client';
+import { toBase, units } from '../../lib/units';
 import {
-  allowances, closures, clubMemberships, clubs, hazards, limits, noHarvestZones, parcels, payments, permitEvents, permits,
-  species, terms, users,
+  allowances, checkIns, closures, clubMemberships, clubs, harvestEntries, hazards, limits, noHarvestZones, parcels, payments, permitEvents, permits,
+  species, terms, users, visits,
 } from '../schema';
 import type { GeoJsonGeometry } from '../schema/columns';
 import { clubsFile, parcelsFile, person, scenarioFile, speciesFile, zonesFile, type DemoPerson } from './demo.schemas';
@@ -128,6 +129,7 @@ async function seedDemo(tx: Tx, demo: Demo) {
     if (a.limits.length > 0) await tx.insert(limits).values(a.limits.map((l) => ({ ...l, allowanceId: row.id })));
   }
 
+  const heldPermits: { id: string; parcelSlug: string; holder: string; startsOn: string; endsOn: string }[] = [];
   for (const p of scenario.permits) {
     const history = p.history;
     const last = history[history.length - 1];
@@ -158,6 +160,7 @@ async function seedDemo(tx: Tx, demo: Demo) {
       })
       .returning({ id: permits.id });
     if (!row) continue;
+    if (['active', 'expired'].includes(p.state)) heldPermits.push({ id: row.id, parcelSlug: p.parcelSlug, holder: p.holderClub ?? p.holderEmail ?? '', startsOn: p.startsOn, endsOn: p.endsOn });
     await tx.insert(permitEvents).values(
       history.map((h) => ({ permitId: row.id, fromState: h.from, toState: h.to, actorId: h.byEmail ? lookup(userIds, h.byEmail, 'the person') : null, reason: h.reason, at: new Date(h.at) })),
     );
@@ -172,6 +175,52 @@ async function seedDemo(tx: Tx, demo: Demo) {
         createdAt: new Date(activatedAt),
         paidAt: new Date(activatedAt),
       });
+    }
+  }
+
+  const timeZones = new Map(demo.parcels.features.map((f) => [f.properties.slug, f.properties.timeZone]));
+  for (const v of scenario.visits) {
+    const holder = v.holderClub ?? v.foragerEmail;
+    const permit = heldPermits.find((p) => p.parcelSlug === v.parcelSlug && p.holder === holder && p.startsOn <= v.localDate && v.localDate <= p.endsOn);
+    if (!permit) throw new Error(`the demo visit of ${v.foragerEmail} on ${v.parcelSlug} on ${v.localDate} has no permit of ${holder} in force that day`);
+    const foragerId = lookup(userIds, v.foragerEmail, 'the person');
+    const pid = parcelId(v.parcelSlug);
+    const zone = lookup(timeZones, v.parcelSlug, 'the parcel');
+    const at = (time: string) => sql`(${v.localDate}::date + ${time}::time) at time zone ${zone}`;
+    // Where a person stands on the parcel: a point PostGIS guarantees to be on it.
+    const onParcel = sql`(select ST_PointOnSurface(p.boundary) from parcels p where p.id = ${pid})`;
+    const [visit] = await tx
+      .insert(visits)
+      .values({ foragerId, parcelId: pid, permitId: permit.id, localDate: v.localDate, startedAt: at(v.from), endedAt: at(v.to), endedBy: 'check-out' })
+      .returning({ id: visits.id });
+    if (!visit) continue;
+    await tx.insert(checkIns).values({ foragerId, position: onParcel, accuracyM: 8, verdict: 'clear', parcelId: pid, visitId: visit.id, at: at(v.from) });
+    const entryAt = new Map<string, string>();
+    for (const e of v.entries) {
+      const corrected = e.corrects ? lookup(entryAt, e.corrects, 'the entry at') : null;
+      const [row] = await tx
+        .insert(harvestEntries)
+        .values({
+          idempotencyKey: `demo-${v.foragerEmail}-${v.localDate}-${e.at}`,
+          foragerId,
+          parcelId: pid,
+          permitId: permit.id,
+          visitId: visit.id,
+          speciesId: lookup(speciesIds, e.speciesSlug, 'the species'),
+          method: e.method,
+          quantity: e.quantity,
+          unit: e.unit,
+          dimension: units[e.unit].dimension,
+          baseQuantity: toBase(e.quantity, e.unit),
+          localDate: v.localDate,
+          position: onParcel,
+          correctsEntryId: corrected,
+          correctionReason: e.reason ?? null,
+          recordedBy: foragerId,
+          recordedAt: at(e.at),
+        })
+        .returning({ id: harvestEntries.id });
+      if (row) entryAt.set(e.at, row.id);
     }
   }
 }
