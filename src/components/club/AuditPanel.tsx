@@ -229,7 +229,7 @@ function AuditTable({ rows, asOf, entriesUrl, showPositions }: { rows: AuditRow[
         </div>
       </div>
       <p className="mt-2 text-sm text-loam-700" aria-live="polite" data-testid="audit-count">{shown.length} of {rows.length} {rows.length === 1 ? 'row' : 'rows'}.</p>
-      <div className="mt-2 overflow-x-auto rounded-lg border border-loam-200 bg-white">
+      <div className="relative mt-2 overflow-x-auto rounded-lg border border-loam-200 bg-white">
         <table className="table min-w-[64rem]">
           <caption className="sr-only">Tallies for the season on {formatDate(asOf)}, one row per parcel, species, forager and permit. Select a column heading to sort.</caption>
           <thead>

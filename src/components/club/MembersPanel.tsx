@@ -61,7 +61,7 @@ export default function MembersPanel({ clubId, members, currentUserId }: Members
   return (
     <div data-testid="members-panel" data-hydrated={hydrated ? 'true' : undefined}>
       {problem && <p role="alert" className="field-error mb-2">{problem}</p>}
-      <div className="overflow-x-auto rounded-lg border border-loam-200 bg-white">
+      <div className="relative overflow-x-auto rounded-lg border border-loam-200 bg-white">
         <table className="table">
           <caption className="sr-only">Members of the club, past members included</caption>
           <thead>

@@ -142,7 +142,7 @@ export default function LedgerTable({ entries }: LedgerTableProps) {
       <p className="mt-2 text-sm text-loam-700" aria-live="polite" data-testid="ledger-count">
         Showing {rows.length} of {entries.length} {entries.length === 1 ? 'entry' : 'entries'}.
       </p>
-      <div className="mt-2 overflow-x-auto rounded-lg border border-loam-200 bg-white">
+      <div className="relative mt-2 overflow-x-auto rounded-lg border border-loam-200 bg-white">
         <table className="table min-w-[56rem]">
           <caption className="sr-only">Your harvest entries, newest first; corrections sit under the entry they correct. Select a column heading to sort.</caption>
           <thead>
