@@ -7,10 +7,10 @@ import { addFlagNote, listFlags } from '../../src/db/flags.queries';
 import { applyMigrations } from '../../src/db/migrations';
 import { seasonReport } from '../../src/db/reports.queries';
 import {
-  allowances, auditEvents, clubMemberships, clubs, flagNotes, flags, harvestEntries, limits, parcels, permits, species, users, type NewHarvestEntry,
+  allowances, auditEvents, clubMemberships, clubs, flagNotes, flags, harvestEntries, limits, parcels, permits, species, type NewHarvestEntry,
 } from '../../src/db/schema';
 import { AppError } from '../../src/lib/errors';
-import { createThrowawayDatabase, migrationsFolder, refusal, type ThrowawayDatabase } from './throwaway-database';
+import { createThrowawayDatabase, insertUser, migrationsFolder, one, referenceBoundary, refusal, type ThrowawayDatabase } from './throwaway-database';
 
 /*
  * The stewardship audit against the real migrations. The ledger and the flags are append-only by
@@ -35,18 +35,7 @@ const ids = {
   flagAda: '', flagCy: '', flagOld: '',
 };
 const asOf = '2026-12-01';
-const ring = [[-75, 45], [-74.99, 45], [-74.99, 45.01], [-75, 45.01], [-75, 45]];
-const boundary = { type: 'MultiPolygon', coordinates: [[ring]] };
-
-async function one<T>(rows: Promise<T[]>): Promise<T> {
-  const [row] = await rows;
-  if (!row) throw new Error('the row was not inserted');
-  return row;
-}
-
-async function user(email: string, name: string, roles: ('forager' | 'landowner')[] = ['forager']) {
-  return (await one(db().insert(users).values({ email, name, roles }).returning({ id: users.id }))).id;
-}
+const boundary = referenceBoundary;
 
 async function entry(values: Omit<NewHarvestEntry, 'idempotencyKey' | 'recordedBy' | 'parcelId' | 'speciesId' | 'method' | 'dimension'>) {
   const row = await one(
@@ -67,12 +56,12 @@ const talliesOf = (row: AuditRow | undefined) => row?.tallies.map((t) => [t.scop
 beforeAll(async () => {
   throwaway = await createThrowawayDatabase('tallywood_audit');
   await applyMigrations(throwaway.db, migrationsFolder);
-  ids.owner = await user('owner@audit.test', 'Olive Owner', ['forager', 'landowner']);
-  ids.otherOwner = await user('other-owner@audit.test', 'Otto Other', ['forager', 'landowner']);
-  ids.steward = await user('steward@audit.test', 'Sue Steward');
-  ids.ada = await user('ada@audit.test', 'Ada Member');
-  ids.bo = await user('bo@audit.test', 'Bo Member');
-  ids.cy = await user('cy@audit.test', 'Cy Forager');
+  ids.owner = await insertUser(db(), 'owner@audit.test', 'Olive Owner', ['forager', 'landowner']);
+  ids.otherOwner = await insertUser(db(), 'other-owner@audit.test', 'Otto Other', ['forager', 'landowner']);
+  ids.steward = await insertUser(db(), 'steward@audit.test', 'Sue Steward');
+  ids.ada = await insertUser(db(), 'ada@audit.test', 'Ada Member');
+  ids.bo = await insertUser(db(), 'bo@audit.test', 'Bo Member');
+  ids.cy = await insertUser(db(), 'cy@audit.test', 'Cy Forager');
 
   ids.club = (await one(db().insert(clubs).values({ slug: 'audit-club', name: 'Audit Ridge Club' }).returning({ id: clubs.id }))).id;
   const member = (userId: string, role: 'member' | 'steward') =>
@@ -441,7 +430,7 @@ describe('recordHarvest raises flags', () => {
   let parcelId = '';
 
   beforeAll(async () => {
-    fay.id = await user('fay@audit.test', 'Fay Forager');
+    fay.id = await insertUser(db(), 'fay@audit.test', 'Fay Forager');
     const east = [[-74, 45], [-73.99, 45], [-73.99, 45.01], [-74, 45.01], [-74, 45]];
     parcelId = (await one(db().insert(parcels).values({ ownerId: ids.owner, name: 'Flag Flats', status: 'listed', boundary: { type: 'MultiPolygon', coordinates: [[east]] }, areaM2: 876_163.448, timeZone: 'America/New_York' }).returning({ id: parcels.id }))).id;
     const allowance = await one(db().insert(allowances).values({ parcelId, speciesId: ids.chaga, seasons: [{ start: '01-01', end: '12-31' }], methods: ['cut'] }).returning({ id: allowances.id }));

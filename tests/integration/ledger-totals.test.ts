@@ -5,8 +5,8 @@ import { drizzle } from 'drizzle-orm/postgres-js';
 import postgres from 'postgres';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { applyMigrations } from '../../src/db/migrations';
-import { harvestedParcels, harvestEntries, harvestTotals, parcels, permits, species, users, visits, type NewHarvestEntry } from '../../src/db/schema';
-import { createThrowawayDatabase, migrationsFolder, type ThrowawayDatabase } from './throwaway-database';
+import { harvestedParcels, harvestEntries, harvestTotals, parcels, permits, species, visits, type NewHarvestEntry } from '../../src/db/schema';
+import { createThrowawayDatabase, insertUser, migrationsFolder, one, referenceBoundary, type ThrowawayDatabase } from './throwaway-database';
 
 /*
  * harvest_totals, kept by the AFTER INSERT trigger of drizzle/0009_ledger_totals_kept.sql, against
@@ -33,18 +33,7 @@ const ids = {
   v1: '', v2: '', v3: '', v4: '', v6a: '', v6b: '',
   e100: '',
 };
-const ring = [[-75, 45], [-74.99, 45], [-74.99, 45.01], [-75, 45.01], [-75, 45]];
-const boundary = { type: 'MultiPolygon', coordinates: [[ring]] };
-
-async function one<T>(rows: Promise<T[]>): Promise<T> {
-  const [row] = await rows;
-  if (!row) throw new Error('the row was not inserted');
-  return row;
-}
-
-async function user(email: string, name: string, roles: ('forager' | 'landowner')[] = ['forager']) {
-  return (await one(db().insert(users).values({ email, name, roles }).returning({ id: users.id }))).id;
-}
+const boundary = referenceBoundary;
 
 async function parcel(name: string) {
   // 876 163.448 m²: the area of this ring, as in audit.test.ts.
@@ -98,9 +87,9 @@ async function totals(where: SQL | undefined, dimension: 'mass' | 'count' = 'mas
 beforeAll(async () => {
   throwaway = await createThrowawayDatabase('tallywood_totals');
   await applyMigrations(throwaway.db, migrationsFolder);
-  ids.owner = await user('owner@totals.test', 'Olive Owner', ['forager', 'landowner']);
-  ids.ada = await user('ada@totals.test', 'Ada Forager');
-  ids.bo = await user('bo@totals.test', 'Bo Forager');
+  ids.owner = await insertUser(db(), 'owner@totals.test', 'Olive Owner', ['forager', 'landowner']);
+  ids.ada = await insertUser(db(), 'ada@totals.test', 'Ada Forager');
+  ids.bo = await insertUser(db(), 'bo@totals.test', 'Bo Forager');
   ids.parcel = await parcel('Totals Hollow');
   ids.otherParcel = await parcel('Other Lot');
   ids.emptyParcel = await parcel('Empty Lot');

@@ -3,7 +3,7 @@ import { ledgerTotals, listLedger } from '../../src/db/ledger.queries';
 import { applyMigrations } from '../../src/db/migrations';
 import { allowances, harvestEntries, parcels, species, uploads, users, type NewHarvestEntry } from '../../src/db/schema';
 import { buildCsv, csvField, ledgerCsv, ledgerCsvHeader, plainText } from '../../src/lib/csv';
-import { createThrowawayDatabase, migrationsFolder, type ThrowawayDatabase } from './throwaway-database';
+import { createThrowawayDatabase, migrationsFolder, one, referenceBoundary, type ThrowawayDatabase } from './throwaway-database';
 
 /**
  * The ledger is append-only by trigger, so every row here lives in a throwaway database. Base
@@ -18,13 +18,6 @@ const db = () => {
 const ids = { forager: '', other: '', parcel: '', otherParcel: '', chaga: '', leek: '', e1: '', e2: '', e3: '', e4: '', e5: '', theirs: '' };
 /** A parcel name with a comma and double quotes, so the CSV must quote it (RFC 4180 §2 rules 6 and 7). */
 const parcelName = 'Birch Hollow, "upper" lot';
-const ring = [[-75, 45], [-74.99, 45], [-74.99, 45.01], [-75, 45.01], [-75, 45]];
-
-async function one<T>(rows: Promise<T[]>): Promise<T> {
-  const [row] = await rows;
-  if (!row) throw new Error('the row was not inserted');
-  return row;
-}
 
 async function entry(values: Omit<NewHarvestEntry, 'idempotencyKey' | 'recordedBy' | 'parcelId'> & { parcelId?: string }) {
   const row = await one(db().insert(harvestEntries).values({ parcelId: ids.parcel, recordedBy: values.foragerId, idempotencyKey: crypto.randomUUID(), ...values }).returning({ id: harvestEntries.id }));
@@ -37,7 +30,7 @@ beforeAll(async () => {
   const owner = await one(db().insert(users).values({ email: 'owner@ledger.test', name: 'Owner', roles: ['forager', 'landowner'] }).returning());
   ids.forager = (await one(db().insert(users).values({ email: 'ada@ledger.test', name: 'Ada Forager' }).returning())).id;
   ids.other = (await one(db().insert(users).values({ email: 'bo@ledger.test', name: 'Bo Other' }).returning())).id;
-  const boundary = { type: 'MultiPolygon', coordinates: [[ring]] };
+  const boundary = referenceBoundary;
   ids.parcel = (await one(db().insert(parcels).values({ ownerId: owner.id, name: parcelName, boundary, areaM2: 876_163.448, timeZone: 'America/New_York' }).returning())).id;
   ids.otherParcel = (await one(db().insert(parcels).values({ ownerId: owner.id, name: 'Empty Lot', boundary, areaM2: 876_163.448, timeZone: 'America/New_York' }).returning())).id;
   ids.chaga = (await one(db().insert(species).values({ slug: 'chaga-test', scientificName: 'Inonotus obliquus', commonName: 'Chaga', kind: 'mushroom', usualUnit: 'g' }).returning())).id;

@@ -2,6 +2,7 @@ import { randomBytes } from 'node:crypto';
 import { fileURLToPath } from 'node:url';
 import postgres from 'postgres';
 import { closeDb, createDb, type Db } from '../../src/db/client';
+import { users } from '../../src/db/schema';
 
 /** The drizzle-kit migrations folder, as the app's migrate script reads it. */
 export const migrationsFolder = fileURLToPath(new URL('../../drizzle', import.meta.url));
@@ -43,3 +44,19 @@ export async function refusal(query: PromiseLike<unknown>): Promise<{ code?: str
   }
   throw new Error('the database accepted a change it should have refused');
 }
+
+/** The one row an INSERT … RETURNING gave back; fails when it gave none. */
+export async function one<T>(rows: Promise<T[]>): Promise<T> {
+  const [row] = await rows;
+  if (!row) throw new Error('the row was not inserted');
+  return row;
+}
+
+/** A person with these roles; their id. */
+export async function insertUser(db: Db, email: string, name: string, roles: ('forager' | 'landowner')[] = ['forager']) {
+  return (await one(db.insert(users).values({ email, name, roles }).returning({ id: users.id }))).id;
+}
+
+/** The REFERENCES §2 ring (876 163.448 m², GeographicLib) as a MultiPolygon: the parcel of the throwaway tests. */
+export const referenceRing = [[-75, 45], [-74.99, 45], [-74.99, 45.01], [-75, 45.01], [-75, 45]];
+export const referenceBoundary = { type: 'MultiPolygon', coordinates: [[referenceRing]] };
