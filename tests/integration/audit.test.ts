@@ -478,7 +478,7 @@ describe("the audit's statement over the kept totals", () => {
    * The audit sums harvest_totals (drizzle/0009), not the ledger: each window of a season must reach
    * its rows through the key and read them from the index alone. The tables here are small, so scans
    * of the whole table and bitmap scans are priced out (enable_seqscan, enable_bitmapscan; PostgreSQL
-   * manual §20.7.1): a plan that cannot use the index keeps its scan anyway and the assertion fails.
+   * manual §20.7.1, section number from memory): a plan that cannot use the index keeps its scan anyway and the assertion fails.
    */
   it('given the club scope, it reads each season from harvest_totals_key by an index-only scan, bounded by parcel, species and days', async () => {
     const parcelsInView = await loadAuditParcels(db(), { clubId: ids.club }, { withTotals: true });

@@ -187,6 +187,8 @@ describe('harvest_totals kept by the trigger on harvest_entries', () => {
     expect([...kept]).toEqual([...summed]);
   });
 
+  // At READ COMMITTED each statement sees the rows committed before it began (PostgreSQL manual
+  // §13.2.1, from memory), so B's statements after the lock see A's totals.
   it('given two transactions writing one forager’s parcel, species and day in two visits at once, it adds the second after the first', async () => {
     const admin = process.env.TEST_ADMIN_DATABASE_URL;
     if (!admin || !throwaway) throw new Error('TEST_ADMIN_DATABASE_URL is not set');
