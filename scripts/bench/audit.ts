@@ -55,7 +55,7 @@ export async function seedEntries(sql: Sql, target = 1_000_000, log: (line: stri
     select a.id, l.scope, l.quantity, 'kg'::unit
     from unnest(${allowanceIds}::uuid[]) as a(id)
     cross join (values ('season'::limit_scope, 40::numeric), ('parcel-season'::limit_scope, 2000::numeric)) as l(scope, quantity)
-    on conflict (allowance_id, permit_id, scope) do nothing`;
+    on conflict (allowance_id, permit_id, scope, unit_measure(unit)) do nothing`;
 
   const [row] = await sql<{ n: number }[]>`select count(*)::int as n from harvest_entries where idempotency_key like 'bench-%'`;
   const existing = row?.n ?? 0;
@@ -70,15 +70,21 @@ export async function seedEntries(sql: Sql, target = 1_000_000, log: (line: stri
         n as (
           select n, (n % ${entryParcelCount})::int as k, (n / ${entryParcelCount}) as r, 5 + (n * 104729) % 116 as grams
           from generate_series(${from}::bigint, ${to}::bigint) as g(n))
-        insert into harvest_entries (idempotency_key, forager_id, parcel_id, permit_id, visit_id, species_id, method, quantity, unit,
-          dimension, base_quantity, local_date, breach, recorded_by, created_at)
-        select 'bench-' || n.n, m.id, w.parcel_id, w.permit_id, null, w.species_id, 'pick'::method, n.grams, 'g'::unit,
-          'mass'::dimension, n.grams, d.local_date, false, m.id, (d.local_date + time '12:00') at time zone 'UTC'
-        from n
-        join w using (k)
-        cross join lateral (select 'bench-member-' || lpad(((7 * n.r + n.k) % ${memberCount})::text, 2, '0') as id) m
-        cross join lateral (select date '2026-01-01' + ((7919 * n.r + 31 * n.k) % ${entryDays})::int as local_date) d
-        on conflict (idempotency_key) do nothing`;
+        inserted as (
+          insert into harvest_entries (idempotency_key, forager_id, parcel_id, permit_id, club_id, visit_id, species_id, method,
+            local_date, counted_on, counted_visit_id, season_start, season_end, breach, recorded_by, created_at)
+          -- The bench allowances' one window, 01-01…12-31, holds every 2026 date in the 2026 occurrence.
+          select 'bench-' || n.n, m.id, w.parcel_id, w.permit_id, ${club.id}::uuid, null, w.species_id, 'pick'::method,
+            d.local_date, d.local_date, null, date '2026-01-01', date '2026-12-31', false, m.id, (d.local_date + time '12:00') at time zone 'UTC'
+          from n
+          join w using (k)
+          cross join lateral (select 'bench-member-' || lpad(((7 * n.r + n.k) % ${memberCount})::text, 2, '0') as id) m
+          cross join lateral (select date '2026-01-01' + ((7919 * n.r + 31 * n.k) % ${entryDays})::int as local_date) d
+          on conflict (idempotency_key) do nothing
+          returning id, idempotency_key)
+        insert into harvest_quantities (entry_id, measure, quantity, unit, base_quantity)
+        select i.id, 'mass'::measure, n.grams, 'g'::unit, n.grams
+        from inserted i join n on i.idempotency_key = 'bench-' || n.n`;
       if ((to + 1 - existing) % (batchSize * 4) === 0) log(`  ${to + 1} entries (${((performance.now() - started) / 1000).toFixed(1)} s)`);
     }
   }

@@ -177,6 +177,7 @@ export async function prepareMembers(sql: Sql, count: number): Promise<string[]>
     await tx`
       delete from visits v where v.forager_id = any(${members}::text[])
         and not exists (select 1 from harvest_entries e where e.visit_id = v.id)
+        and not exists (select 1 from harvest_entries e where e.counted_visit_id = v.id)
         and not exists (select 1 from check_ins c where c.visit_id = v.id)`;
   });
   return tokens;
@@ -189,7 +190,7 @@ export async function prepareMembers(sql: Sql, count: number): Promise<string[]>
  */
 export async function prewarm(sql: Sql): Promise<number> {
   await sql`create extension if not exists pg_prewarm`;
-  const relations = ['parcels', 'parcels_boundary_gist', 'parcels_boundary_geog_gist', 'permits', 'permits_parcel', 'allowances', 'allowances_parcel_species', 'limits', 'limits_one_per_scope', 'species'];
+  const relations = ['parcels', 'parcels_boundary_gist', 'parcels_boundary_geog_gist', 'permits', 'permits_parcel', 'allowances', 'allowances_parcel_species', 'limits', 'limits_one_per_scope_and_measure', 'species'];
   const [row] = await sql<{ blocks: number }[]>`select sum(pg_prewarm(r::regclass))::int as blocks from unnest(${textArray(relations)}::text[]) as t(r)`;
   return row?.blocks ?? 0;
 }

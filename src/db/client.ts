@@ -9,9 +9,8 @@ import * as schema from './schema';
  * use generic plans (`plan_cache_mode`, PostgreSQL manual §20.7.2): PostgreSQL then plans each
  * prepared statement once per connection instead of on every call, which for the candidate query
  * cost as much as running it. Only statements whose plan does not depend on their values belong
- * there (tests/integration/check-in-plans.test.ts checks their generic plans). Its writes are
- * records, not the ledger, so they do not wait for the disk flush (`synchronous_commit = off`); a
- * harvest entry's own commit flushes them first, as WAL is written in order.
+ * there (tests/integration/check-in-plans.test.ts checks their generic plans). It only reads: every
+ * write — check-ins and visits as much as the ledger — commits durably on the main pool.
  */
 const hotPools = new WeakMap<object, ReturnType<typeof postgres>>();
 
@@ -20,7 +19,7 @@ export function createDb(url: string, { max = 10, hotMax = 4 }: { max?: number; 
   const client = postgres(url, { max, onnotice: () => {} });
   const db = drizzle(client, { schema });
   // Made at once but connecting only when first used; Drizzle's drizzle() sets the same value parsers on it.
-  const hot = postgres(url, { max: hotMax, onnotice: () => {}, connection: { plan_cache_mode: 'force_generic_plan', synchronous_commit: 'off' } });
+  const hot = postgres(url, { max: hotMax, onnotice: () => {}, connection: { plan_cache_mode: 'force_generic_plan' } });
   drizzle(hot);
   hotPools.set(db, hot);
   return db;

@@ -61,12 +61,12 @@ export type ClubPermitLimit = { commonName: string; scope: string; quantity: str
 
 /** The club's permits and requests on other people's parcels, with the club-wide and tighter limits each adds. */
 export async function listClubPermits(db: Executor, { clubId }: { clubId: string }) {
-  const rows = await db.execute<{ id: string; parcel_id: string; parcel_name: string; owner_name: string; state: string; starts_on: string; ends_on: string; limits: ClubPermitLimit[] }>(sql`
-    select pm.id, p.id as parcel_id, p.name as parcel_name, coalesce(o.name, o.email) as owner_name, pm.state::text, pm.starts_on::text, pm.ends_on::text,
+  const rows = await db.execute<{ id: string; parcel_id: string; parcel_name: string; time_zone: string; owner_name: string; state: string; starts_on: string; ends_on: string; limits: ClubPermitLimit[] }>(sql`
+    select pm.id, p.id as parcel_id, p.name as parcel_name, p.time_zone, coalesce(o.name, o.email) as owner_name, pm.state::text, pm.starts_on::text, pm.ends_on::text,
       coalesce((select json_agg(json_build_object('commonName', s.common_name, 'scope', l.scope, 'quantity', trim_scale(l.quantity)::text, 'unit', l.unit) order by s.common_name, l.scope)
         from limits l join allowances a on a.id = l.allowance_id join species s on s.id = a.species_id where l.permit_id = pm.id), '[]') as limits
     from permits pm join parcels p on p.id = pm.parcel_id join users o on o.id = p.owner_id
     where pm.holder_club_id = ${clubId}::uuid
     order by p.name, pm.starts_on desc`);
-  return rows.map((r) => ({ id: r.id, parcelId: r.parcel_id, parcelName: r.parcel_name, ownerName: r.owner_name, state: r.state, startsOn: r.starts_on, endsOn: r.ends_on, limits: r.limits }));
+  return rows.map((r) => ({ id: r.id, parcelId: r.parcel_id, parcelName: r.parcel_name, timeZone: r.time_zone, ownerName: r.owner_name, state: r.state, startsOn: r.starts_on, endsOn: r.ends_on, limits: r.limits }));
 }

@@ -1,14 +1,20 @@
-import { sql } from 'drizzle-orm';
-import type { Forager, LimitScope, ParcelFacts, Usage } from '../lib/field/types';
+import { sql, type SQL } from 'drizzle-orm';
+import type { UsageWindow } from '../lib/field/counting';
+import type { Forager, ParcelFacts, ScopeUsage, Usage } from '../lib/field/types';
+import type { Measure } from '../lib/units';
 import { executePrepared, type Executor } from './client';
 
 type Row = Record<string, unknown>;
 
-type FactsNear = { longitude: number; latitude: number; radiusM: number; forager: Forager };
+const uuidArray = (ids: readonly string[]) => sql`${`{${ids.join(',')}}`}::uuid[]`;
 
-/** The statement behind loadParcelFactsNear (its generic plan is checked in tests/integration/check-in-plans.test.ts). */
-export function parcelFactsNearQuery({ longitude, latitude, radiusM, forager }: FactsNear) {
-  const clubs = sql`${`{${forager.clubIds.join(',')}}`}::uuid[]`;
+/**
+ * Everything the engine needs about parcels, for one forager: zones, closures, hazards, the
+ * current terms, this forager's permits (personal and through their clubs) and the allowances in
+ * force with every limit that applies to them, gathered by key beside each parcel.
+ */
+function parcelFactsQuery(forager: Forager, where: SQL) {
+  const clubs = uuidArray(forager.clubIds);
   return sql`
     select p.id, p.name, p.time_zone, p.nearing_threshold_percent, ST_AsGeoJSON(p.boundary)::json as boundary,
       (select t.id from terms t where t.parcel_id = p.id order by t.version desc limit 1) as current_terms_id,
@@ -23,25 +29,30 @@ export function parcelFactsNearQuery({ longitude, latitude, radiusM, forager }: 
         from permits pm where pm.parcel_id = p.id and (pm.holder_user_id = ${forager.id}::text or pm.holder_club_id = any(${clubs}))), '[]') as permits,
       coalesce((select json_agg(json_build_object('speciesId', s.id, 'commonName', s.common_name, 'scientificName', s.scientific_name,
           'seasons', a.seasons, 'methods', a.methods, 'cautions', s.cautions, 'lookalikes', s.lookalikes,
-          'limits', coalesce((select json_agg(json_build_object('scope', l.scope, 'quantity', l.quantity::text, 'unit', l.unit, 'permitId', l.permit_id))
+          'limits', coalesce((select json_agg(json_build_object('scope', l.scope, 'quantity', trim_scale(l.quantity)::text, 'unit', l.unit, 'permitId', l.permit_id)
+              order by l.permit_id nulls first, l.scope, l.unit)
             from limits l left join permits lp on lp.id = l.permit_id
             where l.allowance_id = a.id and (l.permit_id is null or lp.holder_user_id = ${forager.id}::text or lp.holder_club_id = any(${clubs}))), '[]'))
           order by s.common_name)
-        from allowances a join species s on s.id = a.species_id where a.parcel_id = p.id), '[]') as allowances
+        from allowances a join species s on s.id = a.species_id where a.parcel_id = p.id and a.removed_at is null), '[]') as allowances
     from parcels p
-    where p.status <> 'archived'
-      and ST_DWithin(p.boundary::geography, ST_SetSRID(ST_MakePoint(${longitude}::float8, ${latitude}::float8), 4326)::geography, ${radiusM}::float8)`;
+    where ${where}`;
 }
 
+type FactsNear = { longitude: number; latitude: number; radiusM: number; forager: Forager };
+
 /**
- * Everything the engine needs about the parcels within `radiusM` of a position, for one forager,
- * in one statement: the candidates come through the GiST index on the boundary's geography
- * (ST_DWithin on geography uses it; no scan of every parcel), and each candidate's zones,
- * closures, hazards, permits and allowances are gathered by key beside it.
+ * The statement behind loadParcelFactsNear: the candidates come through the GiST index on the
+ * boundary's geography (ST_DWithin on geography uses it; no scan of every parcel). Its generic plan
+ * is checked in tests/integration/check-in-plans.test.ts.
  */
-export async function loadParcelFactsNear(db: Executor, near: FactsNear): Promise<ParcelFacts[]> {
-  const rows = await executePrepared<Row>(db, parcelFactsNearQuery(near));
-  return rows.map((p) => ({
+export function parcelFactsNearQuery({ longitude, latitude, radiusM, forager }: FactsNear) {
+  return parcelFactsQuery(forager, sql`p.status <> 'archived'
+      and ST_DWithin(p.boundary::geography, ST_SetSRID(ST_MakePoint(${longitude}::float8, ${latitude}::float8), 4326)::geography, ${radiusM}::float8)`);
+}
+
+function toFacts(p: Row): ParcelFacts {
+  return {
     id: String(p.id),
     name: String(p.name),
     timeZone: String(p.time_zone),
@@ -53,53 +64,84 @@ export async function loadParcelFactsNear(db: Executor, near: FactsNear): Promis
     hazards: p.hazards as ParcelFacts['hazards'],
     permits: p.permits as ParcelFacts['permits'],
     allowances: p.allowances as ParcelFacts['allowances'],
-  }));
+  };
 }
 
-/** Per species: its current season occurrence, and the dimension its limits measure (only those entries count). */
-export type UsageWindow = { speciesId: string; seasonStart: string | null; seasonEnd: string | null; dimension: 'mass' | 'volume' | 'count' | null };
+/** The parcels within `radiusM` of a position, with everything the engine needs, in one statement. */
+export async function loadParcelFactsNear(db: Executor, near: FactsNear): Promise<ParcelFacts[]> {
+  return (await executePrepared<Row>(db, parcelFactsNearQuery(near))).map(toFacts);
+}
+
+/** One parcel's facts by its id (a harvest or a correction names its parcel through a visit or an entry). */
+export async function loadParcelFacts(db: Executor, { parcelId, forager }: { parcelId: string; forager: Forager }): Promise<ParcelFacts | null> {
+  const [row] = await db.execute<Row>(parcelFactsQuery(forager, sql`p.id = ${parcelId}::uuid`));
+  return row ? toFacts(row) : null;
+}
+
+type UsageRow = { parcel_id: string; species_id: string; measure: Measure; visit_id: string | null; visit: string; day: string; season: string; parcel_season: string; clubs: Record<string, string> };
 
 /**
- * Sums of the ledger for one forager on one parcel, per species and scope, in base units. Corrections
- * are signed, so they count. `clubPermitId` sums the club-wide tally of everyone under that permit.
+ * What a forager has taken, summed from the kept totals for each window (src/lib/field/counting.ts):
+ * the visit's total (of the forager's open visit on the parcel that day, when the window says 'open'),
+ * the forager's day under any permit, their season, everyone's season on the parcel, and each of the
+ * forager's clubs' season. A season counts every entry whose stored season occurrence overlaps the
+ * window's, so changing an allowance's dates never drops what was already taken.
+ * Returns the usage per parcel, and the visit each parcel's visit total was read from.
  */
-export async function usageOnParcel(
-  db: Executor,
-  { parcelId, foragerId, visitId, localDate, clubPermitId, windows }: { parcelId: string; foragerId: string; visitId: string | null; localDate: string; clubPermitId: string | null; windows: UsageWindow[] },
-): Promise<Usage> {
-  if (windows.length === 0) return {};
-  const species = sql`${`{${windows.map((w) => w.speciesId).join(',')}}`}::uuid[]`;
-  const starts = sql`${`{${windows.map((w) => w.seasonStart ?? 'NULL').join(',')}}`}::date[]`;
-  const ends = sql`${`{${windows.map((w) => w.seasonEnd ?? 'NULL').join(',')}}`}::date[]`;
-  const dimensions = sql`${`{${windows.map((w) => w.dimension ?? 'NULL').join(',')}}`}::dimension[]`;
-  // A correction counts where its entry counted: on the original's day, visit and permit.
-  const rows = await executePrepared<{ species_id: string; visit: string; day: string; season: string; parcel_season: string; club_season: string }>(db, sql`
-    select w.species_id,
-      coalesce(sum(e.base_quantity) filter (where coalesce(o.visit_id, e.visit_id) = ${visitId}::uuid), 0)::text as visit,
-      coalesce(sum(e.base_quantity) filter (where e.forager_id = ${foragerId}::text and coalesce(o.local_date, e.local_date) = ${localDate}::date), 0)::text as day,
-      coalesce(sum(e.base_quantity) filter (where e.forager_id = ${foragerId}::text and coalesce(o.local_date, e.local_date) between w.season_start and w.season_end), 0)::text as season,
-      coalesce(sum(e.base_quantity) filter (where coalesce(o.local_date, e.local_date) between w.season_start and w.season_end), 0)::text as parcel_season,
-      coalesce(sum(e.base_quantity) filter (where coalesce(o.permit_id, e.permit_id) = ${clubPermitId}::uuid and coalesce(o.local_date, e.local_date) between w.season_start and w.season_end), 0)::text as club_season
-    from unnest(${species}, ${starts}, ${ends}, ${dimensions}) as w(species_id, season_start, season_end, dimension)
-    left join harvest_entries e on e.parcel_id = ${parcelId}::uuid and e.species_id = w.species_id and (w.dimension is null or e.dimension = w.dimension)
-    left join harvest_entries o on o.id = e.corrects_entry_id
-    group by w.species_id`);
-  const usage: Usage = {};
+export async function loadUsage(db: Executor, { forager, windows }: { forager: Forager; windows: UsageWindow[] }): Promise<{ usage: Map<string, Usage>; visits: Map<string, string | null> }> {
+  const usage = new Map<string, Usage>();
+  const visits = new Map<string, string | null>();
+  if (windows.length === 0) return { usage, visits };
+  const rows = await executePrepared<UsageRow>(db, usageQuery({ forager, windows }));
   for (const r of rows) {
-    const scopes: Partial<Record<LimitScope, string>> = { visit: r.visit, day: r.day, season: r.season, 'parcel-season': r.parcel_season, 'club-season': r.club_season };
-    usage[r.species_id] = scopes;
+    const parcel = usage.get(r.parcel_id) ?? {};
+    const species = (parcel[r.species_id] ??= {});
+    const scopes: ScopeUsage = { visit: r.visit, day: r.day, season: r.season, 'parcel-season': r.parcel_season, 'club-season': r.clubs };
+    species[r.measure] = scopes;
+    usage.set(r.parcel_id, parcel);
+    visits.set(r.parcel_id, r.visit_id);
   }
-  return usage;
+  return { usage, visits };
+}
+
+/** The statement behind loadUsage (its generic plan is checked in tests/integration/check-in-plans.test.ts). */
+export function usageQuery({ forager, windows }: { forager: Forager; windows: UsageWindow[] }) {
+  // Each column is one parameter, an array literal of values the engine or the database made (ids, dates, measures).
+  const column = (pick: (w: UsageWindow) => string | null, type: string) => sql`${`{${windows.map((w) => pick(w) ?? 'NULL').join(',')}}`}::${sql.raw(type)}[]`;
+  return sql`
+    with w as (
+      select w.*, case when w.open_visit then (select v.id from visits v where v.forager_id = ${forager.id}::text and v.parcel_id = w.parcel_id
+          and v.ended_at is null and v.local_date = w.day) else w.given_visit end as visit_id
+      from unnest(${column((w) => w.parcelId, 'uuid')}, ${column((w) => w.speciesId, 'uuid')}, ${column((w) => w.measure, 'measure')},
+        ${column((w) => w.seasonStart, 'date')}, ${column((w) => w.seasonEnd, 'date')}, ${column((w) => w.day, 'date')},
+        ${column((w) => (w.visit === 'open' ? null : w.visit), 'uuid')}, ${column((w) => String(w.visit === 'open'), 'boolean')})
+        as w(parcel_id, species_id, measure, season_start, season_end, day, given_visit, open_visit))
+    select w.parcel_id, w.species_id, w.measure, w.visit_id,
+      (select coalesce(sum(t.total), 0) from harvest_totals t
+        where t.visit_id = w.visit_id and t.species_id = w.species_id and t.measure = w.measure)::text as visit,
+      (select coalesce(sum(t.total), 0) from harvest_totals t
+        where t.forager_id = ${forager.id}::text and t.parcel_id = w.parcel_id and t.species_id = w.species_id and t.measure = w.measure and t.counted_on = w.day)::text as day,
+      (select coalesce(sum(t.total), 0) from harvest_totals t
+        where t.forager_id = ${forager.id}::text and t.parcel_id = w.parcel_id and t.species_id = w.species_id and t.measure = w.measure
+          and t.season_start <= w.season_end and t.season_end >= w.season_start)::text as season,
+      (select coalesce(sum(t.total), 0) from harvest_totals t
+        where t.parcel_id = w.parcel_id and t.species_id = w.species_id and t.measure = w.measure
+          and t.season_start <= w.season_end and t.season_end >= w.season_start)::text as parcel_season,
+      (select coalesce(json_object_agg(c.club_id, c.total), '{}') from (
+        select t.club_id, sum(t.total)::text as total from harvest_totals t
+        where t.parcel_id = w.parcel_id and t.species_id = w.species_id and t.measure = w.measure and t.club_id = any(${uuidArray(forager.clubIds)})
+          and t.season_start <= w.season_end and t.season_end >= w.season_start
+        group by t.club_id) c) as clubs
+    from w`;
 }
 
 /** The boundaries of parcels the forager holds a live permit on (personally or through a club), for the Field map. */
 export async function listPermittedBoundaries(db: Executor, { foragerId, clubIds }: { foragerId: string; clubIds: string[] }) {
-  const clubs = sql`${`{${clubIds.join(',')}}`}::uuid[]`;
   const rows = await db.execute<{ id: string; name: string; boundary: ParcelFacts['boundary'] }>(sql`
     select p.id, p.name, ST_AsGeoJSON(p.boundary, 6)::json as boundary
     from parcels p
     where p.id in (select pm.parcel_id from permits pm
-      where pm.state in ('approved', 'active') and (pm.holder_user_id = ${foragerId} or pm.holder_club_id = any(${clubs})))
+      where pm.state in ('approved', 'active') and (pm.holder_user_id = ${foragerId} or pm.holder_club_id = any(${uuidArray(clubIds)})))
     order by p.name`);
   return rows.map((r) => ({ id: r.id, name: r.name, boundary: r.boundary }));
 }

@@ -15,12 +15,15 @@ export type FlagView = {
   createdAt: string;
   parcelId: string;
   parcelName: string;
+  /** The parcel's IANA zone: its flags' times are shown on its clock. */
+  timeZone: string;
   speciesId: string;
   commonName: string;
   foragerId: string;
   foragerName: string;
   permitId: string | null;
-  entry: { id: string; quantity: string; unit: string; localDate: string };
+  /** The entry, with the parcel-local day it counts on (a correction: its chain's first day). */
+  entry: { id: string; quantities: { quantity: string; unit: string }[]; countedOn: string };
   /** The newest note decides: handled until a later note reopens it. */
   handled: boolean;
   notes: FlagNoteView[];
@@ -36,12 +39,13 @@ export async function listFlags(db: Executor, scope: AuditScope, { limit = 200 }
         : sql`p.owner_id = ${scope.ownerId}`;
   const rows = await db.execute<{
     id: string; kind: FlagView['kind']; worst_state: FlagView['worstState']; scopes: string[]; tallies: FlaggedTally[]; created_at: string;
-    parcel_id: string; parcel_name: string; species_id: string; common_name: string; forager_id: string; forager_name: string; permit_id: string | null;
-    entry_id: string; quantity: string; unit: string; local_date: string; notes: FlagNoteView[];
+    parcel_id: string; parcel_name: string; time_zone: string; species_id: string; common_name: string; forager_id: string; forager_name: string; permit_id: string | null;
+    entry_id: string; quantities: { quantity: string; unit: string }[]; counted_on: string; notes: FlagNoteView[];
   }>(sql`
-    select f.id, f.kind, f.worst_state, f.scopes::text[] as scopes, f.tallies, f.created_at::text, f.parcel_id, p.name as parcel_name,
+    select f.id, f.kind, f.worst_state, f.scopes::text[] as scopes, f.tallies, f.created_at::text, f.parcel_id, p.name as parcel_name, p.time_zone,
       f.species_id, s.common_name, f.forager_id, coalesce(u.name, u.email) as forager_name, f.permit_id,
-      e.id as entry_id, trim_scale(e.quantity)::text as quantity, e.unit, e.local_date::text,
+      e.id as entry_id, e.counted_on::text,
+      (select json_agg(json_build_object('quantity', trim_scale(q.quantity)::text, 'unit', q.unit) order by q.measure) from harvest_quantities q where q.entry_id = e.id) as quantities,
       coalesce((select json_agg(json_build_object('id', n.id, 'note', n.note, 'handled', n.handled, 'authorName', coalesce(a.name, a.email), 'createdAt', n.created_at) order by n.created_at, n.id)
         from flag_notes n join users a on a.id = n.author_id where n.flag_id = f.id), '[]') as notes
     from flags f
@@ -61,12 +65,13 @@ export async function listFlags(db: Executor, scope: AuditScope, { limit = 200 }
     createdAt: new Date(r.created_at).toISOString(),
     parcelId: r.parcel_id,
     parcelName: r.parcel_name,
+    timeZone: r.time_zone,
     speciesId: r.species_id,
     commonName: r.common_name,
     foragerId: r.forager_id,
     foragerName: r.forager_name,
     permitId: r.permit_id,
-    entry: { id: r.entry_id, quantity: r.quantity, unit: r.unit, localDate: r.local_date },
+    entry: { id: r.entry_id, quantities: r.quantities, countedOn: r.counted_on },
     handled: r.notes.length > 0 ? Boolean(r.notes[r.notes.length - 1]?.handled) : false,
     notes: r.notes.map((n) => ({ ...n, createdAt: new Date(n.createdAt).toISOString() })),
   }));

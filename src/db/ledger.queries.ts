@@ -1,47 +1,45 @@
 import { sql, type SQL } from 'drizzle-orm';
 import type { methods } from '../lib/land.schemas';
-import type { Dimension, Unit } from '../lib/units';
+import type { Measure, Unit } from '../lib/units';
 import type { Executor } from './client';
 
 /** Narrows a forager's ledger; every field is optional and they combine with AND. */
 export type LedgerFilters = {
   parcelId?: string;
   speciesId?: string;
-  /** Parcel-local dates, 'YYYY-MM-DD', both inclusive. */
+  /** Parcel-local dates the entries count on, 'YYYY-MM-DD', both inclusive. */
   from?: string;
   to?: string;
   /** The year a season occurrence begins in: the 1 Nov 2026 – 15 Mar 2027 season is 2026. */
   seasonYear?: number;
 };
 
-/**
- * `allowance`: the allowance window of the parcel and species that holds the entry's date.
- * `calendar-year`: no window holds it (the allowance was changed or removed since), so the
- * calendar year of the local date stands in.
- */
-export type SeasonBasis = 'allowance' | 'calendar-year';
 export type Method = (typeof methods)[number];
+
+export type LedgerQuantity = { measure: Measure; quantity: string; unit: Unit; baseQuantity: string };
 
 export type LedgerEntry = {
   id: string;
+  /** The parcel-local day it was recorded. */
   localDate: string;
-  /** ISO 8601 instant in UTC. */
+  /** The parcel-local day it counts on: its own, or for a correction its chain's first entry's. */
+  countedOn: string;
+  /** ISO 8601 instant in UTC; shown in the parcel's zone. */
   recordedAt: string;
+  timeZone: string;
   parcelId: string;
   parcelName: string;
   speciesId: string;
   speciesName: string;
   scientificName: string;
   method: Method;
-  /** Signed decimal strings without trailing zeros; corrections may be negative. */
-  quantity: string;
-  unit: Unit;
-  baseQuantity: string;
-  baseUnit: 'g' | 'mL' | 'count';
-  dimension: Dimension;
+  /** One per measure, signed decimal strings without trailing zeros; corrections may be negative. */
+  quantities: LedgerQuantity[];
   breach: boolean;
   acknowledgedOver: boolean;
   correctsEntryId: string | null;
+  /** The first entry of its correction chain; null for an entry that corrects nothing. */
+  rootEntryId: string | null;
   correctionReason: string | null;
   /** Another entry corrects this one. */
   isCorrected: boolean;
@@ -49,9 +47,9 @@ export type LedgerEntry = {
   hasPhoto: boolean;
   longitude: number | null;
   latitude: number | null;
+  /** The season occurrence it counts in, stored on it when it was written. */
   seasonStart: string;
   seasonEnd: string;
-  seasonBasis: SeasonBasis;
 };
 
 export type LedgerTotal = {
@@ -61,140 +59,89 @@ export type LedgerTotal = {
   speciesName: string;
   seasonStart: string;
   seasonEnd: string;
-  seasonBasis: SeasonBasis;
-  dimension: Dimension;
-  baseUnit: 'g' | 'mL' | 'count';
-  /** Exact numeric sum of the signed base quantities, as a decimal string. */
+  measure: Measure;
+  /** Exact sum of the signed base quantities (g, mL, or items), as a decimal string. */
   baseTotal: string;
   entries: number;
   corrections: number;
   breaches: number;
 };
 
-/**
- * The forager's own entries, each with the season occurrence it counts in. A correction counts in
- * the season of the entry it corrects (followed back through corrections of corrections), so a
- * reversal made after the season closed still lands in the right season. Seasons are month-day
- * windows that may cross New Year (GLOSSARY "season"): when the window crosses and the date is on
- * or before its end, the occurrence began the year before.
- */
-function ownEntriesWithSeason(foragerId: string) {
-  return sql`
-    with recursive own as (
-      select * from harvest_entries where forager_id = ${foragerId}
-    ),
-    chain as (
-      select id, local_date as season_date from own where corrects_entry_id is null
-      union all
-      select c.id, chain.season_date from own c join chain on c.corrects_entry_id = chain.id
-    ),
-    dated as (
-      select own.*, coalesce(chain.season_date, own.local_date) as season_date,
-        to_char(coalesce(chain.season_date, own.local_date), 'MMDD')::int as season_md,
-        extract(year from coalesce(chain.season_date, own.local_date))::int as season_y
-      from own left join chain on chain.id = own.id
-    ),
-    seasoned as (
-      select dated.*,
-        case when w.start is null then 'calendar-year' else 'allowance' end as season_basis,
-        case when w.start is null or w.start <= w."end" or dated.season_md >= w.start then dated.season_y else dated.season_y - 1 end as season_year,
-        w.start_md as window_start, w.end_md as window_end, w.start <= w."end" as window_in_year
-      from dated
-      left join lateral (
-        select s.start, s."end", s.start_md, s.end_md
-        from allowances a
-        cross join lateral jsonb_array_elements(a.seasons) with ordinality as e(item, n)
-        cross join lateral (select replace(e.item ->> 'start', '-', '')::int as start, replace(e.item ->> 'end', '-', '')::int as "end",
-          e.item ->> 'start' as start_md, e.item ->> 'end' as end_md) s
-        where a.parcel_id = dated.parcel_id and a.species_id = dated.species_id
-          and case when s.start <= s."end" then dated.season_md between s.start and s."end"
-                   else dated.season_md >= s.start or dated.season_md <= s."end" end
-        order by e.n
-        limit 1
-      ) w on true
-    ),
-    ledger as (
-      select seasoned.*,
-        case when season_basis = 'calendar-year' then season_year || '-01-01' else season_year || '-' || window_start end as season_start,
-        case when season_basis = 'calendar-year' then season_year || '-12-31'
-             when window_in_year then season_year || '-' || window_end
-             else (season_year + 1) || '-' || window_end end as season_end,
-        case dimension when 'mass' then 'g' when 'volume' then 'mL' else 'count' end as base_unit
-      from seasoned
-    )`;
-}
-
 type EntryRow = {
-  id: string; local_date: string; recorded_at: string; parcel_id: string; parcel_name: string; species_id: string; species_name: string;
-  scientific_name: string; method: Method; quantity: string; unit: Unit; base_quantity: string; base_unit: LedgerEntry['baseUnit'];
-  dimension: Dimension; breach: boolean; acknowledged_over: boolean; corrects_entry_id: string | null; correction_reason: string | null;
-  is_corrected: boolean; recorded_by_name: string | null; has_photo: boolean; longitude: number | null; latitude: number | null;
-  season_start: string; season_end: string; season_basis: SeasonBasis;
+  id: string; local_date: string; counted_on: string; recorded_at: string; time_zone: string; parcel_id: string; parcel_name: string; species_id: string; species_name: string;
+  scientific_name: string; method: Method; quantities: LedgerQuantity[]; breach: boolean; acknowledged_over: boolean; corrects_entry_id: string | null;
+  root_entry_id: string | null; correction_reason: string | null; is_corrected: boolean; recorded_by_name: string | null; has_photo: boolean;
+  longitude: number | null; latitude: number | null; season_start: string; season_end: string;
 };
 
-/** The forager's own harvest entries, newest recorded first, with names, season and correction links. */
+/** The forager's own harvest entries, newest recorded first, with names, the facts they count by and their correction links. */
 export async function listLedger(db: Executor, { foragerId, filters = {} }: { foragerId: string; filters?: LedgerFilters }): Promise<LedgerEntry[]> {
-  const where: SQL[] = [sql`l.forager_id = ${foragerId}`];
-  if (filters.parcelId) where.push(sql`l.parcel_id = ${filters.parcelId}::uuid`);
-  if (filters.speciesId) where.push(sql`l.species_id = ${filters.speciesId}::uuid`);
-  if (filters.from) where.push(sql`l.local_date >= ${filters.from}::date`);
-  if (filters.to) where.push(sql`l.local_date <= ${filters.to}::date`);
-  if (filters.seasonYear !== undefined) where.push(sql`l.season_year = ${filters.seasonYear}`);
+  const where: SQL[] = [sql`e.forager_id = ${foragerId}`];
+  if (filters.parcelId) where.push(sql`e.parcel_id = ${filters.parcelId}::uuid`);
+  if (filters.speciesId) where.push(sql`e.species_id = ${filters.speciesId}::uuid`);
+  if (filters.from) where.push(sql`e.counted_on >= ${filters.from}::date`);
+  if (filters.to) where.push(sql`e.counted_on <= ${filters.to}::date`);
+  if (filters.seasonYear !== undefined) where.push(sql`extract(year from e.season_start) = ${filters.seasonYear}`);
   const rows = await db.execute<EntryRow>(sql`
-    ${ownEntriesWithSeason(foragerId)}
-    select l.id, to_char(l.local_date, 'YYYY-MM-DD') as local_date,
-      to_char(l.created_at at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"') as recorded_at,
-      l.parcel_id, p.name as parcel_name, l.species_id, s.common_name as species_name, s.scientific_name,
-      l.method, trim_scale(l.quantity)::text as quantity, l.unit, trim_scale(l.base_quantity)::text as base_quantity, l.base_unit,
-      l.dimension, l.breach, l.acknowledged_over, l.corrects_entry_id, l.correction_reason,
-      exists (select 1 from harvest_entries c where c.corrects_entry_id = l.id and c.forager_id = ${foragerId}) as is_corrected,
-      coalesce(u.name, u.email) as recorded_by_name, l.photo_upload_id is not null as has_photo,
-      ST_X(l.position) as longitude, ST_Y(l.position) as latitude,
-      l.season_start, l.season_end, l.season_basis
-    from ledger l
-    join parcels p on p.id = l.parcel_id
-    join species s on s.id = l.species_id
-    left join users u on u.id = l.recorded_by
+    select e.id, e.local_date::text, e.counted_on::text,
+      to_char(e.created_at at time zone 'UTC', 'YYYY-MM-DD"T"HH24:MI:SS.MS"Z"') as recorded_at, p.time_zone,
+      e.parcel_id, p.name as parcel_name, e.species_id, s.common_name as species_name, s.scientific_name, e.method,
+      (select json_agg(json_build_object('measure', q.measure, 'quantity', trim_scale(q.quantity)::text, 'unit', q.unit, 'baseQuantity', trim_scale(q.base_quantity)::text) order by q.measure)
+        from harvest_quantities q where q.entry_id = e.id) as quantities,
+      e.breach, e.acknowledged_over, e.corrects_entry_id, e.root_entry_id, e.correction_reason,
+      exists (select 1 from harvest_entries c where c.corrects_entry_id = e.id and c.forager_id = ${foragerId}) as is_corrected,
+      coalesce(u.name, u.email) as recorded_by_name, e.photo_upload_id is not null as has_photo,
+      ST_X(e.position) as longitude, ST_Y(e.position) as latitude, e.season_start::text, e.season_end::text
+    from harvest_entries e
+    join parcels p on p.id = e.parcel_id
+    join species s on s.id = e.species_id
+    left join users u on u.id = e.recorded_by
     where ${sql.join(where, sql` and `)}
-    order by l.created_at desc, l.id desc`);
+    order by e.created_at desc, e.id desc`);
   return rows.map((r) => ({
-    id: r.id, localDate: r.local_date, recordedAt: r.recorded_at, parcelId: r.parcel_id, parcelName: r.parcel_name,
-    speciesId: r.species_id, speciesName: r.species_name, scientificName: r.scientific_name, method: r.method,
-    quantity: r.quantity, unit: r.unit, baseQuantity: r.base_quantity, baseUnit: r.base_unit, dimension: r.dimension,
-    breach: r.breach, acknowledgedOver: r.acknowledged_over, correctsEntryId: r.corrects_entry_id, correctionReason: r.correction_reason,
+    id: r.id, localDate: r.local_date, countedOn: r.counted_on, recordedAt: r.recorded_at, timeZone: r.time_zone, parcelId: r.parcel_id, parcelName: r.parcel_name,
+    speciesId: r.species_id, speciesName: r.species_name, scientificName: r.scientific_name, method: r.method, quantities: r.quantities ?? [],
+    breach: r.breach, acknowledgedOver: r.acknowledged_over, correctsEntryId: r.corrects_entry_id, rootEntryId: r.root_entry_id, correctionReason: r.correction_reason,
     isCorrected: r.is_corrected, recordedByName: r.recorded_by_name, hasPhoto: r.has_photo,
     longitude: r.longitude === null ? null : Number(r.longitude), latitude: r.latitude === null ? null : Number(r.latitude),
-    seasonStart: r.season_start, seasonEnd: r.season_end, seasonBasis: r.season_basis,
+    seasonStart: r.season_start, seasonEnd: r.season_end,
   }));
 }
 
 type TotalRow = {
   parcel_id: string; parcel_name: string; species_id: string; species_name: string; season_start: string; season_end: string;
-  season_basis: SeasonBasis; dimension: Dimension; base_unit: LedgerTotal['baseUnit']; base_total: string; entries: number; corrections: number; breaches: number;
+  measure: Measure; base_total: string; entries: number; corrections: number; breaches: number;
 };
 
 /**
- * The forager's totals per parcel × species × season occurrence, in the base unit of each dimension
- * (an entry in another dimension is its own line, never converted). Corrections are signed and count.
+ * The forager's totals per parcel × species × season occurrence × measure, from the kept totals (an
+ * amount in another measure is its own line, never converted); the counts of entries, corrections
+ * and breaches from the entries themselves. Corrections are signed and count where their chain began.
  */
 export async function ledgerTotals(db: Executor, { foragerId }: { foragerId: string }): Promise<LedgerTotal[]> {
   const rows = await db.execute<TotalRow>(sql`
-    ${ownEntriesWithSeason(foragerId)}
-    select l.parcel_id, p.name as parcel_name, l.species_id, s.common_name as species_name,
-      l.season_start, l.season_end, l.season_basis, l.dimension, l.base_unit,
-      trim_scale(sum(l.base_quantity))::text as base_total,
-      count(*)::int as entries,
-      count(*) filter (where l.corrects_entry_id is not null)::int as corrections,
-      count(*) filter (where l.breach)::int as breaches
-    from ledger l
-    join parcels p on p.id = l.parcel_id
-    join species s on s.id = l.species_id
-    where l.forager_id = ${foragerId}
-    group by l.parcel_id, p.name, l.species_id, s.common_name, l.season_start, l.season_end, l.season_basis, l.dimension, l.base_unit
-    order by l.season_start desc, p.name, s.common_name, l.dimension`);
+    with sums as (
+      select t.parcel_id, t.species_id, t.season_start, t.season_end, t.measure, sum(t.total) as total
+      from harvest_totals t where t.forager_id = ${foragerId}
+      group by 1, 2, 3, 4, 5),
+    counts as (
+      select e.parcel_id, e.species_id, e.season_start, e.season_end, q.measure,
+        count(*) filter (where e.corrects_entry_id is null)::int as entries,
+        count(*) filter (where e.corrects_entry_id is not null)::int as corrections,
+        count(*) filter (where e.breach)::int as breaches
+      from harvest_entries e join harvest_quantities q on q.entry_id = e.id
+      where e.forager_id = ${foragerId}
+      group by 1, 2, 3, 4, 5)
+    select s.parcel_id, p.name as parcel_name, s.species_id, sp.common_name as species_name, s.season_start::text, s.season_end::text, s.measure,
+      trim_scale(s.total)::text as base_total, coalesce(c.entries, 0) as entries, coalesce(c.corrections, 0) as corrections, coalesce(c.breaches, 0) as breaches
+    from sums s
+    join parcels p on p.id = s.parcel_id
+    join species sp on sp.id = s.species_id
+    left join counts c on c.parcel_id = s.parcel_id and c.species_id = s.species_id and c.season_start = s.season_start and c.season_end = s.season_end and c.measure = s.measure
+    order by s.season_start desc, p.name, sp.common_name, s.measure`);
   return rows.map((r) => ({
     parcelId: r.parcel_id, parcelName: r.parcel_name, speciesId: r.species_id, speciesName: r.species_name,
-    seasonStart: r.season_start, seasonEnd: r.season_end, seasonBasis: r.season_basis, dimension: r.dimension, baseUnit: r.base_unit,
+    seasonStart: r.season_start, seasonEnd: r.season_end, measure: r.measure,
     baseTotal: r.base_total, entries: Number(r.entries), corrections: Number(r.corrections), breaches: Number(r.breaches),
   }));
 }

@@ -1,4 +1,8 @@
-import { and, asc, desc, eq, sql } from 'drizzle-orm';
+import { and, asc, desc, eq, isNull, sql } from 'drizzle-orm';
+import { formatDay } from '../lib/field/words';
+import { AppError } from '../lib/errors';
+import { localDate } from '../lib/local-time';
+import { measureOf, unitsOfMeasure, type Measure, type Unit } from '../lib/units';
 import type { AllowanceInput, BoundaryGeometry } from '../lib/land.schemas';
 import type { Executor } from './client';
 import { allowances, closures, hazards, limits, noHarvestZones, parcels, species, terms } from './schema';
@@ -25,7 +29,7 @@ export async function listParcelRules(db: Executor, { parcelId, ownerId }: { par
       .select({ id: allowances.id, speciesId: species.id, commonName: species.commonName, scientificName: species.scientificName, seasons: allowances.seasons, methods: allowances.methods })
       .from(allowances)
       .innerJoin(species, eq(species.id, allowances.speciesId))
-      .where(and(eq(allowances.parcelId, parcelId), owned))
+      .where(and(eq(allowances.parcelId, parcelId), isNull(allowances.removedAt), owned))
       .orderBy(asc(species.commonName)),
   ]);
   const limitRows = allowanceRows.length
@@ -74,14 +78,46 @@ export async function publishTerms(db: Executor, { parcelId, ownerId, body, now 
   return row ?? null;
 }
 
-/** Sets (creates or replaces) the allowance of one species on the parcel, with its parcel-level limits. */
-export async function saveAllowance(db: Executor, { parcelId, ownerId, allowance }: { parcelId: string; ownerId: string; allowance: AllowanceInput }) {
+const measureSet = (units: readonly { unit: string }[]) => [...new Set(units.map((l) => measureOf(l.unit as Unit)))].sort();
+
+/**
+ * Sets (creates or replaces) the allowance of one species on the parcel, with its parcel-level
+ * limits; adding a removed species again brings its row back. What the limits measure may not
+ * change while entries count in a season that has not ended: their tallies would silently start
+ * again from nothing. The amounts may change at any time.
+ */
+export async function saveAllowance(db: Executor, { parcelId, ownerId, allowance, now }: { parcelId: string; ownerId: string; allowance: AllowanceInput; now: Date }) {
   return db.transaction(async (tx) => {
-    if (!(await ownsParcel(tx, { parcelId, ownerId }))) return null;
+    const [parcel] = await tx.select({ timeZone: parcels.timeZone }).from(parcels).where(and(eq(parcels.id, parcelId), eq(parcels.ownerId, ownerId))).for('update');
+    if (!parcel) return null;
+    const [current] = await tx
+      .select({ id: allowances.id, removedAt: allowances.removedAt })
+      .from(allowances)
+      .where(and(eq(allowances.parcelId, parcelId), eq(allowances.speciesId, allowance.speciesId)));
+    if (current && !current.removedAt) {
+      const before = measureSet(await tx.select({ unit: limits.unit }).from(limits).where(and(eq(limits.allowanceId, current.id), isNull(limits.permitId))));
+      const after = measureSet(allowance.limits);
+      if (before.join() !== after.join()) {
+        const today = localDate(now, parcel.timeZone);
+        const [open] = await tx.execute<{ season_end: string; common_name: string }>(sql`
+          select max(e.season_end)::text as season_end, (select s.common_name from species s where s.id = ${allowance.speciesId}::uuid) as common_name
+          from harvest_entries e where e.parcel_id = ${parcelId}::uuid and e.species_id = ${allowance.speciesId}::uuid and e.season_end >= ${today}::date
+          having count(*) > 0`);
+        if (open) {
+          const kinds = (ms: string[]) => (ms.length ? ms.map((m) => unitsOfMeasure(m as Measure)).join(' and in ') : 'no unit');
+          throw new AppError(
+            409,
+            'measure-in-use',
+            `${open.common_name} already has entries this season counted in ${kinds(before)}. Its limits must keep counting that way until the season ends on ${formatDay(open.season_end)}; you can still change the amounts, seasons and methods.`,
+            'limits',
+          );
+        }
+      }
+    }
     const [row] = await tx
       .insert(allowances)
       .values({ parcelId, speciesId: allowance.speciesId, seasons: allowance.seasons, methods: allowance.methods })
-      .onConflictDoUpdate({ target: [allowances.parcelId, allowances.speciesId], set: { seasons: allowance.seasons, methods: allowance.methods, updatedAt: new Date() } })
+      .onConflictDoUpdate({ target: [allowances.parcelId, allowances.speciesId], set: { seasons: allowance.seasons, methods: allowance.methods, removedAt: null, removedBy: null, updatedAt: now } })
       .returning({ id: allowances.id });
     if (!row) return null;
     await tx.delete(limits).where(and(eq(limits.allowanceId, row.id), sql`${limits.permitId} is null`));
@@ -90,8 +126,16 @@ export async function saveAllowance(db: Executor, { parcelId, ownerId, allowance
   });
 }
 
-export async function removeAllowance(db: Executor, { parcelId, ownerId, allowanceId }: { parcelId: string; ownerId: string; allowanceId: string }) {
-  const rows = await db.delete(allowances).where(and(eq(allowances.id, allowanceId), eq(allowances.parcelId, parcelId), ownedBy(parcelId, ownerId))).returning({ id: allowances.id });
+/**
+ * Removes an allowance: foragers may no longer take the species, but the row stays, with the
+ * permits' tighter limits on it, as the history entries and permits point at.
+ */
+export async function removeAllowance(db: Executor, { parcelId, ownerId, allowanceId, now }: { parcelId: string; ownerId: string; allowanceId: string; now: Date }) {
+  const rows = await db
+    .update(allowances)
+    .set({ removedAt: now, removedBy: ownerId, updatedAt: now })
+    .where(and(eq(allowances.id, allowanceId), eq(allowances.parcelId, parcelId), isNull(allowances.removedAt), ownedBy(parcelId, ownerId)))
+    .returning({ id: allowances.id });
   return rows.length > 0;
 }
 

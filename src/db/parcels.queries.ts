@@ -1,4 +1,4 @@
-import { and, asc, eq, sql } from 'drizzle-orm';
+import { and, asc, eq, isNull, sql } from 'drizzle-orm';
 import type { BoundaryGeometry, ParcelSettings } from '../lib/land.schemas';
 import type { Executor } from './client';
 import { allowances, parcels, species } from './schema';
@@ -96,7 +96,7 @@ export async function listOpenParcels(db: Executor) {
       seasons: allowances.seasons,
     })
     .from(parcels)
-    .leftJoin(allowances, eq(allowances.parcelId, parcels.id))
+    .leftJoin(allowances, and(eq(allowances.parcelId, parcels.id), isNull(allowances.removedAt)))
     .leftJoin(species, eq(species.id, allowances.speciesId))
     .where(and(eq(parcels.status, 'listed'), eq(parcels.openToRequests, true)))
     .orderBy(asc(parcels.name), asc(species.commonName));
@@ -122,7 +122,7 @@ export async function listSeasonFacts(db: Executor, { ownerId }: { ownerId: stri
   const rows = await db
     .select({
       parcelId: parcels.id,
-      seasons: sql<{ start: string; end: string }[][]>`coalesce((select json_agg(a.seasons) from allowances a where a.parcel_id = parcels.id), '[]'::json)`,
+      seasons: sql<{ start: string; end: string }[][]>`coalesce((select json_agg(a.seasons) from allowances a where a.parcel_id = parcels.id and a.removed_at is null), '[]'::json)`,
       closures: sql<{ startsOn: string; endsOn: string; reason: string }[]>`coalesce((select json_agg(json_build_object('startsOn', c.starts_on, 'endsOn', c.ends_on, 'reason', c.reason)) from closures c where c.parcel_id = parcels.id), '[]'::json)`,
     })
     .from(parcels)

@@ -2,7 +2,9 @@ import { and, eq, isNull, sql } from 'drizzle-orm';
 import { AppError, invalidInput, notFound } from '../lib/errors';
 import type { GrantPermitInput } from '../lib/permits.schemas';
 import { localDate } from '../lib/local-time';
-import { sameDimension, toBaseScaled, units, type Unit } from '../lib/units';
+import { formatDay } from '../lib/field/words';
+import { compareDecimals, measureOf, toBase, units, unitsOfMeasure, type Unit } from '../lib/units';
+import { formatAmount, limitScopeWords } from '../lib/tally-words';
 import type { Tx } from './client';
 import { activateIfReady, lockPermit, movePermit } from './permits.lifecycle';
 import { allowances, clubMemberships, limits, parcels, permitEvents, permits } from './schema';
@@ -53,14 +55,17 @@ async function addPermitLimits(tx: Tx, { parcelId, permitId, isClub, limits: wan
   for (const [index, limit] of wanted.entries()) {
     const field = `limits.${index}`;
     if (limit.scope === 'club-season' && !isClub) throw invalidInput(`${field}.scope`, 'A club-wide cap belongs on a club permit.');
-    const [allowance] = await tx.select({ id: allowances.id }).from(allowances).where(and(eq(allowances.parcelId, parcelId), eq(allowances.speciesId, limit.speciesId)));
+    const [allowance] = await tx.select({ id: allowances.id }).from(allowances).where(and(eq(allowances.parcelId, parcelId), eq(allowances.speciesId, limit.speciesId), isNull(allowances.removedAt)));
     if (!allowance) throw invalidInput(`${field}.speciesId`, 'The parcel has no allowance for that species; add one first.');
     const parcelLimits = await tx.select().from(limits).where(and(eq(limits.allowanceId, allowance.id), isNull(limits.permitId)));
-    const other = parcelLimits.find((l) => !sameDimension(l.unit as Unit, limit.unit));
-    if (other) throw invalidInput(`${field}.unit`, `The parcel measures this species in ${units[other.unit as Unit].dimension}; use a ${units[other.unit as Unit].dimension} unit.`);
-    const same = parcelLimits.find((l) => l.scope === limit.scope);
-    if (same && toBaseScaled(limit.quantity, limit.unit) > toBaseScaled(same.quantity, same.unit as Unit)) {
-      throw invalidInput(`${field}.quantity`, `A permit may tighten the parcel's ${limit.scope} limit (${same.quantity} ${units[same.unit as Unit].label}), never loosen it.`);
+    const measure = measureOf(limit.unit);
+    const counted = [...new Set(parcelLimits.map((l) => measureOf(l.unit as Unit)))];
+    if (counted.length > 0 && !counted.includes(measure)) {
+      throw invalidInput(`${field}.unit`, `The parcel limits this species in ${counted.map(unitsOfMeasure).join(' or in ')}; use one of those units.`);
+    }
+    const same = parcelLimits.find((l) => l.scope === limit.scope && measureOf(l.unit as Unit) === measure);
+    if (same && compareDecimals(toBase(limit.quantity, limit.unit), toBase(same.quantity, same.unit as Unit)) > 0) {
+      throw invalidInput(`${field}.quantity`, `A permit may tighten the parcel's limit of ${formatAmount(same.quantity)} ${units[same.unit as Unit].label} ${limitScopeWords[limit.scope]}, never loosen it.`);
     }
     await tx.insert(limits).values({ allowanceId: allowance.id, permitId, scope: limit.scope, quantity: limit.quantity, unit: limit.unit });
   }
@@ -75,7 +80,7 @@ export async function tightenPermit(tx: Tx, { permitId, ownerId, limit }: { perm
     .select({ id: limits.id })
     .from(limits)
     .innerJoin(allowances, eq(allowances.id, limits.allowanceId))
-    .where(and(eq(limits.permitId, permitId), eq(allowances.speciesId, limit.speciesId), eq(limits.scope, limit.scope)));
+    .where(and(eq(limits.permitId, permitId), eq(allowances.speciesId, limit.speciesId), eq(limits.scope, limit.scope), sql`unit_measure(${limits.unit}) = unit_measure(${limit.unit}::unit)`));
   if (existing) await tx.delete(limits).where(eq(limits.id, existing.id));
   await addPermitLimits(tx, { parcelId: permit.parcelId, permitId, isClub: permit.holderClubId !== null, limits: [limit] });
   return permit;
@@ -121,7 +126,7 @@ export async function decideRequest(
     return movePermit(tx, permit, { to: 'declined', by: 'landowner', actorId: ownerId, reason: message || 'Declined by the landowner.', now });
   }
   if (permit.endsOn < localDate(now, permit.timeZone)) {
-    throw new AppError(409, 'dates-passed', `The dates asked for ended on ${permit.endsOn}; decline this request and ask the forager to send a new one.`);
+    throw new AppError(409, 'dates-passed', `The dates asked for ended on ${formatDay(permit.endsOn)}; decline this request and ask the forager to send a new one.`);
   }
   if (feeMinor !== undefined) {
     await tx.update(permits).set({ feeMinor: feeMinor > 0 ? feeMinor : null, currency: feeMinor > 0 ? (permit.currency ?? 'usd') : null }).where(eq(permits.id, permitId));

@@ -1,8 +1,8 @@
 import { sql } from 'drizzle-orm';
-import { scopeOrder, seasonAsOf, talliesFor } from '../lib/field';
+import { localDateAt, scopeOrder, seasonAsOf, talliesFor } from '../lib/field';
 import type { LimitScope, Tally } from '../lib/field/types';
-import { addDecimals, fromBase, type Unit } from '../lib/units';
-import { auditTallies, loadAuditParcels, type AuditScope } from './audit.queries';
+import { addDecimals, baseUnits, fromBase, measures, units, type Measure, type Unit } from '../lib/units';
+import { auditTallies, isClubScope, loadAuditParcels, type AuditScope } from './audit.queries';
 import type { Executor } from './client';
 import { listFlags, type FlagView } from './flags.queries';
 
@@ -22,7 +22,8 @@ export type SeasonReportSpecies = {
   season: { start: string; end: string };
   /** Per limit in force, the highest tally in the report's view. */
   tallies: Tally[];
-  taken: { quantity: string; unit: Unit } | null;
+  /** What was taken this season in the report's view, per measure, in the unit of its limits (or its base unit). */
+  taken: { measure: Measure; quantity: string; unit: Unit }[];
   foragers: number;
   entries: number;
 };
@@ -44,39 +45,48 @@ export type SeasonReport = {
  * their follow-up, and the number of visits. A landowner's covers every holder; a club's only the
  * entries and visits under the club's permits. Null when the parcel is not in view.
  */
-export async function seasonReport(db: Executor, scope: AuditScope & { parcelId: string }, { asOf }: { asOf: string }): Promise<SeasonReport | null> {
+export async function seasonReport(db: Executor, scope: AuditScope & { parcelId: string }, { asOf: asked, now = new Date() }: { asOf?: string; now?: Date }): Promise<SeasonReport | null> {
   const [parcel] = await loadAuditParcels(db, scope);
   if (!parcel) return null;
+  // The parcel's own date: "today" on the parcel, never on the UTC calendar.
+  const asOf = asked ?? localDateAt(now, parcel.timeZone);
   const [head] = await db.execute<{ owner_name: string; owner_email: string; club_name: string | null }>(sql`
     select coalesce(u.name, u.email) as owner_name, u.email as owner_email,
       ${'clubId' in scope ? sql`(select c.name from clubs c where c.id = ${scope.clubId}::uuid)` : sql`null::text`} as club_name
     from parcels p join users u on u.id = p.owner_id where p.id = ${parcel.id}::uuid`);
   const audit = await auditTallies(db, scope, { asOf });
-  const clubPermit = 'clubId' in scope ? (parcel.permits.find((p) => p.holderClubId === scope.clubId && p.state === 'active') ?? parcel.permits.find((p) => p.holderClubId === scope.clubId) ?? null) : null;
+  const clubPermit = isClubScope(scope) ? (parcel.permits.find((p) => p.holderClubId === scope.clubId && p.state === 'active') ?? parcel.permits.find((p) => p.holderClubId === scope.clubId) ?? null) : null;
 
   const species: SeasonReportSpecies[] = [];
   for (const allowance of parcel.allowances) {
     const season = seasonAsOf(allowance.seasons, asOf);
     if (!season) continue;
     const rows = audit.rows.filter((r) => r.speciesId === allowance.speciesId);
-    const highest = new Map<LimitScope, Tally>();
+    const key = (t: Tally) => `${t.scope}|${t.measure}`;
+    const highest = new Map<string, Tally>();
     for (const t of rows.flatMap((r) => r.tallies)) {
-      const current = highest.get(t.scope);
-      if (!current || t.percent > current.percent) highest.set(t.scope, t);
+      const current = highest.get(key(t));
+      if (!current || t.percent > current.percent) highest.set(key(t), t);
     }
     // A species nobody took still shows its limits, at nothing used.
     const nothing = talliesFor(allowance, {}, { forager: { id: '', clubIds: clubPermit?.holderClubId ? [clubPermit.holderClubId] : [] }, permit: clubPermit, thresholdPercent: parcel.nearingThresholdPercent });
     // The landowner's view has no one club permit: club-wide caps come from the rows that have them.
-    const tallies = scopeOrder.flatMap((scope) => highest.get(scope) ?? nothing.find((t) => t.scope === scope) ?? []);
-    const unit = (allowance.limits.find((l) => l.permitId === null) ?? allowance.limits[0])?.unit ?? null;
-    const takenBase = rows.length > 0 ? addDecimals(...rows.map((r) => r.seasonTotalBase)) : '0';
+    const tallies = scopeOrder.flatMap((scope) =>
+      measures.flatMap((measure) => highest.get(`${scope}|${measure}`) ?? nothing.find((t) => t.scope === scope && t.measure === measure) ?? []),
+    );
+    const taken = measures.flatMap((measure) => {
+      const bases = rows.flatMap((r) => r.taken.filter((t) => t.measure === measure).map((t) => t.base));
+      if (bases.length === 0) return [];
+      const unit = (allowance.limits.find((l) => l.permitId === null && units[l.unit].measure === measure) ?? allowance.limits.find((l) => units[l.unit].measure === measure))?.unit ?? baseUnits[measure];
+      return [{ measure, quantity: fromBase(addDecimals(...bases), unit, 6), unit }];
+    });
     species.push({
       speciesId: allowance.speciesId,
       commonName: allowance.commonName,
       scientificName: allowance.scientificName,
       season,
       tallies,
-      taken: unit ? { quantity: fromBase(takenBase, unit, 6), unit } : null,
+      taken,
       foragers: new Set(rows.map((r) => r.foragerId)).size,
       entries: rows.reduce((n, r) => n + r.entries, 0),
     });
@@ -86,7 +96,7 @@ export async function seasonReport(db: Executor, scope: AuditScope & { parcelId:
   const [visits] = period
     ? await db.execute<{ n: number }>(sql`select count(*)::int as n from visits v where v.parcel_id = ${parcel.id}::uuid and v.local_date between ${period.start}::date and ${period.end}::date ${visitFilter}`)
     : [{ n: 0 }];
-  const flags = (await listFlags(db, scope)).filter((f) => !period || (f.entry.localDate >= period.start && f.entry.localDate <= period.end));
+  const flags = (await listFlags(db, scope)).filter((f) => !period || (f.entry.countedOn >= period.start && f.entry.countedOn <= period.end));
   return {
     parcel: { id: parcel.id, name: parcel.name, ownerName: head?.owner_name ?? '', ownerEmail: head?.owner_email ?? '', timeZone: parcel.timeZone },
     club: 'clubId' in scope ? { id: scope.clubId, name: head?.club_name ?? '' } : null,

@@ -30,8 +30,6 @@ export const auditEntriesQuerySchema = z.object({
   parcelId: uuid,
   speciesId: uuid,
   foragerId: z.string().min(1, 'Name the forager.'),
-  /** Empty for entries made without a permit. */
-  permitId: z.union([uuid, z.literal('')]).default(''),
 });
 
 export const seasonReportQuerySchema = z.object({ asOf: isoDate.optional(), club: z.union([uuid, z.literal('')]).optional() });

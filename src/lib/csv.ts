@@ -33,22 +33,20 @@ export function plainText(value: string | null | undefined): string | null {
 /** The fields of a ledger entry the export writes; structurally what `listLedger` returns. */
 export type LedgerCsvEntry = {
   id: string;
+  countedOn: string;
   localDate: string;
   recordedAt: string;
+  timeZone: string;
   parcelName: string;
   speciesName: string;
   scientificName: string;
   method: string;
-  quantity: string;
-  unit: string;
-  baseQuantity: string;
-  baseUnit: string;
-  dimension: string;
+  quantities: { measure: string; quantity: string; unit: string; baseQuantity: string }[];
   seasonStart: string;
   seasonEnd: string;
-  seasonBasis: string;
   breach: boolean;
   correctsEntryId: string | null;
+  rootEntryId: string | null;
   correctionReason: string | null;
   isCorrected: boolean;
   recordedByName: string | null;
@@ -58,26 +56,30 @@ export type LedgerCsvEntry = {
 };
 
 export const ledgerCsvHeader = [
-  'entry_id', 'local_date', 'recorded_at', 'parcel', 'species', 'scientific_name', 'method',
-  'quantity', 'unit', 'base_quantity', 'base_unit', 'dimension',
-  'season_start', 'season_end', 'season_basis', 'breach',
-  'corrects_entry_id', 'correction_reason', 'corrected_later', 'recorded_by', 'photo', 'latitude', 'longitude',
+  'entry_id', 'counts_on', 'recorded_on', 'recorded_at', 'time_zone', 'parcel', 'species', 'scientific_name', 'method',
+  'quantity', 'unit', 'base_quantity', 'measure', 'season_start', 'season_end', 'breach',
+  'corrects_entry_id', 'root_entry_id', 'correction_reason', 'corrected_later', 'recorded_by', 'photo', 'latitude', 'longitude',
 ] as const;
 
-/** The ledger as a CSV file: ISO 8601 dates, quantities as recorded beside their base-unit value. */
+/**
+ * The ledger as a CSV file: one record per entry and measure (an entry of "150 g and 30 plants" is
+ * two records with one entry_id), ISO 8601 dates, quantities as recorded beside their base-unit value.
+ * `counts_on` is the parcel-local day the entry counts on; `recorded_at` an instant in UTC.
+ */
 export function ledgerCsv(entries: readonly LedgerCsvEntry[]): string {
   return buildCsv(
     ledgerCsvHeader,
-    entries.map((e) => [
-      e.id, e.localDate, e.recordedAt, plainText(e.parcelName), plainText(e.speciesName), plainText(e.scientificName), e.method,
-      e.quantity, e.unit, e.baseQuantity, e.baseUnit, e.dimension,
-      e.seasonStart, e.seasonEnd, e.seasonBasis, e.breach,
-      e.correctsEntryId, plainText(e.correctionReason), e.isCorrected, plainText(e.recordedByName), e.hasPhoto, e.latitude, e.longitude,
-    ]),
+    entries.flatMap((e) =>
+      e.quantities.map((q) => [
+        e.id, e.countedOn, e.localDate, e.recordedAt, e.timeZone, plainText(e.parcelName), plainText(e.speciesName), plainText(e.scientificName), e.method,
+        q.quantity, q.unit, q.baseQuantity, q.measure, e.seasonStart, e.seasonEnd, e.breach,
+        e.correctsEntryId, e.rootEntryId, plainText(e.correctionReason), e.isCorrected, plainText(e.recordedByName), e.hasPhoto, e.latitude, e.longitude,
+      ]),
+    ),
   );
 }
 
-/** `tallywood-ledger-YYYY-MM-DD.csv` for the UTC day of `now`. */
-export function ledgerCsvFilename(now: Date): string {
-  return `tallywood-ledger-${now.toISOString().slice(0, 10)}.csv`;
+/** `tallywood-ledger-YYYY-MM-DD.csv`, dated on the clock of the parcels it covers. */
+export function ledgerCsvFilename(localDate: string): string {
+  return `tallywood-ledger-${localDate}.csv`;
 }

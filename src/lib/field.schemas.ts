@@ -1,6 +1,6 @@
 import { z } from 'zod';
 import { methods } from './land.schemas';
-import { unitCodes, type Unit } from './units';
+import { measureOf, measures, unitCodes, type Unit } from './units';
 
 /** A check-in as the W3C Geolocation API reports a position: degrees, and accuracy in metres (95 %). */
 export const checkInSchema = z.object({
@@ -13,28 +13,47 @@ export const checkInSchema = z.object({
     .max(5000, 'That fix is too rough to decide anything (over 5 km); wait for a better one.'),
 });
 
-const quantity = z
+const quantityText = z
   .union([z.string(), z.number()])
   .transform((v) => String(v).trim())
   .refine((v) => /^-?\d+(\.\d{1,6})?$/.test(v), 'Enter a number, like 250 or 1.5 (at most 6 decimals).')
   .refine((v) => Number(v) !== 0, 'Enter how much you took.')
   .refine((v) => Math.abs(Number(v)) < 1e7, 'That quantity is too large.');
 
-export const harvestSchema = z
-  .object({
-    /** The client's key for this entry; sending it again returns the first result. */
-    idempotencyKey: z.string().min(8, 'Send an idempotency key of at least 8 characters.').max(100),
-    visitId: z.uuid('Check in first: the entry belongs to a visit.'),
-    speciesId: z.uuid('Choose a species.'),
-    method: z.enum(methods, 'Choose how you took it.'),
-    quantity,
-    unit: z.enum(unitCodes as [Unit, ...Unit[]], { error: (issue) => `Unknown unit "${String(issue.input)}"; use one of ${unitCodes.join(', ')}.` }),
-    photoUploadId: z.uuid().optional(),
-    /** Required to record an entry that takes a limit over; it is then flagged as a breach. */
-    acknowledgeOver: z.boolean().default(false),
-    /** A correction of an earlier entry, with the reason; its quantity is signed. */
-    corrects: z.object({ entryId: z.uuid(), reason: z.string().trim().min(3, 'Say why you correct the entry.').max(500) }).optional(),
-  })
-  .refine((h) => h.corrects || !h.quantity.startsWith('-'), { path: ['quantity'], message: 'A quantity cannot be negative; to reverse an entry, record a correction.' });
+const unit = z.enum(unitCodes as [Unit, ...Unit[]], { error: (issue) => `Unknown unit "${String(issue.input)}"; use one of ${unitCodes.join(', ')}.` });
+
+/** One measure of an entry: an allowance limiting "200 g or 50 plants" asks for both. */
+const quantities = (quantity: z.ZodType<string, unknown>) =>
+  z
+    .array(z.object({ quantity, unit }), 'Send the quantities as a list of { quantity, unit }.')
+    .min(1, 'Enter how much you took.')
+    .max(measures.length, 'Give each kind of quantity once.')
+    .refine((qs) => new Set(qs.map((q) => measureOf(q.unit))).size === qs.length, 'Give each kind of quantity (weight, volume, or a count) once.');
+
+const idempotencyKey = z.string().min(8, 'Send an idempotency key of at least 8 characters.').max(100);
+
+export const harvestSchema = z.object({
+  /** The client's key for this entry; sending it again returns the first result. */
+  idempotencyKey,
+  visitId: z.uuid('Check in first: the entry belongs to a visit.'),
+  speciesId: z.uuid('Choose a species.'),
+  method: z.enum(methods, 'Choose how you took it.'),
+  quantities: quantities(quantityText.refine((v) => !v.startsWith('-'), 'A quantity cannot be negative; to reverse an entry, correct it from My ledger.')),
+  photoUploadId: z.uuid().optional(),
+  /** Required to record an entry that takes a limit over; it is then flagged as a breach. */
+  acknowledgeOver: z.boolean().default(false),
+});
+
+/**
+ * A correction of one of your entries: signed quantities (negative to take away) in the entry's
+ * own measures, and why. It counts where the entry's chain began: that day, visit and permit.
+ */
+export const correctionSchema = z.object({
+  idempotencyKey,
+  reason: z.string().trim().min(3, 'Say why you correct the entry.').max(500, 'Keep the reason to 500 characters or fewer.'),
+  quantities: quantities(quantityText),
+  acknowledgeOver: z.boolean().default(false),
+});
 
 export type HarvestInput = z.infer<typeof harvestSchema>;
+export type CorrectionInput = z.infer<typeof correctionSchema>;

@@ -20,3 +20,15 @@ export function formatDate(isoDate: string) {
   const [y, m, d] = isoDate.split('-').map(Number);
   return new Date(Date.UTC(y ?? 1970, (m ?? 1) - 1, d ?? 1)).toLocaleDateString('en-US', { timeZone: 'UTC', year: 'numeric', month: 'short', day: 'numeric' });
 }
+
+const instantFormats = new Map<string, Intl.DateTimeFormat>();
+
+/** "Nov 14, 2026, 10:32 AM EST": an instant on a parcel's clock, with its zone named. */
+export function formatInstantIn(iso: string | Date, timeZone: string): string {
+  let format = instantFormats.get(timeZone);
+  if (!format) {
+    format = new Intl.DateTimeFormat('en-US', { timeZone, year: 'numeric', month: 'short', day: 'numeric', hour: 'numeric', minute: '2-digit', timeZoneName: 'short' });
+    instantFormats.set(timeZone, format);
+  }
+  return format.format(typeof iso === 'string' ? new Date(iso) : iso);
+}

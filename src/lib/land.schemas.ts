@@ -85,13 +85,14 @@ export const allowanceSchema = z
     speciesId: z.uuid('Choose a species from the catalogue.'),
     seasons: z.array(z.object({ start: monthDay, end: monthDay })).min(1, 'Give at least one season window.').max(4),
     methods: z.array(z.enum(methods)).min(1, 'Allow at least one method.'),
-    limits: z.array(limitSchema).max(4),
+    /** Up to two kinds of quantity per species ("200 g or 50 plants, whichever comes first"), each scope once per kind. */
+    limits: z.array(limitSchema).max(8, 'Give at most eight limits.'),
   })
   .superRefine((a, ctx) => {
-    const scopes = a.limits.map((l) => l.scope);
-    if (new Set(scopes).size !== scopes.length) ctx.addIssue({ code: 'custom', path: ['limits'], message: 'Give each limit scope once.' });
-    const dims = new Set(a.limits.map((l) => units[l.unit].dimension));
-    if (dims.size > 1) ctx.addIssue({ code: 'custom', path: ['limits'], message: 'All limits of one species must measure the same thing (all mass, all volume, or all counts).' });
+    const keys = a.limits.map((l) => `${l.scope}|${units[l.unit].measure}`);
+    if (new Set(keys).size !== keys.length) ctx.addIssue({ code: 'custom', path: ['limits'], message: 'Give each limit once per kind of quantity: one per visit, one per day and so on.' });
+    const kinds = new Set(a.limits.map((l) => units[l.unit].measure));
+    if (kinds.size > 2) ctx.addIssue({ code: 'custom', path: ['limits'], message: 'Limit a species in at most two kinds of quantity (for example a weight and a number of plants).' });
   });
 
 export type ParcelSettings = z.infer<typeof parcelSettingsSchema>;

@@ -1,215 +1,201 @@
 /**
- * Units of harvest limits and entries. Every factor to the dimension's base unit (g, mL, count)
- * is an exact terminating decimal (NIST Handbook 44 App. C; the 1959 yard and pound agreement),
- * so quantities are compared as scaled integers and never drift.
+ * Units of harvest limits and entries. Every factor to its measure's base unit (g, mL, or one item
+ * counted) is an exact terminating decimal (NIST Handbook 44 App. C; the 1959 yard and pound
+ * agreement), so quantities are added and compared exactly and never drift.
  */
+import Big from 'big.js';
 import { AppError } from './errors';
 
-export type Dimension = 'mass' | 'volume' | 'count';
-export type Unit = 'g' | 'kg' | 'oz' | 'lb' | 'mL' | 'L' | 'us-cup' | 'us-pint' | 'us-quart' | 'us-gallon' | 'stem' | 'bulb' | 'fruiting-body' | 'plant';
+/**
+ * What a unit measures. Mass and volume each convert exactly within themselves; stems, bulbs,
+ * plants and fruiting bodies are four different things to count, so none stands in for another.
+ */
+export type Measure = 'mass' | 'volume' | 'stems' | 'bulbs' | 'fruiting-bodies' | 'plants';
+export const measures: readonly Measure[] = ['mass', 'volume', 'stems', 'bulbs', 'fruiting-bodies', 'plants'];
 
-export const units: Record<Unit, { dimension: Dimension; toBase: string; label: string }> = {
-  g: { dimension: 'mass', toBase: '1', label: 'g' },
-  kg: { dimension: 'mass', toBase: '1000', label: 'kg' },
-  oz: { dimension: 'mass', toBase: '28.349523125', label: 'oz' },
-  lb: { dimension: 'mass', toBase: '453.59237', label: 'lb' },
-  mL: { dimension: 'volume', toBase: '1', label: 'mL' },
-  L: { dimension: 'volume', toBase: '1000', label: 'L' },
-  'us-cup': { dimension: 'volume', toBase: '236.5882365', label: 'US cup' },
-  'us-pint': { dimension: 'volume', toBase: '473.176473', label: 'US pint' },
-  'us-quart': { dimension: 'volume', toBase: '946.352946', label: 'US quart' },
-  'us-gallon': { dimension: 'volume', toBase: '3785.411784', label: 'US gallon' },
-  stem: { dimension: 'count', toBase: '1', label: 'stems' },
-  bulb: { dimension: 'count', toBase: '1', label: 'bulbs' },
-  'fruiting-body': { dimension: 'count', toBase: '1', label: 'fruiting bodies' },
-  plant: { dimension: 'count', toBase: '1', label: 'plants' },
+export type Unit =
+  | 'g' | 'kg' | 'oz' | 'lb'
+  | 'mL' | 'L' | 'us-cup' | 'us-pint' | 'us-quart' | 'us-gallon' | 'us-dry-pint' | 'us-dry-quart'
+  | 'stem' | 'bulb' | 'fruiting-body' | 'plant';
+
+/**
+ * Liquid and dry pints and quarts are different volumes (a dry pint is about 16 % larger), so each
+ * label says which one it is (`label` names the unit in a list; `one` and `many` follow an amount). Dry measures: 1 bushel = 2150.42 in³ (NIST HB 44 App. C), a dry quart
+ * 1/32 bushel, a dry pint 1/64; with 1 in³ = 16.387064 mL they are 1101.220942715 and 550.6104713575 mL.
+ */
+export const units: Record<Unit, { measure: Measure; toBase: string; label: string; one: string; many: string }> = {
+  g: { measure: 'mass', toBase: '1', label: 'g', one: 'g', many: 'g' },
+  kg: { measure: 'mass', toBase: '1000', label: 'kg', one: 'kg', many: 'kg' },
+  oz: { measure: 'mass', toBase: '28.349523125', label: 'oz', one: 'oz', many: 'oz' },
+  lb: { measure: 'mass', toBase: '453.59237', label: 'lb', one: 'lb', many: 'lb' },
+  mL: { measure: 'volume', toBase: '1', label: 'mL', one: 'mL', many: 'mL' },
+  L: { measure: 'volume', toBase: '1000', label: 'L', one: 'L', many: 'L' },
+  'us-cup': { measure: 'volume', toBase: '236.5882365', label: 'US cup', one: 'US cup', many: 'US cups' },
+  'us-pint': { measure: 'volume', toBase: '473.176473', label: 'US liquid pint', one: 'US liquid pint', many: 'US liquid pints' },
+  'us-quart': { measure: 'volume', toBase: '946.352946', label: 'US liquid quart', one: 'US liquid quart', many: 'US liquid quarts' },
+  'us-gallon': { measure: 'volume', toBase: '3785.411784', label: 'US liquid gallon', one: 'US liquid gallon', many: 'US liquid gallons' },
+  'us-dry-pint': { measure: 'volume', toBase: '550.6104713575', label: 'US dry pint', one: 'US dry pint', many: 'US dry pints' },
+  'us-dry-quart': { measure: 'volume', toBase: '1101.220942715', label: 'US dry quart', one: 'US dry quart', many: 'US dry quarts' },
+  stem: { measure: 'stems', toBase: '1', label: 'stems', one: 'stem', many: 'stems' },
+  bulb: { measure: 'bulbs', toBase: '1', label: 'bulbs', one: 'bulb', many: 'bulbs' },
+  'fruiting-body': { measure: 'fruiting-bodies', toBase: '1', label: 'fruiting bodies', one: 'fruiting body', many: 'fruiting bodies' },
+  plant: { measure: 'plants', toBase: '1', label: 'plants', one: 'plant', many: 'plants' },
 };
 
 export const unitCodes = Object.keys(units) as Unit[];
 
-/** Fixed-point scale: 10^-12 of a base unit is finer than any product of our factors with a 6-decimal quantity. */
-const scaleDigits = 18;
+/** The base unit of each measure, as the ledger's totals are kept: grams, millilitres, or items. */
+export const baseUnits: Record<Measure, Unit> = { mass: 'g', volume: 'mL', stems: 'stem', bulbs: 'bulb', 'fruiting-bodies': 'fruiting-body', plants: 'plant' };
 
-/** A decimal string as an integer count of 10^-18 (no floating point anywhere). */
-export function toScaled(decimal: string): bigint {
-  const match = /^(-)?(\d+)(?:\.(\d+))?$/.exec(decimal.trim());
-  if (!match) throw new RangeError(`not a decimal number: ${decimal}`);
-  const [, sign, whole, fraction = ''] = match;
-  if (fraction.length > scaleDigits) throw new RangeError(`too many decimal places: ${decimal}`);
-  const value = BigInt(whole + fraction.padEnd(scaleDigits, '0'));
-  return sign ? -value : value;
-}
+export const measureOf = (unit: Unit): Measure => units[unit].measure;
 
-/** A quantity in the base unit of its dimension, scaled by 10^18. */
-export function toBaseScaled(quantity: string, unit: Unit): bigint {
-  return (toScaled(quantity) * toScaled(units[unit].toBase)) / 10n ** BigInt(scaleDigits);
-}
-
-export function sameDimension(a: Unit, b: Unit) {
-  return units[a].dimension === units[b].dimension;
+export function sameMeasure(a: Unit, b: Unit) {
+  return units[a].measure === units[b].measure;
 }
 
 /*
- * Exact decimal arithmetic for quantities.
- *
- * Why the arithmetic does not drift: a quantity is read from its decimal string into an integer and
- * a power of ten (0.1 is 1 × 10⁻¹, held exactly), and every factor above is a terminating decimal
- * by definition (1 lb = 0.45359237 kg exactly; 1 US gal = 231 in³ with 1 in = 2.54 cm exactly).
- * Sums and products of such numbers are integers times powers of ten, so BigInt computes them with
- * no rounding at all; nothing passes through binary floating point, where 0.1 has no exact value
- * and ten of them add up to 0.9999999999999999. The only rounding is in a division that has no
- * finite decimal (1 g in oz), and that happens once, at the end, where a person reads the number;
- * limits are compared in base units, which are always exact.
+ * Exact decimal arithmetic for quantities, through big.js (arbitrary-precision decimals). A
+ * quantity is read from its decimal string, never through binary floating point (where 0.1 has no
+ * exact value and ten of them add up to 0.9999999999999999). Sums and products of our quantities
+ * and factors are exact. The only rounding is in a division with no finite decimal (1 g in oz),
+ * once, where a person reads the number; limits are compared in base units, which are exact.
  */
 
-/** value = units × 10^-scale */
-type Decimal = { units: bigint; scale: number };
+/** Our own constructor, so our precision and rounding never depend on anyone else's settings. */
+const Decimal = Big();
+/**
+ * Places kept in a division before the final rounding. Quotients of our quantities (at most 16
+ * decimals over at most 18 digits) that are not exactly on a rounding boundary stay further from it
+ * than 10⁻⁴⁰, so rounding this intermediate never moves a result across a boundary.
+ */
+Decimal.DP = 40;
+Decimal.RM = Big.roundHalfUp;
+Decimal.strict = true;
 
-const decimalPattern = /^([+-])?(\d+)(?:\.(\d+))?$/;
-const powers: bigint[] = [];
-const pow10 = (n: number) => (powers[n] ??= 10n ** BigInt(n));
+const decimalPattern = /^[+-]?\d+(?:\.\d+)?$/;
 
-/** Parsed decimals by their text: an audit compares the same limits and totals thousands of times. Never mutated. */
-const parsed = new Map<string, Decimal>();
-
-function parseDecimal(text: string): Decimal {
-  const key = String(text);
-  const known = parsed.get(key);
-  if (known) return known;
-  const match = decimalPattern.exec(key.trim());
-  if (!match) throw new RangeError(`not a decimal number: ${text}`);
-  const [, sign, whole = '0', fraction = ''] = match;
-  const units = BigInt(whole + fraction);
-  const decimal = { units: sign === '-' ? -units : units, scale: fraction.length };
-  if (parsed.size >= 10_000) parsed.clear();
-  parsed.set(key, decimal);
-  return decimal;
+/** A decimal string, read exactly; anything else (1,5 or 1e3) is a RangeError. */
+function read(text: string): Big {
+  const value = String(text).trim();
+  if (!decimalPattern.test(value)) throw new RangeError(`not a decimal number: ${text}`);
+  return new Decimal(value.startsWith('+') ? value.slice(1) : value);
 }
 
-function formatDecimal({ units, scale }: Decimal): string {
-  const negative = units < 0n;
-  const digits = (negative ? -units : units).toString().padStart(scale + 1, '0');
-  const whole = digits.slice(0, digits.length - scale);
-  const fraction = digits.slice(digits.length - scale).replace(/0+$/, '');
-  if (units === 0n) return '0';
-  return `${negative ? '-' : ''}${whole}${fraction ? `.${fraction}` : ''}`;
-}
-
-function align(a: Decimal, b: Decimal): [bigint, bigint, number] {
-  const scale = Math.max(a.scale, b.scale);
-  return [a.units * pow10(scale - a.scale), b.units * pow10(scale - b.scale), scale];
-}
-
-export type Rounding = 'half-away-from-zero' | 'toward-zero';
-
-/** a / b rounded to `places` decimals, or exactly when the quotient has a finite decimal. */
-function divide(a: Decimal, b: Decimal, places: number | 'exact-or-12', rounding: Rounding = 'half-away-from-zero'): Decimal {
-  if (b.units === 0n) throw new RangeError('division by zero');
-  // a/b = (a.units × 10^b.scale) / (b.units × 10^a.scale)
-  let numerator = a.units * pow10(b.scale);
-  let denominator = b.units * pow10(a.scale);
-  if (denominator < 0n) [numerator, denominator] = [-numerator, -denominator];
-  let target = typeof places === 'number' ? places : 12;
-  if (places === 'exact-or-12') {
-    const exact = terminatingPlaces(numerator, denominator);
-    if (exact !== null) target = exact;
-  }
-  const scaled = numerator * pow10(target);
-  let quotient = scaled / denominator;
-  const remainder = scaled % denominator;
-  const twice = (remainder < 0n ? -remainder : remainder) * 2n;
-  if (rounding === 'half-away-from-zero' && twice >= denominator) quotient += scaled < 0n ? -1n : 1n;
-  return { units: quotient, scale: target };
-}
-
-/** Decimal places of n/d when it terminates (d has no prime factor but 2 and 5 once reduced), else null. */
-function terminatingPlaces(n: bigint, d: bigint): number | null {
-  const gcd = (x: bigint, y: bigint): bigint => (y === 0n ? (x < 0n ? -x : x) : gcd(y, x % y));
-  let rest = d / gcd(n === 0n ? d : n, d);
-  let twos = 0;
-  let fives = 0;
-  while (rest % 2n === 0n) { rest /= 2n; twos += 1; }
-  while (rest % 5n === 0n) { rest /= 5n; fives += 1; }
-  return rest === 1n ? Math.max(twos, fives) : null;
+/** Plain notation, no trailing zeros, and never "-0". */
+function write(value: Big): string {
+  return value.eq('0') ? '0' : value.toFixed();
 }
 
 /** The exact sum of decimal strings. */
 export function addDecimals(...values: string[]): string {
-  return formatDecimal(values.map(parseDecimal).reduce((sum, v) => { const [x, y, scale] = align(sum, v); return { units: x + y, scale }; }, { units: 0n, scale: 0 }));
+  return write(values.reduce((sum, v) => sum.plus(read(v)), new Decimal('0')));
 }
 
 /** a − b, exactly. */
 export function subtractDecimals(a: string, b: string): string {
-  const [x, y, scale] = align(parseDecimal(a), parseDecimal(b));
-  return formatDecimal({ units: x - y, scale });
+  return write(read(a).minus(read(b)));
 }
 
 /** The exact product of decimal strings. */
 export function multiplyDecimals(...values: string[]): string {
-  return formatDecimal(values.map(parseDecimal).reduce((p, v) => ({ units: p.units * v.units, scale: p.scale + v.scale }), { units: 1n, scale: 0 }));
+  return write(values.reduce((product, v) => product.times(read(v)), new Decimal('1')));
 }
 
-/** a / b: exact when the quotient has a finite decimal and `places` is not given; otherwise rounded (half away from zero unless told). */
-export function divideDecimals(a: string, b: string, places?: number, rounding?: Rounding): string {
-  return formatDecimal(divide(parseDecimal(a), parseDecimal(b), places ?? 'exact-or-12', rounding));
+export type Rounding = 'half-up' | 'toward-zero';
+
+/**
+ * a / b: exact when the quotient has a finite decimal and `places` is not given (else 12 places);
+ * rounded to `places` when given. Rounding is half up unless told ("half up" is away from zero for
+ * a negative number).
+ */
+export function divideDecimals(a: string, b: string, places?: number, rounding: Rounding = 'half-up'): string {
+  const [dividend, divisor] = [read(a), read(b)];
+  if (divisor.eq('0')) throw new RangeError('division by zero');
+  const quotient = dividend.div(divisor);
+  if (places === undefined && quotient.times(divisor).eq(dividend)) return write(quotient);
+  return write(quotient.round(places ?? 12, rounding === 'half-up' ? Big.roundHalfUp : Big.roundDown));
 }
 
 /** −1, 0 or 1 as a is less than, equal to or greater than b. */
 export function compareDecimals(a: string, b: string): -1 | 0 | 1 {
-  const [x, y] = align(parseDecimal(a), parseDecimal(b));
-  return x < y ? -1 : x > y ? 1 : 0;
+  return read(a).cmp(read(b)) as -1 | 0 | 1;
 }
 
-/** A decimal string rounded half away from zero to `places` decimals (for display). */
+/** Whether a string is a decimal number this module reads. */
+export const isDecimal = (text: string): boolean => decimalPattern.test(String(text).trim());
+
+/** A decimal string rounded half up to `places` decimals (for display). */
 export function roundDecimal(value: string, places: number): string {
-  return divideDecimals(value, '1', places);
-}
-
-const dimensionNoun: Record<Dimension, string> = { mass: 'mass', volume: 'volume', count: 'count' };
-const dimensionCounted: Record<Dimension, string> = { mass: 'mass', volume: 'volume', count: 'items' };
-const dimensionAdvice: Record<Dimension, string> = { mass: 'weigh it', volume: 'measure its volume', count: 'count them' };
-
-/** The units of one dimension, for a sentence: "g, kg, oz or lb". */
-export function unitsOfDimension(dimension: Dimension): string {
-  const labels = unitCodes.filter((u) => units[u].dimension === dimension).map((u) => units[u].label);
-  return labels.length > 1 ? `${labels.slice(0, -1).join(', ')} or ${labels.at(-1)}` : (labels[0] ?? '');
+  return write(read(value).round(places, Big.roundHalfUp));
 }
 
 /**
- * An entry in another dimension than its limit. Refused, never converted through a density: foraged
- * produce has no standard bulk density (a quart of chanterelles weighs what the packing makes it).
+ * The share of a limit used, in percent, rounded half up to one decimal: the one rounding of a
+ * percentage everywhere in Tallywood (screens, reports, e-mail, CSV). A limit of zero reads as 100.
+ */
+export function percentOf(usedBase: string, limitBase: string): number {
+  if (compareDecimals(limitBase, '0') <= 0) return 100;
+  return Number(divideDecimals(multiplyDecimals(usedBase, '100'), limitBase, 1));
+}
+
+const measureNoun: Record<Measure, string> = {
+  mass: 'a mass', volume: 'a volume', stems: 'a count of stems', bulbs: 'a count of bulbs', 'fruiting-bodies': 'a count of fruiting bodies', plants: 'a count of plants',
+};
+const measureCounted: Record<Measure, string> = {
+  mass: 'mass', volume: 'volume', stems: 'stems', bulbs: 'bulbs', 'fruiting-bodies': 'fruiting bodies', plants: 'whole plants',
+};
+const measureAdvice: Record<Measure, string> = {
+  mass: 'weigh it', volume: 'measure its volume', stems: 'count the stems', bulbs: 'count the bulbs', 'fruiting-bodies': 'count the fruiting bodies', plants: 'count the plants',
+};
+
+/** The units of one measure, for a sentence: "g, kg, oz or lb". */
+export function unitsOfMeasure(measure: Measure): string {
+  const labels = unitCodes.filter((u) => units[u].measure === measure).map((u) => units[u].label);
+  return labels.length > 1 ? `${labels.slice(0, -1).join(', ')} or ${labels.at(-1)}` : (labels[0] ?? '');
+}
+
+/** What to do instead of the refused unit: "weigh it, or enter it in g, kg, oz or lb" / "count the bulbs". */
+function adviceFor(measure: Measure): string {
+  const choices = unitCodes.filter((u) => units[u].measure === measure);
+  return choices.length > 1 ? `${measureAdvice[measure]}, or enter it in ${unitsOfMeasure(measure)}` : measureAdvice[measure];
+}
+
+/**
+ * An entry in another measure than its limit. Refused, never converted: foraged produce has no
+ * standard bulk density (a quart of chanterelles weighs what the packing makes it), and a stem is
+ * not a bulb.
  */
 export class UnitMismatch extends AppError {
   constructor(readonly from: Unit, readonly to: Unit) {
     const [f, t] = [units[from], units[to]];
+    const named = (u: { measure: Measure; label: string }) => (u.measure === 'mass' || u.measure === 'volume' ? ` (${u.label})` : '');
     super(
       400,
       'unit-mismatch',
-      `That is a ${dimensionNoun[f.dimension]} (${f.label}) but this limit counts ${dimensionCounted[t.dimension]} (${t.label}); ` +
-        `${dimensionAdvice[t.dimension]}, or enter it in ${unitsOfDimension(t.dimension)}.`,
+      `That is ${measureNoun[f.measure]}${named(f)} but this limit counts ${measureCounted[t.measure]}${named(t)}; ${adviceFor(t.measure)}.`,
       'unit',
     );
     this.name = 'UnitMismatch';
   }
 }
 
-/** A quantity in its dimension's base unit (g, mL or count), exactly. */
+/** A quantity in its measure's base unit (g, mL, or items), exactly. */
 export function toBase(quantity: string, unit: Unit): string {
   return multiplyDecimals(quantity, units[unit].toBase);
 }
 
-/** A base-unit quantity (g, mL or count) in `unit`: exact where a finite decimal exists, else rounded to `places` (default 12). */
+/** A base-unit quantity in `unit`: exact where a finite decimal exists, else rounded half up to `places` (default 12). */
 export function fromBase(baseQuantity: string, unit: Unit, places?: number): string {
   return divideDecimals(baseQuantity, units[unit].toBase, places);
 }
 
 /**
- * A quantity converted between two units of one dimension. Exact whenever the result has a finite
- * decimal (all conversions into g, kg, mL, L, and among US cup/pint/quart/gallon or oz/lb); a result
- * with no finite decimal (1 g in oz) is rounded half away from zero to `places` decimals (default 12,
- * a picogram on an ounce). Throws UnitMismatch across dimensions.
+ * A quantity converted between two units of one measure: exact whenever the result has a finite
+ * decimal (all conversions into g, kg, mL and L, and among the US liquid measures or oz and lb); a
+ * result with no finite decimal (1 g in oz) is rounded half up to `places` (default 12). Throws
+ * UnitMismatch across measures.
  */
 export function convert(quantity: string, from: Unit, to: Unit, { places }: { places?: number } = {}): string {
-  if (!sameDimension(from, to)) throw new UnitMismatch(from, to);
+  if (!sameMeasure(from, to)) throw new UnitMismatch(from, to);
   return divideDecimals(toBase(quantity, from), units[to].toBase, places);
 }

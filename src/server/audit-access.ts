@@ -3,7 +3,6 @@ import type { AuditScope } from '../db/audit.queries';
 import { ownsParcel } from '../db/parcel-rules.queries';
 import type { Actor } from '../lib/actor';
 import { notFound } from '../lib/errors';
-import { localDateAt } from '../lib/field';
 import { guard, idParam } from './http';
 
 /** A steward's club from the path; another club's id answers 404, a forager without a stewardship 403. */
@@ -22,6 +21,3 @@ export async function parcelReportScope(actor: Actor, { parcelId, clubId }: { pa
   if (clubId && actor.stewardOfClubIds.includes(clubId)) return { clubId, parcelId };
   throw notFound('Parcel');
 }
-
-/** The audit date when none is asked for: today, on the UTC calendar (an audit spans parcels in several zones). */
-export const todayForAudit = (now: Date) => localDateAt(now, 'UTC');

@@ -3,6 +3,8 @@ import type { SeasonReport } from '../db/reports.queries';
 import { reportBasis } from '../db/reports.queries';
 import { sql } from 'drizzle-orm';
 import { mailHtml, sendMail } from './mail';
+import { formatDate } from '../lib/format';
+import { formatAmount, formatPercent, formatQuantities, formatSeasonDates, limitScopeWords, stateLabel, unitAfter } from '../lib/tally-words';
 
 /** An invitation to a club, with the way in: sign in with the invited address, then open Club. */
 export async function noticeClubInvitation({ membershipId, email, origin, newAccount }: { membershipId: string; email: string; origin: string; newAccount: boolean }) {
@@ -28,19 +30,22 @@ const summary = (report: SeasonReport) =>
   `${count(report.visits, 'visit', 'visits')}, ${count(report.foragers, 'forager', 'foragers')}, ${count(report.breaches.length, 'breach', 'breaches')}, ${count(report.openFlags, 'flag', 'flags')} still open.`;
 
 const tallyLine = (t: SeasonReport['species'][number]['tallies'][number]) =>
-  `${t.scope} (${reportBasis[t.scope]}): ${t.used} of ${t.limit.quantity} ${t.limit.unit}, ${t.percent} %, ${t.state}`;
+  `${formatAmount(t.limit.quantity)} ${unitAfter(t.limit.quantity, t.limit.unit)} ${limitScopeWords[t.scope]} (${reportBasis[t.scope]}): ${formatAmount(t.used)} used, ${formatPercent(t.percent)}, ${stateLabel(t.state)}`;
+
+const taken = (s: SeasonReport['species'][number]) => (s.taken.length > 0 ? formatQuantities(s.taken) : 'nothing');
+const period = (report: SeasonReport) => (report.period ? `Season ${formatSeasonDates(report.period)}, as of ${formatDate(report.asOf)}` : `As of ${formatDate(report.asOf)}: no species is in a season yet`);
 
 /** The season report in words, for the e-mail's text part. */
 export function seasonReportText(report: SeasonReport, url: string): string {
   const lines = [
     `Season report: ${report.parcel.name}${report.club ? ` — ${report.club.name}` : ''}`,
-    report.period ? `Season ${report.period.start} to ${report.period.end} (as of ${report.asOf})` : `As of ${report.asOf}: no species is in a season yet.`,
+    `${period(report)}.`,
     summary(report),
     '',
-    ...report.species.flatMap((s) => [`${s.commonName} (${s.scientificName}), ${s.season.start} to ${s.season.end}: taken ${s.taken ? `${s.taken.quantity} ${s.taken.unit}` : 'nothing'} by ${s.foragers} foragers in ${s.entries} entries`, ...s.tallies.map((t) => `  ${tallyLine(t)}`)]),
+    ...report.species.flatMap((s) => [`${s.commonName} (${s.scientificName}), ${formatSeasonDates(s.season)}: taken ${taken(s)} by ${s.foragers} foragers in ${s.entries} entries`, ...s.tallies.map((t) => `  ${tallyLine(t)}`)]),
     '',
     ...(report.breaches.length > 0
-      ? ['Breaches:', ...report.breaches.map((b) => `  ${b.entry.localDate} ${b.commonName}, ${b.foragerName}: ${b.entry.quantity} ${b.entry.unit}; ${b.handled ? 'handled' : 'open'}${b.notes.length ? ` — ${b.notes[b.notes.length - 1]?.note}` : ''}`)]
+      ? ['Breaches:', ...report.breaches.map((b) => `  ${formatDate(b.entry.countedOn)} ${b.commonName}, ${b.foragerName}: ${formatQuantities(b.entry.quantities)}; ${b.handled ? 'handled' : 'open'}${b.notes.length ? ` — ${b.notes[b.notes.length - 1]?.note}` : ''}`)]
       : ['No breaches.']),
     '',
     `The full report, printable, with CSV: ${url}`,
@@ -54,9 +59,9 @@ export async function sendSeasonReportMail({ report, origin, senderEmail }: { re
   const url = `${origin}/reports/season/${report.parcel.id}?${query}`;
   const heading = `Season report for ${report.parcel.name}${report.club ? ` from ${report.club.name}` : ''}`;
   const paragraphs = [
-    report.period ? `Season ${report.period.start} to ${report.period.end}, as of ${report.asOf}.` : `As of ${report.asOf}.`,
+    `${period(report)}.`,
     summary(report),
-    ...report.species.map((s) => `${s.commonName}: ${s.taken ? `${s.taken.quantity} ${s.taken.unit}` : 'nothing'} taken; ${s.tallies.map(tallyLine).join('; ') || 'no limits'}.`),
+    ...report.species.map((s) => `${s.commonName}: ${taken(s)} taken; ${s.tallies.map(tallyLine).join('; ') || 'no limits'}.`),
   ];
   const to = [...new Set([report.parcel.ownerEmail, senderEmail])];
   for (const address of to) {

@@ -1,11 +1,21 @@
 import { sql } from 'drizzle-orm';
 import { db } from '../db';
+import { formatDay } from '../lib/field/words';
+import { formatQuantities } from '../lib/tally-words';
 import { mailHtml, sendMail } from './mail';
 
-/** Tells the landowner (and the stewards of a club permit) at once that an entry went over a limit. */
+/**
+ * Tells the landowner (and the stewards of a club permit) at once that an entry went over a limit.
+ * A correction that took its day over is told the same way, naming the day it counts on.
+ */
 export async function noticeBreach({ entryId, origin }: { entryId: string; origin: string }) {
-  const [row] = await db.execute<{ parcel_id: string; parcel_name: string; species: string; quantity: string; unit: string; forager: string; local_date: string; recipients: string[] }>(sql`
-    select p.id as parcel_id, p.name as parcel_name, s.common_name as species, e.quantity::text, e.unit::text, coalesce(f.name, f.email) as forager, e.local_date::text,
+  const [row] = await db.execute<{
+    parcel_id: string; parcel_name: string; species: string; quantities: { quantity: string; unit: string }[]; forager: string; counted_on: string;
+    correction: boolean; recipients: string[];
+  }>(sql`
+    select p.id as parcel_id, p.name as parcel_name, s.common_name as species, coalesce(f.name, f.email) as forager, e.counted_on::text,
+      e.corrects_entry_id is not null as correction,
+      (select json_agg(json_build_object('quantity', trim_scale(q.quantity)::text, 'unit', q.unit) order by q.measure) from harvest_quantities q where q.entry_id = e.id) as quantities,
       array_remove(array[(select u.email from users u where u.id = p.owner_id)] ||
         coalesce((select array_agg(u.email) from permits pm join club_memberships m on m.club_id = pm.holder_club_id and m.role = 'steward' and m.state = 'active'
           join users u on u.id = m.user_id where pm.id = e.permit_id), '{}'), null) as recipients
@@ -13,8 +23,11 @@ export async function noticeBreach({ entryId, origin }: { entryId: string; origi
     where e.id = ${entryId}`);
   if (!row) return;
   const heading = `Limit breached on ${row.parcel_name}`;
+  const what = row.correction
+    ? `${row.forager} corrected their entry of ${row.species} for ${formatDay(row.counted_on)} by ${formatQuantities(row.quantities, { signed: true })}, which takes a harvest limit of that day over.`
+    : `${row.forager} recorded ${formatQuantities(row.quantities)} of ${row.species} on ${formatDay(row.counted_on)}, which takes a harvest limit over.`;
   const paragraphs = [
-    `${row.forager} recorded ${Number(row.quantity)} ${row.unit} of ${row.species} on ${row.local_date}, which takes a harvest limit over. They confirmed it knowingly; the entry is flagged as a breach.`,
+    `${what} They confirmed it knowingly; the entry is flagged as a breach.`,
     'Follow it up with them; the ledger keeps the entry and any correction.',
   ];
   for (const to of row.recipients) {

@@ -3,7 +3,7 @@ import { z } from 'zod';
 import { signInSchema, signUpSchema } from '../lib/accounts.schemas';
 import { allowanceSchema, closureSchema, hazardSchema, newParcelSchema, parcelUpdateSchema, termsSchema, zoneSchema } from '../lib/land.schemas';
 import { accessRequestSchema, decisionSchema, grantPermitSchema, permitLimitSchema, revokeSchema } from '../lib/permits.schemas';
-import { checkInSchema, harvestSchema } from '../lib/field.schemas';
+import { checkInSchema, correctionSchema, harvestSchema } from '../lib/field.schemas';
 
 type Route = { method: 'get' | 'post' | 'put' | 'patch' | 'delete'; path: string; summary: string; body?: z.ZodType; auth?: boolean; tag: string };
 
@@ -37,7 +37,8 @@ const routes: Route[] = [
   { method: 'post', path: '/api/permits/{id}/checkout', summary: 'Start paying the fee; answers the hosted checkout URL', tag: 'payments' },
   { method: 'post', path: '/api/payments/webhook', summary: "The payment provider's signed events (idempotent)", auth: false, tag: 'payments' },
   { method: 'post', path: '/api/check-ins', summary: 'Check in: position and accuracy radius; answers the verdict, hazards and remaining quantities', body: checkInSchema, tag: 'field' },
-  { method: 'post', path: '/api/harvest-entries', summary: 'Record a harvest entry or a correction (idempotent by key; over a limit needs acknowledgeOver)', body: harvestSchema, tag: 'field' },
+  { method: 'post', path: '/api/harvest-entries', summary: 'Record a harvest entry: one quantity per measure its limits count (idempotent by key; over a limit needs acknowledgeOver)', body: harvestSchema, tag: 'field' },
+  { method: 'post', path: '/api/harvest-entries/{id}/corrections', summary: "Correct one of your entries: signed quantities and a reason, counted on the day, visit and permit of the entry's chain (no check-in needed)", body: correctionSchema, tag: 'field' },
   { method: 'post', path: '/api/harvest-entries/preview', summary: 'The tallies as they would be after this entry; saves nothing', body: harvestSchema, tag: 'field' },
   { method: 'post', path: '/api/visits/{id}/check-out', summary: 'End a visit', tag: 'field' },
   { method: 'post', path: '/api/photos', summary: 'Upload a harvest photo (multipart `photo`, images only, 10 MB); answers its GPS position if it has one', tag: 'field' },
@@ -51,7 +52,7 @@ const routes: Route[] = [
   { method: 'post', path: '/api/clubs/{id}/members/{membershipId}', summary: 'Remove a member or change their role (steward)', body: manageMembershipSchema, tag: 'clubs' },
   { method: 'post', path: '/api/memberships/{id}', summary: 'Accept or decline your invitation, or leave the club', body: answerMembershipSchema, tag: 'clubs' },
   { method: 'get', path: '/api/clubs/{id}/audit', summary: "The club's tallies by parcel, species and member against every limit (query: asOf)", tag: 'audit' },
-  { method: 'get', path: '/api/clubs/{id}/audit/entries', summary: 'The entries behind one club tally, without positions (query: parcelId, speciesId, foragerId, permitId, asOf)', tag: 'audit' },
+  { method: 'get', path: '/api/clubs/{id}/audit/entries', summary: "The entries behind one member's club tally, without positions (query: parcelId, speciesId, foragerId, asOf)", tag: 'audit' },
   { method: 'get', path: '/api/clubs/{id}/flags', summary: 'Breaches and nearing tallies under the club permits, newest first', tag: 'audit' },
   { method: 'get', path: '/api/parcels/{id}/audit', summary: "Every holder's tallies on your parcel against every limit (query: asOf)", tag: 'audit' },
   { method: 'get', path: '/api/parcels/{id}/audit/entries', summary: 'The entries behind one tally on your parcel, with positions', tag: 'audit' },

@@ -2,13 +2,13 @@ import { db } from '../db';
 import { seasonReport } from '../db/reports.queries';
 import { seasonReportQuerySchema } from '../lib/clubs.schemas';
 import { notFound, signedOut } from '../lib/errors';
-import { parcelReportScope, todayForAudit } from './audit-access';
+import { parcelReportScope } from './audit-access';
 import { idParam, parseInput } from './http';
 
 /**
  * The season report a request asks for: `/…/[id]?asOf=YYYY-MM-DD&club=<club id>`. The landowner
  * gets everyone's (or one club's), a steward their club's; anyone else 404. `asOf` defaults to
- * today, as every audit's does.
+ * today on the parcel's own calendar, as every audit's does.
  */
 export async function requestedSeasonReport(locals: App.Locals, params: Record<string, string | undefined>, url: URL) {
   const actor = locals.actor;
@@ -16,7 +16,7 @@ export async function requestedSeasonReport(locals: App.Locals, params: Record<s
   const parcelId = idParam(params.id ?? params.parcelId, 'Parcel');
   const q = parseInput(seasonReportQuerySchema, Object.fromEntries(url.searchParams));
   const scope = await parcelReportScope(actor, { parcelId, clubId: q.club || null });
-  const report = await seasonReport(db, scope, { asOf: q.asOf ?? todayForAudit(new Date()) });
+  const report = await seasonReport(db, scope, { asOf: q.asOf });
   if (!report) throw notFound('Parcel');
   return { actor, report };
 }

@@ -22,7 +22,7 @@ const south = 43.87;
 const size = 0.003;
 const centre = { longitude: west + size / 2, latitude: south + size / 2 };
 const clubName = 'Three Ridges Foraging Society';
-const csvHeader = 'section,species,scientific_name,season_start,season_end,scope,limit,unit,used,percent,state,forager,date,follow_up';
+const csvHeader = 'section,species,scientific_name,season_start,season_end,scope,measure,limit,unit,used,percent,state,forager,date,follow_up';
 
 let steward: APIRequestContext;
 let beth: APIRequestContext;
@@ -73,7 +73,7 @@ test.beforeAll(async () => {
   const answer = await checkIn.json();
   expect(answer.verdict).toBe('clear');
   expect(answer.permitId).toBe(ids.permit);
-  const saved = await beth.post('/api/harvest-entries', { data: { idempotencyKey: randomUUID(), visitId: answer.visitId, speciesId: ids.oyster, method: 'pick', quantity: '850', unit: 'g' } });
+  const saved = await beth.post('/api/harvest-entries', { data: { idempotencyKey: randomUUID(), visitId: answer.visitId, speciesId: ids.oyster, method: 'pick', quantities: [{ quantity: '850', unit: 'g' }] } });
   expect(saved.status(), await saved.text()).toBe(201);
   const recorded = await saved.json();
   ids.entry = recorded.entry.id;
@@ -82,17 +82,24 @@ test.beforeAll(async () => {
 
 test.afterAll(async () => Promise.all([steward, beth, owen, walter, june].map((c) => c?.dispose())));
 
-const entriesQuery = () => new URLSearchParams({ parcelId: ids.parcel, speciesId: ids.oyster, foragerId: ids.beth, permitId: ids.permit }).toString();
+/** One audit row is one forager's on a parcel and species (under any permit): the entries behind it are asked for by those three. */
+const entriesQuery = () => new URLSearchParams({ parcelId: ids.parcel, speciesId: ids.oyster, foragerId: ids.beth }).toString();
 
 test.describe('club audit, flags and entries', () => {
   test("given the club's steward, its audit, flags and entries answer 200, and the entries carry no position", async () => {
     const audit = await steward.get(`/api/clubs/${ids.club}/audit`);
     expect(audit.status(), await audit.text()).toBe(200);
-    const { rows } = (await audit.json()) as { rows: { parcelId: string; foragerId: string; permitId: string; tallies: { scope: string; used: string; percent: number; state: string }[] }[] };
-    const row = rows.find((r) => r.parcelId === ids.parcel && r.foragerId === ids.beth);
+    type Row = { parcelId: string; foragerId: string; permitId: string; permitIds: string[]; taken: { measure: string; base: string }[]; tallies: { scope: string; measure: string; used: string; percent: number; state: string }[] };
+    const { rows } = (await audit.json()) as { rows: Row[] };
+    // One row per forager on a parcel and species, whatever permits they took it under.
+    const mine = rows.filter((r) => r.parcelId === ids.parcel && r.foragerId === ids.beth);
+    expect(mine).toHaveLength(1);
+    const [row] = mine;
     expect(row?.permitId).toBe(ids.permit);
+    expect(row?.permitIds).toEqual([ids.permit]);
+    expect(row?.taken).toEqual([{ measure: 'mass', base: '850' }]);
     // 850 g of 1 kg a day: 0.85 kg, 85 %, nearing; of the 2 kg club cap: 0.85 kg, 42.5 %, within.
-    expect(row?.tallies.map((t) => [t.scope, t.used, t.percent, t.state])).toEqual([['day', '0.85', 85, 'nearing'], ['club-season', '0.85', 42.5, 'within']]);
+    expect(row?.tallies.map((t) => [t.scope, t.measure, t.used, t.percent, t.state])).toEqual([['day', 'mass', '0.85', 85, 'nearing'], ['club-season', 'mass', '0.85', 42.5, 'within']]);
 
     const flags = await steward.get(`/api/clubs/${ids.club}/flags`);
     expect(flags.status()).toBe(200);
@@ -187,7 +194,8 @@ test.describe("a parcel's audit, flags and season report", () => {
     expect(response.headers()['content-disposition']).toMatch(/^attachment; filename="season-report-club-api-lot-\d+-\d{4}-\d{2}-\d{2}\.csv"$/);
     const lines = (await response.text()).split('\r\n');
     expect(lines[0]).toBe(csvHeader);
-    expect(lines.find((l) => l.startsWith('tally,Oyster mushroom,') && l.includes(',day,'))).toMatch(/,day,[^,]*,kg,0\.85,85,nearing,,,$/);
+    // scope, measure, limit, unit, used, percent, state: 850 g of a 1 kg day limit is 0.85 kg, 85 %, nearing (worked above).
+    expect(lines.find((l) => l.startsWith('tally,Oyster mushroom,') && l.includes(',day,'))).toMatch(/,day,mass,1,kg,0\.85,85,nearing,,,$/);
   });
 
   test("given the club's steward, the parcel's season report answers 200 in the club's view, and 404 without naming the club", async () => {

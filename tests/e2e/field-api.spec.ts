@@ -39,8 +39,11 @@ test.beforeAll(async () => {
 test.afterAll(async () => Promise.all([walter, forager].map((c) => c?.dispose())));
 
 const entry = (speciesName: string, quantity: string, unit: string, extra: Record<string, unknown> = {}) => ({
-  idempotencyKey: randomUUID(), visitId, speciesId: ids[speciesName], method: 'pick', quantity, unit, ...extra,
+  idempotencyKey: randomUUID(), visitId, speciesId: ids[speciesName], method: 'pick', quantities: [{ quantity, unit }], ...extra,
 });
+/** A correction of one of the forager's entries: signed quantities in its own measure, and why. */
+const correction = (quantity: string, unit: string, reason: string) => ({ idempotencyKey: randomUUID(), reason, quantities: [{ quantity, unit }] });
+const correct = (entryId: string, body: ReturnType<typeof correction>) => forager.post(`/api/harvest-entries/${entryId}/corrections`, { data: body });
 
 test('given bad positions, check-in answers 400 naming the field', async () => {
   const cases: [unknown, string][] = [
@@ -58,7 +61,7 @@ test('given bad positions, check-in answers 400 naming the field', async () => {
   expect(raw.status()).toBe(400);
 });
 
-test('given an unknown species or a quantity in the wrong dimension, the entry is refused and nothing is saved', async () => {
+test('given an unknown species or a quantity in the wrong measure, the entry is refused and nothing is saved', async () => {
   const unknown = await forager.post('/api/harvest-entries', { data: { ...entry('Oyster mushroom', '1', 'g'), speciesId: randomUUID() } });
   expect(unknown.status()).toBe(400);
   expect((await unknown.json()).error.field).toBe('speciesId');
@@ -67,6 +70,8 @@ test('given an unknown species or a quantity in the wrong dimension, the entry i
   const { error } = await wrong.json();
   expect(error.field).toBe('unit');
   expect(error.message).toMatch(/volume/i);
+  // Liquid and dry quarts differ, so the label says which (NIST HB 44 App. C, REFERENCES §1).
+  expect(error.message).toContain('US liquid quart');
   const preview = await forager.post('/api/harvest-entries/preview', { data: entry('Oyster mushroom', '1', 'kg') });
   const tally = (await preview.json()).tallies.find((t: { scope: string }) => t.scope === 'day');
   expect(tally.used).toMatch(/^1(\.0+)?$/); // nothing recorded yet: used after this 1 kg entry is 1 kg
@@ -123,19 +128,24 @@ test("given a photo whose EXIF places it 0.001° north of the check-in, the entr
   expect(recorded.photoDistanceM).toBeLessThan(112.5);
 });
 
-test('given a correction, it may take away at most what the entry still counts, on the same parcel and species', async () => {
+test('given a correction, it may take away at most what the entry still counts, in the entry\'s own measure', async () => {
   const saved = await forager.post('/api/harvest-entries', { data: entry('Oyster mushroom', '100', 'g') });
   expect(saved.status()).toBe(201);
   const original = (await saved.json()).entry.id as string;
-  const tooMuch = await forager.post('/api/harvest-entries', { data: entry('Oyster mushroom', '-150', 'g', { corrects: { entryId: original, reason: 'Weighed again at home' } }) });
+  const tooMuch = await correct(original, correction('-150', 'g', 'Weighed again at home'));
   expect(tooMuch.status()).toBe(400);
-  expect((await tooMuch.json()).error.field).toBe('quantity');
-  const otherSpecies = await forager.post('/api/harvest-entries', { data: entry('Fiddlehead (ostrich fern)', '-1', 'stem', { corrects: { entryId: original, reason: 'Wrong species' } }) });
-  expect(otherSpecies.status()).toBe(404);
-  const fair = await forager.post('/api/harvest-entries', { data: entry('Oyster mushroom', '-0.04', 'kg', { corrects: { entryId: original, reason: 'Weighed again at home: 60 g' } }) });
+  expect((await tooMuch.json()).error.field).toBe('quantities');
+  // The entry was weighed (mass); a count of stems is another measure and cannot correct it.
+  const otherMeasure = await correct(original, correction('-1', 'stem', 'Wrong species'));
+  expect(otherMeasure.status()).toBe(400);
+  expect((await otherMeasure.json()).error).toMatchObject({ code: 'unit-mismatch', field: 'quantities' });
+  const nobody = await correct(randomUUID(), correction('-1', 'g', 'No such entry'));
+  expect(nobody.status()).toBe(404);
+  const fair = await correct(original, correction('-0.04', 'kg', 'Weighed again at home: 60 g'));
   expect(fair.status(), await fair.text()).toBe(201);
-  expect((await fair.json()).entry).toMatchObject({ correctsEntryId: original, breach: false });
+  expect((await fair.json()).entry).toMatchObject({ correctsEntryId: original, rootEntryId: original, breach: false });
   // 100 g − 0.04 kg leaves 60 g; another −61 g would take away more than remains.
-  const past = await forager.post('/api/harvest-entries', { data: entry('Oyster mushroom', '-61', 'g', { corrects: { entryId: original, reason: 'Again' } }) });
+  const past = await correct(original, correction('-61', 'g', 'Again'));
   expect(past.status()).toBe(400);
+  expect((await past.json()).error.field).toBe('quantities');
 });

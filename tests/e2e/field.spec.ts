@@ -14,8 +14,12 @@ const name = `Field test lot ${Date.now()}`;
 
 let walter: APIRequestContext;
 
+/** The parcel's calendar date at an instant (YYYY-MM-DD), from the IANA tz data: never the UTC date. */
+const parcelDate = (date: Date) => new Intl.DateTimeFormat('en-CA', { timeZone: 'America/New_York', year: 'numeric', month: '2-digit', day: '2-digit' }).format(date);
+
 function monthDay(date: Date) {
-  return `${String(date.getUTCMonth() + 1).padStart(2, '0')}-${String(Math.min(date.getUTCDate(), 28)).padStart(2, '0')}`;
+  const [, month, day] = parcelDate(date).split('-');
+  return `${month}-${String(Math.min(Number(day), 28)).padStart(2, '0')}`;
 }
 
 test.beforeAll(async () => {
@@ -36,8 +40,7 @@ test.beforeAll(async () => {
   expect((await allow(morel?.id, [{ start: monthDay(later(60)), end: monthDay(later(90)) }])).status()).toBe(200);
   const zone = [[west + 0.0005, south + 0.0005], [west + 0.0012, south + 0.0005], [west + 0.0012, south + 0.0012], [west + 0.0005, south + 0.0012], [west + 0.0005, south + 0.0005]];
   expect((await walter.post(`/api/parcels/${parcelId}/zones`, { data: { name: 'Orchid seep', reason: 'Showy lady’s slippers', boundary: { type: 'Polygon', coordinates: [zone] } } })).status()).toBe(201);
-  const today = now.toISOString().slice(0, 10);
-  const granted = await walter.post(`/api/parcels/${parcelId}/permits`, { data: { holder: { kind: 'forager', email: 'forager@example.org' }, startsOn: later(-2).toISOString().slice(0, 10), endsOn: later(200).toISOString().slice(0, 10), note: `Field test ${today}` } });
+  const granted = await walter.post(`/api/parcels/${parcelId}/permits`, { data: { holder: { kind: 'forager', email: 'forager@example.org' }, startsOn: parcelDate(later(-2)), endsOn: parcelDate(later(200)), note: `Field test ${parcelDate(now)}` } });
   expect(granted.status(), await granted.text()).toBe(201);
 });
 

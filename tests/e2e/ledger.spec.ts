@@ -3,14 +3,20 @@ import { expect, test } from '@playwright/test';
 import { pageAs } from './support';
 
 /**
- * The forager's ledger against the seeded demo, which has no harvest entries: this spec inserts
- * nothing. Entries appear when the field check-in flow has recorded some for the demo forager.
+ * The forager's ledger. The seeded demo gives the demo forager no harvest entries (its entries are
+ * the club members'); this spec inserts nothing. Entries appear when the field specs have recorded
+ * some for the demo forager in the same run.
  */
 const forager = 'forager@example.org';
 /** The export's header row, written out here rather than taken from our own code. */
 const csvHeader =
-  'entry_id,local_date,recorded_at,parcel,species,scientific_name,method,quantity,unit,base_quantity,base_unit,dimension,' +
-  'season_start,season_end,season_basis,breach,corrects_entry_id,correction_reason,corrected_later,recorded_by,photo,latitude,longitude';
+  'entry_id,counts_on,recorded_on,recorded_at,time_zone,parcel,species,scientific_name,method,quantity,unit,base_quantity,measure,' +
+  'season_start,season_end,breach,corrects_entry_id,root_entry_id,correction_reason,corrected_later,recorded_by,photo,latitude,longitude';
+
+/** The zone's abbreviation at an instant, from the IANA tz data (through Intl): EST or EDT in America/New_York. */
+function zoneAbbreviation(instant: string, timeZone: string) {
+  return new Intl.DateTimeFormat('en-US', { timeZone, timeZoneName: 'short' }).formatToParts(new Date(instant)).find((p) => p.type === 'timeZoneName')?.value ?? '';
+}
 
 test('given the demo forager, My ledger follows My permits in the navigation and opens on the empty state or the table', async ({ browser }) => {
   const page = await pageAs(browser, forager);
@@ -39,11 +45,28 @@ test('given the demo forager has entries, a column heading sorts the table and a
   await expect(quantity).toHaveAttribute('aria-sort', 'descending');
   await quantity.getByRole('button').click();
   await expect(quantity).toHaveAttribute('aria-sort', 'ascending');
-  const date = page.getByRole('columnheader', { name: 'Date', exact: true });
-  await date.getByRole('button').click();
-  await expect(date).toHaveAttribute('aria-sort', 'descending');
+  const countsOn = page.getByRole('columnheader', { name: 'Counts on', exact: true });
+  await countsOn.getByRole('button').click();
+  await expect(countsOn).toHaveAttribute('aria-sort', 'descending');
   await expect(quantity).toHaveAttribute('aria-sort', 'none');
   await expect(page.getByTestId('ledger-totals')).toBeVisible();
+});
+
+test('given the demo forager has entries, each recorded time reads on the parcel\'s clock with its zone abbreviation', async ({ browser }) => {
+  const page = await pageAs(browser, forager);
+  const { entries } = (await (await page.request.get('/api/ledger')).json()) as { entries: { id: string; recordedAt: string; timeZone: string }[] };
+  test.skip(entries.length === 0, 'The demo forager has no harvest entries yet.');
+  await page.goto('/ledger');
+  await page.locator('[data-testid="ledger-table"][data-hydrated="true"]').waitFor();
+  for (const entry of entries.slice(0, 5)) {
+    // Every parcel of these specs keeps America/New_York time: EST in winter, EDT in summer (IANA tz data, REFERENCES §6).
+    expect(entry.timeZone).toBe('America/New_York');
+    const abbreviation = zoneAbbreviation(entry.recordedAt, 'America/New_York');
+    expect(abbreviation).toMatch(/^E[SD]T$/);
+    const recorded = page.locator(`tr[data-entry="${entry.id}"] time`);
+    await expect(recorded).toHaveAttribute('datetime', entry.recordedAt);
+    await expect(recorded).toHaveText(new RegExp(`\\d{1,2}:\\d{2}\\s?[AP]M ${abbreviation}$`));
+  }
 });
 
 test('given the demo forager, Download CSV saves tallywood-ledger-<date>.csv that starts with the header row', async ({ browser }) => {

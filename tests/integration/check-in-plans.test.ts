@@ -3,9 +3,8 @@ import type { SQL } from 'drizzle-orm';
 import postgres from 'postgres';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { actorBySessionQuery } from '../../src/db/accounts.queries';
-import { checkInRecordQuery } from '../../src/db/field.commands';
-import { parcelFactsNearQuery } from '../../src/db/field.queries';
-import type { CheckInAnswer } from '../../src/lib/field/types';
+import { parcelFactsNearQuery, usageQuery } from '../../src/db/field.queries';
+import type { UsageWindow } from '../../src/lib/field/counting';
 
 /**
  * The check-in statements run with generic plans (src/db/client.ts), planned once per connection
@@ -61,13 +60,18 @@ describe('generic plans of the check-in statements', () => {
     expect(plan).not.toMatch(/Seq Scan on (users|sessions)\b/);
   });
 
-  it('reads and writes visits through the open-visits index, never a scan of all visits or parcels', async () => {
-    const first = { verdict: 'clear', localDate: '2026-06-01', permitId: null, parcel: { id: '00000000-0000-4000-8000-000000000002', name: 'x', timeZone: 'UTC' } } as unknown as CheckInAnswer;
-    const plan = await genericPlan(
-      'check_in_record',
-      checkInRecordQuery({ forager, position: [-72.1, 43.2], accuracyM: 5, instant: '2026-06-01T12:00:00.000Z', clearId: first.parcel?.id ?? null, first }),
-    );
-    expect(plan).toMatch(/Index Scan using visits_open on visits x\n\s+Index Cond: \(forager_id = \$\d+\)/);
-    expect(plan).not.toMatch(/Seq Scan on (visits|parcels)\b/);
+  it('sums what the forager has taken from harvest_totals through its indexes, never a scan of the kept totals or of visits', async () => {
+    // Made-up ids: a generic plan is made without the values. One window asks for the open visit, one names a visit.
+    const window = { parcelId: '00000000-0000-4000-8000-000000000002', speciesId: '00000000-0000-4000-8000-000000000003', measure: 'mass', seasonStart: '2026-04-15', seasonEnd: '2026-07-31', day: '2026-06-01' } as const;
+    const windows: UsageWindow[] = [{ ...window, visit: 'open' }, { ...window, measure: 'plants', visit: '00000000-0000-4000-8000-000000000004' }];
+    const plan = await genericPlan('usage', usageQuery({ forager, windows }));
+    // The visit, day, season, parcel-season and club-season sums: five reads of the kept totals, each through an index.
+    expect(plan.match(/(Index|Index Only|Bitmap Index) Scan (using|on) harvest_totals_\w+/g) ?? []).toHaveLength(5);
+    expect(plan).not.toMatch(/Seq Scan on (harvest_totals|visits)\b/);
+    // The visit's sum by the visit index; the day's by the key, down to the forager and the day.
+    expect(plan).toMatch(/Index Scan using harvest_totals_visit on harvest_totals t\w*\n\s+Index Cond: \(visit_id = /);
+    expect(plan).toMatch(/Index (Only )?Scan using harvest_totals_key on harvest_totals t\w*\n\s+Index Cond: \(.*\(forager_id = \$\d+\) AND \(counted_on = w\.day\)\)/);
+    // The open visit is found through the one-open-visit index.
+    expect(plan).toMatch(/Index Scan using visits_one_open on visits v\n\s+Index Cond: \(forager_id = \$\d+\)/);
   });
 });

@@ -3,7 +3,7 @@ import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { applyMigrations } from '../../src/db/migrations';
 import { findPhotoForViewer, insertPhotoUpload } from '../../src/db/photos.queries';
-import { harvestEntries, parcels, species, users } from '../../src/db/schema';
+import { harvestEntries, harvestQuantities, parcels, species, users } from '../../src/db/schema';
 import { createThrowawayDatabase, migrationsFolder, type ThrowawayDatabase } from './throwaway-database';
 import { webpExifPayload } from '../../src/lib/photo-bytes';
 import { maxPhotoBytes, originalPrefixFor, processPhoto, readPhotoPart, sharedKeyFor } from '../../src/server/photo-processing';
@@ -183,20 +183,24 @@ describe('findPhotoForViewer (real PostgreSQL)', () => {
       insertPhotoUpload(db(), { ownerId: ids.forager, storageKey: `photos/original/${n}`, contentType: 'image/jpeg', byteSize: 3, sha256: 'x' });
     ids.photo = (await upload(1)).id;
     ids.unattached = (await upload(2)).id;
-    await db().insert(harvestEntries).values({
-      idempotencyKey: 'photo-test-1',
-      foragerId: ids.forager,
-      parcelId: parcel?.id ?? '',
-      speciesId: ramps?.id ?? '',
-      method: 'cut',
-      quantity: '100',
-      unit: 'g',
-      dimension: 'mass',
-      baseQuantity: '100',
-      localDate: '2026-05-01',
-      photoUploadId: ids.photo,
-      recordedBy: ids.forager,
-    });
+    const [entry] = await db()
+      .insert(harvestEntries)
+      .values({
+        idempotencyKey: 'photo-test-1',
+        foragerId: ids.forager,
+        parcelId: parcel?.id ?? '',
+        speciesId: ramps?.id ?? '',
+        method: 'cut',
+        localDate: '2026-05-01',
+        countedOn: '2026-05-01',
+        seasonStart: '2026-04-15',
+        seasonEnd: '2026-05-31',
+        photoUploadId: ids.photo,
+        recordedBy: ids.forager,
+      })
+      .returning({ id: harvestEntries.id });
+    if (!entry) throw new Error('the entry was not inserted');
+    await db().insert(harvestQuantities).values({ entryId: entry.id, measure: 'mass', quantity: '100', unit: 'g', baseQuantity: '100' });
   });
 
   afterAll(async () => {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { addDays, closuresOn, currentSeason, endOfLocalDay, localDateAt, localWallClock, startOfLocalDay } from '../../src/lib/field/time';
+import { addDays, addYears, closuresOn, currentSeason, endOfLocalDay, localDateAt, localWallClock, seasonAsOf, startOfLocalDay } from '../../src/lib/field/time';
 
 const at = (iso: string) => new Date(iso);
 const hours = (a: Date, b: Date) => (b.getTime() - a.getTime()) / 3_600_000;
@@ -130,6 +130,34 @@ describe('currentSeason', () => {
     expect(currentSeason([spring, autumn], '2026-09-10')).toEqual({ start: '2026-09-01', end: '2026-10-31' });
     expect(currentSeason([spring, { start: '05-15', end: '06-30' }], '2026-05-20')).toEqual({ start: '2026-04-15', end: '2026-06-30' });
   });
+  it('given overlapping windows 04-15…06-30 and 06-01…07-31, every day of either is in one season 04-15…07-31, not only the days they share', () => {
+    // Before, only the windows holding the day were joined: 05-01 read 04-15…06-30 and 07-15 read 06-01…07-31,
+    // so one continuous open period split into three "seasons" and a per-season limit restarted inside it.
+    const windows = [{ start: '04-15', end: '06-30' }, { start: '06-01', end: '07-31' }];
+    for (const day of ['2026-04-15', '2026-05-01', '2026-06-15', '2026-07-15', '2026-07-31']) {
+      expect(currentSeason(windows, day)).toEqual({ start: '2026-04-15', end: '2026-07-31' });
+    }
+    expect(currentSeason(windows, '2026-08-01')).toBeNull();
+  });
+  it('given windows that meet (05-31 then 06-01), they are one season; a gap of a day keeps two', () => {
+    expect(currentSeason([{ start: '04-15', end: '05-31' }, { start: '06-01', end: '07-31' }], '2026-05-01')).toEqual({ start: '2026-04-15', end: '2026-07-31' });
+    expect(currentSeason([{ start: '04-15', end: '05-30' }, { start: '06-01', end: '07-31' }], '2026-05-01')).toEqual({ start: '2026-04-15', end: '2026-05-30' });
+  });
+  it('given one window all year (01-01…12-31), each calendar year is its own season: it never runs into its own next year', () => {
+    expect(currentSeason([{ start: '01-01', end: '12-31' }], '2026-06-01')).toEqual({ start: '2026-01-01', end: '2026-12-31' });
+    expect(currentSeason([{ start: '01-01', end: '12-31' }], '2025-12-31')).toEqual({ start: '2025-01-01', end: '2025-12-31' });
+    expect(currentSeason([{ start: '11-01', end: '10-31' }], '2026-06-01')).toEqual({ start: '2025-11-01', end: '2026-10-31' });
+  });
+  it('given two windows that together cover the year (01-01…06-30, 07-01…12-31), the season is a year from the first one\'s start', () => {
+    const windows = [{ start: '01-01', end: '06-30' }, { start: '07-01', end: '12-31' }];
+    expect(currentSeason(windows, '2026-09-01')).toEqual({ start: '2026-01-01', end: '2026-12-31' });
+    expect(seasonAsOf(windows, '2027-01-01')).toEqual({ start: '2027-01-01', end: '2027-12-31' });
+  });
+  it('given a window across New Year overlapping one in spring (11-01…03-15 and 03-01…04-30), the season runs 2026-11-01…2027-04-30', () => {
+    const windows = [{ start: '11-01', end: '03-15' }, { start: '03-01', end: '04-30' }];
+    expect(currentSeason(windows, '2026-12-01')).toEqual({ start: '2026-11-01', end: '2027-04-30' });
+    expect(currentSeason(windows, '2027-04-20')).toEqual({ start: '2026-11-01', end: '2027-04-30' });
+  });
   it('given no windows, it is never in season', () => {
     expect(currentSeason([], '2026-06-01')).toBeNull();
   });
@@ -152,5 +180,37 @@ describe('closuresOn', () => {
   });
   it('given overlapping closures, it returns every one', () => {
     expect(closuresOn([...closures, { startsOn: '2026-12-01', endsOn: '2026-12-31', reason: 'Logging' }], '2026-12-06')).toHaveLength(2);
+  });
+});
+
+describe('addYears', () => {
+  // Gregorian rule: a leap year is divisible by 4, except centuries not divisible by 400 (2028, 2032,
+  // 2000 and 2400 are leap years; 2027, 2029 and 2100 are not).
+  it('given 2026-12-02 and one year, it is 2027-12-02', () => {
+    expect(addYears('2026-12-02', 1)).toBe('2027-12-02');
+  });
+  it('given 29 February 2028 and one year, it is 2029-02-28: 2029 is a common year, so the last day of its February', () => {
+    expect(addYears('2028-02-29', 1)).toBe('2029-02-28');
+  });
+  it('given 2027-02-28 and one year, it is 2028-02-28 (not the leap day)', () => {
+    expect(addYears('2027-02-28', 1)).toBe('2028-02-28');
+  });
+  it('given 29 February 2028 and four years, it is 2032-02-29 (2032 is a leap year)', () => {
+    expect(addYears('2028-02-29', 4)).toBe('2032-02-29');
+  });
+  it('given 29 February 2096 and four years, it is 2100-02-28 (2100 is a century not divisible by 400); from 2000-02-29, 400 years is 2400-02-29', () => {
+    expect(addYears('2096-02-29', 4)).toBe('2100-02-28');
+    expect(addYears('2000-02-29', 400)).toBe('2400-02-29');
+  });
+  it('given a negative number of years, it goes back: 2028-02-29 − 1 is 2027-02-28, 2027-03-01 − 1 is 2026-03-01', () => {
+    expect(addYears('2028-02-29', -1)).toBe('2027-02-28');
+    expect(addYears('2027-03-01', -1)).toBe('2026-03-01');
+  });
+  it('given the last day of another month, it keeps it (2026-12-31 + 1 = 2027-12-31; 2026-04-30 + 2 = 2028-04-30)', () => {
+    expect(addYears('2026-12-31', 1)).toBe('2027-12-31');
+    expect(addYears('2026-04-30', 2)).toBe('2028-04-30');
+  });
+  it('given a date that does not exist, it throws RangeError', () => {
+    expect(() => addYears('2027-02-29', 1)).toThrow(RangeError);
   });
 });

@@ -44,16 +44,16 @@ const check = (over: Partial<Parameters<typeof decideCheckIn>[0]> = {}): CheckIn
 
 describe('clear', () => {
   it('given a forager well inside with a good permit on an open day, it is clear, with the permit, hazards and local date', () => {
-    const answer = check({ usage: () => ({ chanterelle: { day: '946.352946' } }) });
+    const answer = check({ usage: () => ({ chanterelle: { volume: { day: '946.352946' } } }) });
     expect(answer).toMatchObject({ verdict: 'clear', permitId: 'p-owen', parcel: { id: 'birch', name: 'Birch Hollow' }, localDate: '2026-10-01' });
     expect(answer.hazards).toEqual([{ kind: 'hunting', title: 'Deer stand', detail: 'Wear blaze orange.' }]);
     expect(answer.reasons[0]).toBe('You may harvest on Birch Hollow under your permit, which runs until Dec 31, 2026.');
     expect(answer.reasons.join(' ')).toContain('your responsibility');
   });
   it('given species in and out of season, it answers each: the worst tally, open with no limits, out-of-season', () => {
-    const answer = check({ usage: () => ({ chanterelle: { day: '3028.3294272' } }) }); // 0.8 US gal = 0.8 × 3785.411784 mL: nearing
+    const answer = check({ usage: () => ({ chanterelle: { volume: { day: '3028.3294272' } } }) }); // 0.8 US gal = 0.8 × 3785.411784 mL: nearing
     expect(answer.species.map((s) => [s.speciesId, s.state, s.inSeason])).toEqual([['chanterelle', 'nearing', true], ['hen', 'open', true], ['chaga', 'out-of-season', false]]);
-    expect(answer.species[0]?.tallies[0]).toMatchObject({ scope: 'day', used: '0.8', remaining: '0.2', percent: 80 });
+    expect(answer.species[0]?.tallies[0]).toMatchObject({ scope: 'day', measure: 'volume', used: '0.8', remaining: '0.2', percent: 80 });
   });
   it('given a club permit and a member of that club, it is clear under the club’s permit', () => {
     const club = permit({ id: 'p-club', holderUserId: null, holderClubId: 'three-ridges' });

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { flagFor } from '../../src/db/field.commands';
+import { flagFor } from '../../src/lib/field/counting';
 import { seasonAsOf } from '../../src/lib/field/time';
 import type { LimitScope, Tally, TallyState } from '../../src/lib/field/types';
 
@@ -69,7 +69,7 @@ describe('seasonAsOf: a date outside every window', () => {
  * exactly 100 %, over past it. Limits in kg; used in kg; percent = used / limit × 100.
  */
 const tally = (scope: LimitScope, used: string, limitKg: string, percent: number, state: TallyState): Tally => ({
-  scope, limit: { quantity: limitKg, unit: 'kg', fromPermit: false }, used, remaining: '0', percent, state,
+  scope, measure: 'mass', limit: { quantity: limitKg, unit: 'kg', fromPermit: false }, used, remaining: '0', percent, state,
 });
 
 describe('flagFor', () => {

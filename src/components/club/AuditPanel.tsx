@@ -6,18 +6,19 @@ import {
 import { Bar, BarChart, CartesianGrid, Cell, LabelList, ReferenceLine, ResponsiveContainer, Tooltip, XAxis, YAxis } from 'recharts';
 import type { LimitScope, Tally, TallyState } from '../../lib/field/types';
 import type { Audit, AuditChartBar, AuditEntry, AuditRow } from '../../db/audit.queries';
-import { formatQuantity } from '../ledger/ledger-view';
+import { formatQuantities } from '../../lib/tally-words';
 import { formatDate } from '../../lib/format';
 import { sendJson } from '../api-client';
 import {
-  ariaSort, auditRowKey, auditScopeLabels, capitalise, chartCeiling, entriesQuery, formatMethod, formatPercent, formatPosition, formatSeason, formatTally, formatUsage,
-  isIsoDate, matchesStateChoice, stateFills, tallyStates, rankOf, scopesPresent, stateChoices, statePatterns, stateSymbols, stateTones, stateWords, type StateChoice,
+  ariaSort, auditRowKey, auditScopeLabels, capitalise, chartCeiling, entriesQuery, formatMethod, formatPercent, formatPosition, formatSeason, formatTally, formatUsage, unitLabel,
+  isIsoDate, matchesStateChoice, stateFills, tallyStates, rankOf, scopesPresent, stateChoices, statePatterns, stateSymbols, stateTones, stateWords, talliesOfScope, type StateChoice,
 } from './audit-view';
 
 export type AuditPanelProps = {
   /** The club's or the parcel's audit endpoint; the panel adds `?asOf=`. */
   auditUrl: string;
   entriesUrl: string;
+  /** The parcel-local date the audit opens on; empty for today on each parcel. */
   initialAsOf: string;
   /** A landowner sees where entries were made; a steward never does. */
   showPositions: boolean;
@@ -38,7 +39,7 @@ export default function AuditPanel({ auditUrl, entriesUrl, initialAsOf, showPosi
   useEffect(() => {
     const ticket = ++latest.current;
     setAudit({ status: 'loading' });
-    void sendJson('GET', `${auditUrl}?${new URLSearchParams({ asOf })}`).then((result) => {
+    void sendJson('GET', asOf ? `${auditUrl}?${new URLSearchParams({ asOf })}` : auditUrl).then((result) => {
       if (ticket !== latest.current) return;
       setAudit(result.ok ? { status: 'ready', data: result.data as Audit } : { status: 'error', message: result.error.message });
     });
@@ -52,7 +53,7 @@ export default function AuditPanel({ auditUrl, entriesUrl, initialAsOf, showPosi
           id={`${id}-as-of`} type="date" className="field-input" value={draft} aria-describedby={`${id}-as-of-help`}
           onChange={(e) => { setDraft(e.target.value); if (isIsoDate(e.target.value)) setAsOf(e.target.value); }}
         />
-        <p id={`${id}-as-of-help`} className="mt-1 text-xs text-loam-600">The audit covers the season in progress on this date, or the last one that ended before it.</p>
+        <p id={`${id}-as-of-help`} className="mt-1 text-xs text-loam-600">The audit covers the season in progress on this date, or the last one that ended before it. Dates are each parcel's own calendar day.</p>
       </div>
       {audit.status === 'loading' && <p className="mt-4 text-loam-700" aria-live="polite">Loading the audit…</p>}
       {audit.status === 'error' && <p role="alert" className="field-error mt-4">{audit.message}</p>}
@@ -73,8 +74,8 @@ function AuditChart({ bars }: { bars: AuditChartBar[] }) {
   const ceiling = chartCeiling(bars.map((b) => b.percent));
   const ticks = Array.from({ length: ceiling / 20 + 1 }, (_, i) => i * 20);
   const data = bars.map((b) => ({
-    key: `${b.parcelId}|${b.speciesId}|${b.scope}`,
-    name: `${b.parcelName} · ${b.commonName} · ${auditScopeLabels[b.scope]}`,
+    key: `${b.parcelId}|${b.speciesId}|${b.scope}|${b.measure}`,
+    name: `${b.parcelName} · ${b.commonName} · ${auditScopeLabels[b.scope]}${bars.some((o) => o !== b && o.parcelId === b.parcelId && o.speciesId === b.speciesId && o.scope === b.scope) ? ` (${unitLabel(b.unit)})` : ''}`,
     value: Math.min(b.percent, ceiling),
     state: b.state,
     caption: `${stateSymbols[b.state]} ${formatPercent(b.percent)} ${stateWords[b.state]}`,
@@ -146,13 +147,17 @@ function StateMark({ state }: { state: TallyState | null }) {
   return <span className={`pill whitespace-nowrap ${stateTones[state]}`} data-state={state}><span aria-hidden="true">{stateSymbols[state]} </span>{stateWords[state]}</span>;
 }
 
-function TallyCell({ tally }: { tally: Tally | undefined }) {
-  if (!tally) return <span className="text-loam-500" title="No limit of this kind">—</span>;
+function TallyCell({ tallies }: { tallies: Tally[] }) {
+  if (tallies.length === 0) return <span className="text-loam-500" title="No limit of this kind">—</span>;
   return (
-    <span className="block min-w-[9rem]" data-scope={tally.scope} data-state={tally.state}>
-      <span className="block whitespace-nowrap">{formatTally(tally)}</span>
-      <StateMark state={tally.state} />{tally.limit.fromPermit && <span className="ml-1 text-xs text-loam-600">permit's limit</span>}
-    </span>
+    <>
+      {tallies.map((tally) => (
+        <span key={tally.measure} className="block min-w-[9rem]" data-scope={tally.scope} data-measure={tally.measure} data-state={tally.state}>
+          <span className="block whitespace-nowrap">{formatTally(tally)}</span>
+          <StateMark state={tally.state} />{tally.limit.fromPermit && <span className="ml-1 text-xs text-loam-600">permit's limit</span>}
+        </span>
+      ))}
+    </>
   );
 }
 
@@ -166,9 +171,9 @@ function buildColumns(scopes: LimitScope[]) {
     column.accessor('foragerName', { id: 'forager', header: 'Forager' }),
     column.accessor('holderName', { id: 'holder', header: 'Permit holder' }),
     column.accessor((r) => r.season.start, { id: 'season', header: 'Season dates', cell: ({ row }) => <span className="whitespace-nowrap">{formatSeason(row.original.season)}</span> }),
-    ...scopes.map((scope) => column.accessor((r) => r.tallies.find((t) => t.scope === scope)?.percent ?? -1, {
+    ...scopes.map((scope) => column.accessor((r) => Math.max(-1, ...talliesOfScope(r, scope).map((t) => t.percent)), {
       id: `scope-${scope}`, header: capitalise(auditScopeLabels[scope]), sortDescFirst: true,
-      cell: ({ row }) => <TallyCell tally={row.original.tallies.find((t) => t.scope === scope)} />,
+      cell: ({ row }) => <TallyCell tallies={talliesOfScope(row.original, scope)} />,
     })),
     column.accessor((r) => rankOf(r.state), { id: 'state', header: 'Worst state', sortDescFirst: true, filterFn: stateMatches, cell: ({ row }) => <StateMark state={row.original.state} /> }),
     column.accessor('entries', { header: 'Entries', sortDescFirst: true }),
@@ -179,7 +184,7 @@ function buildColumns(scopes: LimitScope[]) {
   ];
 }
 
-function AuditTable({ rows, asOf, entriesUrl, showPositions }: { rows: AuditRow[]; asOf: string; entriesUrl: string; showPositions: boolean }) {
+function AuditTable({ rows, asOf, entriesUrl, showPositions }: { rows: AuditRow[]; asOf: string | null; entriesUrl: string; showPositions: boolean }) {
   const id = useId();
   const columns = useMemo(() => buildColumns(scopesPresent(rows)), [rows]);
   const [sorting, setSorting] = useState<SortingState>([]);
@@ -231,7 +236,7 @@ function AuditTable({ rows, asOf, entriesUrl, showPositions }: { rows: AuditRow[
       <p className="mt-2 text-sm text-loam-700" aria-live="polite" data-testid="audit-count">{shown.length} of {rows.length} {rows.length === 1 ? 'row' : 'rows'}.</p>
       <div className="relative mt-2 overflow-x-auto rounded-lg border border-loam-200 bg-white">
         <table className="table min-w-[64rem]">
-          <caption className="sr-only">Tallies for the season on {formatDate(asOf)}, one row per parcel, species, forager and permit. Select a column heading to sort.</caption>
+          <caption className="sr-only">Tallies for the season on {asOf ? formatDate(asOf) : 'today'}, one row per parcel, species and forager. Select a column heading to sort.</caption>
           <thead>
             {table.getHeaderGroups().map((group) => (
               <tr key={group.id}>
@@ -288,15 +293,15 @@ function EntryList({ load, showPositions }: { load: Load<AuditEntry[]>; showPosi
     <table className="table" data-testid="audit-entries">
       <caption className="sr-only">The entries behind this row, oldest first</caption>
       <thead>
-        <tr><th scope="col">Date</th><th scope="col">Quantity</th><th scope="col">Method</th><th scope="col">Breach</th><th scope="col">Correction</th>{showPositions && <th scope="col">Position</th>}</tr>
+        <tr><th scope="col">Counts on</th><th scope="col">Quantity</th><th scope="col">Method</th><th scope="col">Breach</th><th scope="col">Correction</th>{showPositions && <th scope="col">Position</th>}</tr>
       </thead>
       <tbody>
         {load.data.map((e) => (
           <tr key={e.id} data-entry={e.id}>
-            <td className="whitespace-nowrap">{formatDate(e.localDate)}</td>
-            <td className="whitespace-nowrap">{formatQuantity(e)}</td>
+            <td className="whitespace-nowrap">{formatDate(e.countedOn)}</td>
+            <td className="whitespace-nowrap">{formatQuantities(e.quantities, { signed: Boolean(e.correctsEntryId) })}</td>
             <td>{formatMethod(e.method)}</td>
-            <td>{e.breach ? <span className="pill border-2 border-ember-600 text-ember-700"><span aria-hidden="true">✕ </span>breach{e.acknowledgedOver ? ', acknowledged' : ''}</span> : 'no'}</td>
+            <td>{e.breach ? <span className="pill border-2 border-ember-600 text-ember-700"><span aria-hidden="true">{stateSymbols.over} </span>breach{e.acknowledgedOver ? ', acknowledged' : ''}</span> : 'no'}</td>
             <td>{e.correctsEntryId ? `Correction: ${e.correctionReason ?? 'no reason given'}` : '—'}</td>
             {showPositions && <td className="whitespace-nowrap">{e.position ? formatPosition(e.position) : 'not recorded'}</td>}
           </tr>

@@ -5,9 +5,10 @@ import type { z } from 'zod';
 import type { LimitScope } from '../../lib/field/types';
 import type { FlagNoteView, FlagView } from '../../db/flags.queries';
 import { flagNoteSchema } from '../../lib/clubs.schemas';
-import { formatDate } from '../../lib/format';
+import { formatDate, formatInstantIn } from '../../lib/format';
+import { formatQuantities } from '../../lib/tally-words';
 import { postJson, sendJson } from '../api-client';
-import { flagScopeLabels, formatAmount, formatInstant, formatUsage, isTallyState, stateSymbols, stateTones, stateWords, unitLabel } from './audit-view';
+import { flagScopeLabels, formatUsage, isTallyState, stateSymbols, stateTones, stateWords } from './audit-view';
 
 export type FlagsPanelProps = {
   /** The club's or the parcel's flags endpoint, answering `{ flags }` newest first. */
@@ -86,32 +87,35 @@ function FlagItem({ flag, onRecorded }: { flag: FlagView; onRecorded: () => Prom
         <dt className="font-semibold">Forager</dt>
         <dd>{flag.foragerName}</dd>
         <dt className="font-semibold">Entry</dt>
-        <dd>{formatDate(flag.entry.localDate)}, {formatAmount(flag.entry.quantity)} {unitLabel(flag.entry.unit)}</dd>
+        <dd>{formatDate(flag.entry.countedOn)}, {formatQuantities(flag.entry.quantities)}</dd>
         <dt className="font-semibold">Limits</dt>
         <dd>
           <ul>
-            {flag.scopes.map((scope) => {
-              const tally = flag.tallies.find((t) => t.scope === scope);
-              const state = tally && isTallyState(tally.state) ? tally.state : null;
-              return (
-                <li key={scope} data-scope={scope}>
-                  {scopeLabel(scope)}{tally && <>: {formatUsage(tally)}</>}{state && <>, {stateWords[state]}</>}
-                </li>
-              );
+            {flag.scopes.flatMap((scope) => {
+              const tallies = flag.tallies.filter((t) => t.scope === scope);
+              if (tallies.length === 0) return [<li key={scope} data-scope={scope}>{scopeLabel(scope)}</li>];
+              return tallies.map((tally) => {
+                const state = isTallyState(tally.state) ? tally.state : null;
+                return (
+                  <li key={`${scope}|${tally.unit}`} data-scope={scope}>
+                    {scopeLabel(scope)}: {formatUsage(tally)}{state && <>, <span aria-hidden="true">{stateSymbols[state]} </span>{stateWords[state]}</>}
+                  </li>
+                );
+              });
             })}
           </ul>
         </dd>
         <dt className="font-semibold">Raised</dt>
-        <dd><time dateTime={flag.createdAt}>{formatInstant(flag.createdAt)}</time></dd>
+        <dd><time dateTime={flag.createdAt}>{formatInstantIn(flag.createdAt, flag.timeZone)}</time></dd>
       </dl>
-      <NoteHistory notes={flag.notes} />
+      <NoteHistory notes={flag.notes} timeZone={flag.timeZone} />
       <FollowUpForm flag={flag} onRecorded={onRecorded} />
     </li>
   );
 }
 
 /** Each note, and what it did: the newest note decides whether the flag is handled. */
-function NoteHistory({ notes }: { notes: FlagNoteView[] }) {
+function NoteHistory({ notes, timeZone }: { notes: FlagNoteView[]; timeZone: string }) {
   if (notes.length === 0) return <p className="mt-3 text-sm text-loam-700">No follow-up yet.</p>;
   let handled = false;
   const told = notes.map((n) => {
@@ -126,7 +130,7 @@ function NoteHistory({ notes }: { notes: FlagNoteView[] }) {
         {told.map((n) => (
           <li key={n.id} data-note={n.id}>
             <p className="text-xs text-loam-700">
-              {n.authorName}, <time dateTime={n.createdAt}>{formatInstant(n.createdAt)}</time>
+              {n.authorName}, <time dateTime={n.createdAt}>{formatInstantIn(n.createdAt, timeZone)}</time>
               {n.effect && <> — <strong>{n.effect}</strong></>}
             </p>
             <p className="whitespace-pre-line">{n.note}</p>

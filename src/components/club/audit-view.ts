@@ -1,25 +1,16 @@
 import type { SortDirection } from '@tanstack/react-table';
-import { formatDate } from '../../lib/format';
 import { scopeOrder } from '../../lib/field/tallies';
 import type { LimitScope, Method, Tally, TallyState } from '../../lib/field/types';
-import { units, type Unit } from '../../lib/units';
+import {
+  auditScopeWords, flagScopeWords, formatAmount, formatPercent, formatSeasonDates, formatUsage, stateSymbols, stateWords, tallyStates, unitLabel,
+} from '../../lib/tally-words';
 import type { AuditRow } from '../../db/audit.queries';
 import { methodLabels } from '../ledger/ledger-view';
 
-/** How the audit names each tally: visit and day tallies hold a forager's busiest one. */
-export const auditScopeLabels: Record<LimitScope, string> = {
-  visit: 'busiest visit', day: 'busiest day', season: 'season', 'parcel-season': 'everyone', 'club-season': 'club',
-};
-
-/** How a flag names the tallies an entry raised: as they stood after that one entry. */
-export const flagScopeLabels: Record<LimitScope, string> = {
-  visit: 'visit', day: 'day', season: 'season', 'parcel-season': 'everyone this season', 'club-season': 'club this season',
-};
-
-export const stateWords: Record<TallyState, string> = { within: 'within', nearing: 'nearing', reached: 'reached', over: 'over' };
-
-/** A second signal beside the word and the colour, so a state reads in greyscale and in print. */
-export const stateSymbols: Record<TallyState, string> = { within: '✓', nearing: '◑', reached: '●', over: '✕' };
+/** The words every screen shares (src/lib/tally-words.ts), under the names the audit's islands use. */
+export { formatAmount, formatPercent, formatUsage, stateSymbols, stateWords, tallyStates, unitLabel };
+export const auditScopeLabels = auditScopeWords;
+export const flagScopeLabels = flagScopeWords;
 
 /** The chart's fill for each state, as words for its legend. */
 export const statePatterns: Record<TallyState, string> = { within: 'solid', nearing: 'hatched', reached: 'cross-hatched', over: 'dark, cross-hatched' };
@@ -30,8 +21,6 @@ export const stateTones: Record<TallyState, string> = {
   reached: 'border-ember-500 text-ember-700',
   over: 'border-2 border-ember-700 bg-ember-50 text-ember-700',
 };
-
-export const tallyStates: TallyState[] = ['within', 'nearing', 'reached', 'over'];
 
 /** Ground and ink of each state's chart fill: solid, hatched, cross-hatched, dark cross-hatched (tailwind.config.ts colours). */
 export const stateFills: Record<TallyState, { ground: string; ink: string; edge: string }> = {
@@ -69,39 +58,25 @@ export function scopesPresent(rows: readonly AuditRow[]): LimitScope[] {
   return scopeOrder.filter((s) => seen.has(s));
 }
 
-const amountFormat = new Intl.NumberFormat('en-US', { maximumFractionDigits: 3 });
-
-/** A decimal string for reading: "1,250", "0.333", "−50". Display only; the API keeps every digit. */
-export const formatAmount = (decimal: string): string => amountFormat.format(Number(decimal)).replace('-', '−');
-
-export const unitLabel = (unit: string): string => units[unit as Unit]?.label ?? unit;
-
-export const formatPercent = (percent: number): string => `${Math.round(percent)} %`;
-
-/** "340 / 500 g (68 %)" */
-export function formatUsage({ used, limit, unit, percent }: { used: string; limit: string; unit: string; percent: number }): string {
-  return `${formatAmount(used)} / ${formatAmount(limit)} ${unitLabel(unit)} (${formatPercent(percent)})`;
-}
-
 export const formatTally = (t: Tally): string => formatUsage({ used: t.used, limit: t.limit.quantity, unit: t.limit.unit, percent: t.percent });
 
-export const formatSeason = ({ start, end }: { start: string; end: string }): string => `${formatDate(start)} – ${formatDate(end)}`;
-
-/** An ISO instant as the audit shows it: "2026-05-14 09:30 UTC". */
-export const formatInstant = (iso: string): string => `${iso.slice(0, 16).replace('T', ' ')} UTC`;
+export const formatSeason = formatSeasonDates;
 
 export const formatMethod = (method: string): string => methodLabels[method as Method] ?? method;
 
 /** [longitude, latitude] (RFC 7946 §3.1.1 order) read the way people say it: "latitude, longitude". */
 export const formatPosition = ([lon, lat]: [number, number]): string => `${lat.toFixed(5)}, ${lon.toFixed(5)}`;
 
-/** One audit row's identity: a forager's entries of a species on a parcel under one permit (or none). */
-export const auditRowKey = (r: Pick<AuditRow, 'parcelId' | 'speciesId' | 'foragerId' | 'permitId'>): string =>
-  [r.parcelId, r.speciesId, r.foragerId, r.permitId ?? ''].join('|');
+/** One audit row's identity: a forager's entries of a species on a parcel. */
+export const auditRowKey = (r: Pick<AuditRow, 'parcelId' | 'speciesId' | 'foragerId'>): string => [r.parcelId, r.speciesId, r.foragerId].join('|');
 
-export function entriesQuery(r: Pick<AuditRow, 'parcelId' | 'speciesId' | 'foragerId' | 'permitId'>, asOf: string): string {
-  return new URLSearchParams({ parcelId: r.parcelId, speciesId: r.speciesId, foragerId: r.foragerId, permitId: r.permitId ?? '', asOf }).toString();
+/** The entries behind a row, for the season the audit shows (on `asOf`, or today on the parcel). */
+export function entriesQuery(r: Pick<AuditRow, 'parcelId' | 'speciesId' | 'foragerId'>, asOf: string | null): string {
+  return new URLSearchParams({ parcelId: r.parcelId, speciesId: r.speciesId, foragerId: r.foragerId, ...(asOf ? { asOf } : {}) }).toString();
 }
+
+/** The tallies of one scope in a row, one per measure its limits count ("200 g or 50 plants"). */
+export const talliesOfScope = (r: Pick<AuditRow, 'tallies'>, scope: LimitScope): Tally[] => r.tallies.filter((t) => t.scope === scope);
 
 /** The chart's right edge: past 100 % with room to spare, but a wild overrun does not flatten every other bar. */
 export function chartCeiling(percents: readonly number[]): number {

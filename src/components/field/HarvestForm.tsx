@@ -1,10 +1,21 @@
 import { useEffect, useRef, useState } from 'react';
 import type { SpeciesAnswer, Tally } from '../../lib/field/types';
-import { unitCodes, units, type Unit } from '../../lib/units';
+import { measures, unitCodes, units, type Measure, type Unit } from '../../lib/units';
 import { sendJson } from '../api-client';
 import { TallyBars } from './SpeciesTallies';
 
 type Projection = { tallies: Tally[]; wouldBreach: boolean };
+
+/** One quantity per kind its limits count ("200 g or 50 plants": both); a species with no limit takes any one unit. */
+type Amount = { measure: Measure | null; quantity: string; unit: Unit };
+
+function amountsFor(species: SpeciesAnswer | undefined): Amount[] {
+  const limited = measures.filter((m) => species?.tallies.some((t) => t.measure === m));
+  if (limited.length === 0) return [{ measure: null, quantity: '', unit: 'g' }];
+  return limited.map((m) => ({ measure: m, quantity: '', unit: (species?.tallies.find((t) => t.measure === m)?.limit.unit ?? 'g') as Unit }));
+}
+
+const unitsOf = (measure: Measure | null) => unitCodes.filter((u) => measure === null || units[u].measure === measure);
 
 /**
  * Records what was taken. Before saving it shows the tallies as they would be; an entry that would
@@ -14,8 +25,7 @@ export default function HarvestForm({ visitId, species, onSaved }: { visitId: st
   const open = species.filter((s) => s.inSeason && s.state !== 'out-of-season');
   const [speciesId, setSpeciesId] = useState(open[0]?.speciesId ?? '');
   const chosen = open.find((s) => s.speciesId === speciesId);
-  const [quantity, setQuantity] = useState('');
-  const [unit, setUnit] = useState<Unit>((chosen?.tallies[0]?.limit.unit ?? 'g') as Unit);
+  const [amounts, setAmounts] = useState<Amount[]>(() => amountsFor(chosen));
   const [method, setMethod] = useState(chosen?.methods[0] ?? 'pick');
   const [acknowledge, setAcknowledge] = useState(false);
   const [photo, setPhoto] = useState<File | null>(null);
@@ -26,22 +36,25 @@ export default function HarvestForm({ visitId, species, onSaved }: { visitId: st
 
   useEffect(() => {
     if (!chosen) return;
-    setUnit((chosen.tallies[0]?.limit.unit ?? unit) as Unit);
+    setAmounts(amountsFor(chosen));
     setMethod(chosen.methods[0] ?? 'pick');
   }, [speciesId]);
 
-  const body = () => ({ idempotencyKey: key.current, visitId, speciesId, method, quantity, unit, acknowledgeOver: acknowledge });
+  const filled = amounts.every((a) => a.quantity.trim() !== '');
+  const quantities = () => amounts.map(({ quantity, unit }) => ({ quantity, unit }));
+  const body = () => ({ idempotencyKey: key.current, visitId, speciesId, method, quantities: quantities(), acknowledgeOver: acknowledge });
+  const setAmount = (i: number, change: Partial<Amount>) => setAmounts((all) => all.map((a, j) => (j === i ? { ...a, ...change } : a)));
 
   useEffect(() => {
     setProjection(null);
-    if (!quantity || !speciesId) return;
+    if (!filled || !speciesId) return;
     const timer = setTimeout(async () => {
       const result = await sendJson('POST', '/api/harvest-entries/preview', body());
       if (result.ok) { setProjection(result.data as Projection); setProblem(null); }
       else setProblem(result.error);
     }, 300);
     return () => clearTimeout(timer);
-  }, [quantity, unit, speciesId, method]);
+  }, [JSON.stringify(amounts), speciesId, method]);
 
   if (open.length === 0) return <p className="card">Nothing allowed here is in season today.</p>;
 
@@ -61,7 +74,7 @@ export default function HarvestForm({ visitId, species, onSaved }: { visitId: st
     setBusy(false);
     if (!result.ok) return setProblem(result.error);
     key.current = crypto.randomUUID();
-    setQuantity('');
+    setAmounts(amountsFor(chosen));
     setAcknowledge(false);
     onSaved();
   }
@@ -75,20 +88,26 @@ export default function HarvestForm({ visitId, species, onSaved }: { visitId: st
         {open.map((s) => <option key={s.speciesId} value={s.speciesId}>{s.commonName}</option>)}
       </select>
       {fieldError('speciesId')}
-      <div className="grid grid-cols-2 gap-3">
-        <div>
-          <label className="field-label" htmlFor="harvest-quantity">Quantity</label>
-          <input id="harvest-quantity" inputMode="decimal" className="field-input" value={quantity} onChange={(e) => setQuantity(e.target.value)} aria-invalid={problem?.field === 'quantity'} />
-          {fieldError('quantity')}
-        </div>
-        <div>
-          <label className="field-label" htmlFor="harvest-unit">Unit</label>
-          <select id="harvest-unit" className="field-input" value={unit} onChange={(e) => setUnit(e.target.value as Unit)}>
-            {unitCodes.map((u) => <option key={u} value={u}>{units[u].label}</option>)}
-          </select>
-          {fieldError('unit')}
-        </div>
-      </div>
+      {amounts.length > 1 && <p className="text-sm text-loam-700">The limits here count {amounts.length} kinds of quantity; give each.</p>}
+      {amounts.map((a, i) => {
+        const suffix = i === 0 ? '' : `-${i + 1}`;
+        return (
+          <div key={a.measure ?? 'any'} className="grid grid-cols-2 gap-3" data-measure={a.measure ?? 'any'}>
+            <div>
+              <label className="field-label" htmlFor={`harvest-quantity${suffix}`}>Quantity{amounts.length > 1 ? ` (${units[a.unit].label})` : ''}</label>
+              <input id={`harvest-quantity${suffix}`} inputMode="decimal" className="field-input" value={a.quantity} onChange={(e) => setAmount(i, { quantity: e.target.value })} aria-invalid={problem?.field === 'quantities'} />
+            </div>
+            <div>
+              <label className="field-label" htmlFor={`harvest-unit${suffix}`}>Unit</label>
+              <select id={`harvest-unit${suffix}`} className="field-input" value={a.unit} onChange={(e) => setAmount(i, { unit: e.target.value as Unit })}>
+                {unitsOf(a.measure).map((u) => <option key={u} value={u}>{units[u].label}</option>)}
+              </select>
+            </div>
+          </div>
+        );
+      })}
+      {fieldError('quantities')}
+      {fieldError('unit')}
       <label className="field-label" htmlFor="harvest-method">Method</label>
       <select id="harvest-method" className="field-input" value={method} onChange={(e) => setMethod(e.target.value as typeof method)}>
         {chosen?.methods.map((m) => <option key={m} value={m}>{m}</option>)}
@@ -109,8 +128,8 @@ export default function HarvestForm({ visitId, species, onSaved }: { visitId: st
           )}
         </div>
       )}
-      {problem && !['speciesId', 'quantity', 'unit', 'method', 'photo'].includes(problem.field ?? '') && <p role="alert" className="field-error">{problem.message}</p>}
-      <button type="submit" className="button w-full" disabled={busy || !quantity || (projection?.wouldBreach && !acknowledge)}>{busy ? 'Saving…' : 'Save entry'}</button>
+      {problem && !['speciesId', 'quantities', 'unit', 'method', 'photo'].includes(problem.field ?? '') && <p role="alert" className="field-error">{problem.message}</p>}
+      <button type="submit" className="button w-full" disabled={busy || !filled || (projection?.wouldBreach && !acknowledge)}>{busy ? 'Saving…' : 'Save entry'}</button>
     </form>
   );
 }

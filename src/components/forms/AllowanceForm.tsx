@@ -73,6 +73,12 @@ export default function AllowanceForm({ action, species, initial }: { action: st
 
       <fieldset>
         <legend className="field-label">Limits</legend>
+        <p className="text-xs text-loam-700" id="allowance-limits-help">
+          A species may be limited in two kinds of quantity, such as grams and a number of plants: whichever is reached first applies, and
+          foragers record both. While entries of the species count in a season that has not ended, its limits keep counting the same kinds of
+          quantity (so no tally starts again from nothing); amounts, seasons and methods can change at any time. Liquid and dry pints and
+          quarts are different volumes.
+        </p>
         {limits.fields.map((field, i) => (
           <div key={field.id} className="mt-2 flex flex-wrap items-end gap-2">
             <input aria-label={`Limit ${i + 1} quantity`} inputMode="decimal" placeholder="500" className="field-input w-28" {...register(`limits.${i}.quantity`)} />
@@ -86,7 +92,7 @@ export default function AllowanceForm({ action, species, initial }: { action: st
             {errors.limits?.[i]?.quantity && <p role="alert" className="field-error w-full">{errors.limits[i]?.quantity?.message}</p>}
           </div>
         ))}
-        {limits.fields.length < 4 && (
+        {limits.fields.length < 8 && (
           <button type="button" className="button-quiet mt-2" onClick={() => limits.append({ scope: 'day', quantity: '', unit: 'g' })}>Add a limit</button>
         )}
         {(errors.limits?.message ?? errors.limits?.root?.message) && <p role="alert" className="field-error">{errors.limits?.message ?? errors.limits?.root?.message}</p>}

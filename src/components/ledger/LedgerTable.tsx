@@ -5,7 +5,7 @@ import {
 } from '@tanstack/react-table';
 import { formatDate } from '../../lib/format';
 import type { LedgerEntry } from '../../db/ledger.queries';
-import { buildLedgerRows, formatBase, formatQuantity, formatRecordedAt, methodLabels, quantityOrder, type LedgerRow } from './ledger-view';
+import { buildLedgerRows, formatBase, formatEntryQuantities, formatRecordedAt, methodLabels, quantityOrder, type LedgerRow } from './ledger-view';
 
 export type LedgerTableProps = { entries: LedgerEntry[] };
 
@@ -16,14 +16,14 @@ const sameSpecies: FilterFn<LedgerRow> = (row, _id, value: string) => row.origin
 const groupContains: FilterFn<LedgerRow> = (row, _id, value: string) => row.original.searchText.includes(value.trim().toLowerCase());
 
 const columns = [
-  column.accessor('localDate', {
-    header: 'Date',
+  column.accessor('countedOn', {
+    header: 'Counts on',
     sortingFn: 'text',
     sortDescFirst: true,
     cell: ({ row }) => (
       <span style={{ paddingLeft: `${row.depth * 1.25}rem` }} className="inline-block whitespace-nowrap">
         {row.depth > 0 && <span aria-hidden="true">↳ </span>}
-        {formatDate(row.original.localDate)}
+        {formatDate(row.original.countedOn)}
       </span>
     ),
   }),
@@ -40,23 +40,25 @@ const columns = [
     ),
   }),
   column.accessor((r) => methodLabels[r.method], { id: 'method', header: 'Method' }),
-  column.accessor('quantity', {
+  column.accessor((r) => r.quantities[0]?.baseQuantity ?? '0', {
+    id: 'quantity',
     header: 'Quantity',
     sortingFn: (a, b) => quantityOrder(a.original, b.original),
     sortDescFirst: true,
-    cell: ({ row }) => <span className="whitespace-nowrap">{formatQuantity(row.original)}</span>,
+    cell: ({ row }) => <span className="whitespace-nowrap">{formatEntryQuantities(row.original)}</span>,
   }),
-  column.accessor('baseQuantity', {
+  column.accessor((r) => r.quantities.map((q) => q.baseQuantity).join(' '), {
+    id: 'base',
     header: 'In base units',
     sortingFn: (a, b) => quantityOrder(a.original, b.original),
     sortDescFirst: true,
-    cell: ({ row }) => <span className="whitespace-nowrap">{formatBase(row.original.baseQuantity, row.original.baseUnit)}</span>,
+    cell: ({ row }) => <span className="whitespace-nowrap">{row.original.quantities.map((q) => formatBase(q.baseQuantity, q.measure)).join(' and ')}</span>,
   }),
   column.accessor('recordedAt', {
     header: 'Recorded',
     sortingFn: 'text',
     sortDescFirst: true,
-    cell: ({ getValue }) => <time dateTime={getValue()} className="whitespace-nowrap">{formatRecordedAt(getValue())}</time>,
+    cell: ({ row, getValue }) => <time dateTime={getValue()} className="whitespace-nowrap">{formatRecordedAt(getValue(), row.original.timeZone)}</time>,
   }),
   column.display({ id: 'notes', header: 'Notes', cell: ({ row }) => <EntryNotes row={row.original} /> }),
 ];
@@ -76,7 +78,7 @@ function EntryNotes({ row }: { row: LedgerRow }) {
         <p className="text-xs">
           Corrects{' '}
           {row.corrects ? (
-            <a href={`#entry-${row.corrects.id}`}>the entry of {formatDate(row.corrects.localDate)} ({formatQuantity(row.corrects)})</a>
+            <a href={`#entry-${row.corrects.id}`}>the entry of {formatDate(row.corrects.countedOn)} ({formatEntryQuantities(row.corrects)})</a>
           ) : 'an earlier entry'}
           : {row.correctionReason}
           {row.recordedByName && <> — by {row.recordedByName}</>}

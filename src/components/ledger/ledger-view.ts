@@ -1,6 +1,7 @@
-import { formatDate } from '../../lib/format';
-import { units } from '../../lib/units';
-import type { LedgerEntry, LedgerTotal } from '../../db/ledger.queries';
+import { formatDate, formatInstantIn } from '../../lib/format';
+import { formatAmount, formatQuantities, formatSeasonDates, measureBaseWords } from '../../lib/tally-words';
+import { units, type Measure } from '../../lib/units';
+import type { LedgerEntry } from '../../db/ledger.queries';
 
 /** An entry as the table shows it: its corrections beneath it, and the text the search box looks in. */
 export type LedgerRow = LedgerEntry & {
@@ -39,41 +40,33 @@ function flatten(row: LedgerRow): LedgerRow[] {
 
 function wordsOf(e: LedgerEntry): string {
   return [
-    e.parcelName, e.speciesName, e.scientificName, e.method, units[e.unit].label, e.localDate, formatDate(e.localDate),
+    e.parcelName, e.speciesName, e.scientificName, e.method, ...e.quantities.map((q) => units[q.unit].label), e.countedOn, formatDate(e.countedOn),
     e.correctionReason ?? '', e.recordedByName ?? '', e.breach ? 'breach' : '', e.correctsEntryId ? 'correction' : '', e.isCorrected ? 'corrected' : '',
   ].join(' ');
 }
 
-const numberFormat = new Intl.NumberFormat('en-US', { maximumFractionDigits: 3 });
-const signedFormat = new Intl.NumberFormat('en-US', { maximumFractionDigits: 3, signDisplay: 'exceptZero' });
-
-/** "12 oz", "−100 g" (a correction shows its sign, "+50 g" too). Display only: the CSV keeps every digit. */
-export function formatQuantity(entry: Pick<LedgerEntry, 'quantity' | 'unit' | 'correctsEntryId'>): string {
-  const format = entry.correctsEntryId ? signedFormat : numberFormat;
-  return `${format.format(Number(entry.quantity)).replace('-', '−')} ${units[entry.unit].label}`;
+/** "12 oz", "150 g and 30 plants", "−100 g" (a correction shows its sign, "+50 g" too). Display only: the CSV keeps every digit. */
+export function formatEntryQuantities(entry: Pick<LedgerEntry, 'quantities' | 'correctsEntryId'>): string {
+  return formatQuantities(entry.quantities, { signed: Boolean(entry.correctsEntryId) });
 }
 
-/** A base-unit amount: "740.194 g", "1,250 mL", "12 counted". */
-export function formatBase(quantity: string, baseUnit: LedgerEntry['baseUnit']): string {
-  const amount = numberFormat.format(Number(quantity)).replace('-', '−');
-  return baseUnit === 'count' ? `${amount} counted` : `${amount} ${baseUnit}`;
+/** A base-unit amount: "740.194 g", "1,250 mL", "12 plants". */
+export function formatBase(quantity: string, measure: Measure): string {
+  return `${formatAmount(quantity)} ${measureBaseWords[measure]}`;
 }
 
-/** "1 Nov 2026 – 15 Mar 2027", or "2026 (calendar year)" where no allowance season held the date. */
-export function formatSeason(s: Pick<LedgerTotal, 'seasonStart' | 'seasonEnd' | 'seasonBasis'>): string {
-  if (s.seasonBasis === 'calendar-year') return `${s.seasonStart.slice(0, 4)} (calendar year)`;
-  return `${formatDate(s.seasonStart)} – ${formatDate(s.seasonEnd)}`;
-}
+/** "Nov 1, 2026 – Mar 15, 2027": the season occurrence stored on the entries. */
+export const formatSeason = (s: { seasonStart: string; seasonEnd: string }): string => formatSeasonDates({ start: s.seasonStart, end: s.seasonEnd });
 
-/** "2026-11-14 10:32 UTC" */
-export function formatRecordedAt(iso: string): string {
-  return `${iso.slice(0, 16).replace('T', ' ')} UTC`;
-}
+/** "Nov 14, 2026, 10:32 AM EST": when an entry was recorded, on the parcel's clock, with its zone named. */
+export const formatRecordedAt = (iso: string, timeZone: string): string => formatInstantIn(iso, timeZone);
 
-/** Sort key for quantities: by dimension first, so grams never sort among stems. */
+/** Sort key for quantities: by measure first, so grams never sort among stems. */
 export function quantityOrder(a: LedgerEntry, b: LedgerEntry): number {
-  if (a.dimension !== b.dimension) return a.dimension < b.dimension ? -1 : 1;
-  return Number(a.baseQuantity) - Number(b.baseQuantity);
+  const [x, y] = [a.quantities[0], b.quantities[0]];
+  if (!x || !y) return Number(Boolean(x)) - Number(Boolean(y));
+  if (x.measure !== y.measure) return x.measure < y.measure ? -1 : 1;
+  return Number(x.baseQuantity) - Number(y.baseQuantity);
 }
 
 /** The same words as the allowance form (src/components/forms/AllowanceForm.tsx). */

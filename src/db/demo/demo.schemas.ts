@@ -1,5 +1,5 @@
 import { z } from 'zod';
-import { dimensionEnum, hazardKindEnum, limitScopeEnum, methodEnum, permitStateEnum, speciesKindEnum, unitEnum } from '../schema';
+import { hazardKindEnum, limitScopeEnum, methodEnum, permitStateEnum, speciesKindEnum, unitEnum } from '../schema';
 
 /** The files in data/ as the seed step reads them; a malformed file fails the seed with the path. */
 const slug = z.string().regex(/^[a-z0-9-]+$/);
@@ -97,6 +97,10 @@ const demoVisit = z.object({
 });
 
 export const scenarioFile = z.object({
+  /** The day the scenario is written as if it were today; the loader moves every date by the days since (src/db/demo/shift.ts). */
+  writtenAsOf: isoDate,
+  /** When the verified landowners were verified. */
+  landownersVerifiedAt: z.iso.datetime(),
   hazards: z.array(z.object({ parcelSlug: slug, kind: z.enum(hazardKindEnum.enumValues), title: z.string(), detail: z.string() })),
   closures: z.array(z.object({ parcelSlug: slug, startsOn: isoDate, endsOn: isoDate, reason: z.string() })),
   terms: z.array(z.object({ parcelSlug: slug, version: z.number().int().positive(), publishedOn: isoDate, body: z.string() })),
@@ -131,4 +135,3 @@ export const scenarioFile = z.object({
 });
 
 export type DemoPerson = z.infer<typeof person>;
-export type Dimension = (typeof dimensionEnum.enumValues)[number];

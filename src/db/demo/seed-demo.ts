@@ -3,11 +3,15 @@ import { join } from 'node:path';
 import { count, sql } from 'drizzle-orm';
 import type { z } from 'zod';
 import type { Db, Tx } from '../client';
-import { toBase, units } from '../../lib/units';
+import { measureOf, toBase } from '../../lib/units';
+import { countingFactsFor, type CountingFacts } from '../../lib/field/counting';
+import { localDateAt } from '../../lib/field/time';
+import type { AllowanceFacts } from '../../lib/field/types';
 import {
-  allowances, checkIns, closures, clubMemberships, clubs, harvestEntries, hazards, limits, noHarvestZones, parcels, payments, permitEvents, permits,
+  allowances, checkIns, closures, clubMemberships, clubs, harvestEntries, harvestQuantities, hazards, limits, noHarvestZones, parcels, payments, permitEvents, permits,
   species, terms, users, visits,
 } from '../schema';
+import { daysBetween, shiftDemo } from './shift';
 import type { GeoJsonGeometry } from '../schema/columns';
 import { clubsFile, parcelsFile, person, scenarioFile, speciesFile, zonesFile, type DemoPerson } from './demo.schemas';
 
@@ -49,11 +53,20 @@ function lookup<T>(map: Map<string, T>, key: string, what: string): T {
 const geodesicArea = (geometry: GeoJsonGeometry) =>
   sql<number>`ST_Area(ST_Multi(ST_SetSRID(ST_GeomFromGeoJSON(${JSON.stringify(geometry)}), 4326))::geography)`;
 
-/** Loads the demo scenario when the database has no accounts yet. Returns whether it loaded. */
-export async function seedDemoIfEmpty(db: Db, demo: Demo): Promise<boolean> {
+/**
+ * The day the demo is loaded, on its parcels' own calendar: the scenario is moved from the day it is
+ * written as of to this one, so it never goes stale (src/db/demo/shift.ts).
+ */
+export function demoToday(demo: Demo, now: Date): string {
+  return localDateAt(now, demo.parcels.features[0]?.properties.timeZone ?? 'UTC');
+}
+
+/** Loads the demo scenario, moved to today, when the database has no accounts yet. Returns whether it loaded. */
+export async function seedDemoIfEmpty(db: Db, demo: Demo, { now = new Date() }: { now?: Date } = {}): Promise<boolean> {
   const [existing] = await db.select({ n: count() }).from(users);
   if ((existing?.n ?? 0) > 0) return false;
-  await db.transaction((tx) => seedDemo(tx, demo));
+  const moved = shiftDemo(demo, daysBetween(demo.scenario.writtenAsOf, demoToday(demo, now)));
+  await db.transaction((tx) => seedDemo(tx, moved));
   return true;
 }
 
@@ -64,7 +77,7 @@ async function seedDemo(tx: Tx, demo: Demo) {
     if (row) speciesIds.set(s.slug, row.id);
   }
 
-  const userIds = await insertPeople(tx, demo.people);
+  const userIds = await insertPeople(tx, demo.people, new Date(demo.scenario.landownersVerifiedAt));
 
   const clubIds = new Map<string, string>();
   for (const club of demo.clubs) {
@@ -120,7 +133,12 @@ async function seedDemo(tx: Tx, demo: Demo) {
     if (row) termsIds.set(`${t.parcelSlug}#${t.version}`, row.id);
   }
 
+  const allowanceFacts = new Map<string, AllowanceFacts>();
   for (const a of scenario.allowances) {
+    allowanceFacts.set(`${a.parcelSlug}#${a.speciesSlug}`, {
+      speciesId: lookup(speciesIds, a.speciesSlug, 'the species'), commonName: a.speciesSlug, scientificName: '', seasons: a.seasons, methods: a.methods,
+      limits: a.limits.map((l) => ({ ...l, permitId: null })), cautions: [], lookalikes: [],
+    });
     const [row] = await tx
       .insert(allowances)
       .values({ parcelId: parcelId(a.parcelSlug), speciesId: lookup(speciesIds, a.speciesSlug, 'the species'), seasons: a.seasons, methods: a.methods })
@@ -195,37 +213,45 @@ async function seedDemo(tx: Tx, demo: Demo) {
       .returning({ id: visits.id });
     if (!visit) continue;
     await tx.insert(checkIns).values({ foragerId, position: onParcel, accuracyM: 8, verdict: 'clear', parcelId: pid, visitId: visit.id, at: at(v.from) });
-    const entryAt = new Map<string, string>();
+    const entryAt = new Map<string, { id: string; rootId: string; facts: CountingFacts }>();
     for (const e of v.entries) {
+      // Decided as the field decides it (src/lib/field/counting.ts); a correction counts where its chain began.
       const corrected = e.corrects ? lookup(entryAt, e.corrects, 'the entry at') : null;
+      const allowance = lookup(allowanceFacts, `${v.parcelSlug}#${e.speciesSlug}`, 'the allowance of');
+      const facts = corrected?.facts ?? countingFactsFor({ allowance, permit: { id: permit.id, holderClubId: v.holderClub ? lookup(clubIds, v.holderClub, 'the club') : null }, visitId: visit.id, localDate: v.localDate });
+      if (!facts) throw new Error(`the demo entry of ${e.speciesSlug} on ${v.parcelSlug} on ${v.localDate} is out of its season`);
       const [row] = await tx
         .insert(harvestEntries)
         .values({
           idempotencyKey: `demo-${v.foragerEmail}-${v.localDate}-${e.at}`,
           foragerId,
           parcelId: pid,
-          permitId: permit.id,
+          permitId: facts.permitId,
+          clubId: facts.clubId,
           visitId: visit.id,
-          speciesId: lookup(speciesIds, e.speciesSlug, 'the species'),
+          speciesId: allowance.speciesId,
           method: e.method,
-          quantity: e.quantity,
-          unit: e.unit,
-          dimension: units[e.unit].dimension,
-          baseQuantity: toBase(e.quantity, e.unit),
           localDate: v.localDate,
+          countedOn: facts.countedOn,
+          countedVisitId: facts.countedVisitId,
+          seasonStart: facts.seasonStart,
+          seasonEnd: facts.seasonEnd,
           position: onParcel,
-          correctsEntryId: corrected,
+          correctsEntryId: corrected?.id ?? null,
+          rootEntryId: corrected?.rootId ?? null,
           correctionReason: e.reason ?? null,
           recordedBy: foragerId,
           recordedAt: at(e.at),
         })
         .returning({ id: harvestEntries.id });
-      if (row) entryAt.set(e.at, row.id);
+      if (!row) continue;
+      await tx.insert(harvestQuantities).values({ entryId: row.id, measure: measureOf(e.unit), quantity: e.quantity, unit: e.unit, baseQuantity: toBase(e.quantity, e.unit) });
+      entryAt.set(e.at, { id: row.id, rootId: corrected?.rootId ?? row.id, facts });
     }
   }
 }
 
-async function insertPeople(tx: Tx, people: DemoPerson[]) {
+async function insertPeople(tx: Tx, people: DemoPerson[], verifiedAt: Date) {
   const ids = new Map<string, string>();
   const admin = people.find((p) => p.roles.includes('admin'));
   for (const p of people) {
@@ -236,7 +262,7 @@ async function insertPeople(tx: Tx, people: DemoPerson[]) {
   for (const p of people.filter((p) => p.landownerVerified)) {
     await tx
       .update(users)
-      .set({ landownerVerifiedAt: new Date('2025-01-05T12:00:00Z'), landownerVerifiedBy: adminId ?? null })
+      .set({ landownerVerifiedAt: verifiedAt, landownerVerifiedBy: adminId ?? null })
       .where(sql`${users.email} = ${p.email}`);
   }
   return ids;

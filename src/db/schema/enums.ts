@@ -12,8 +12,10 @@ export const unitEnum = pgEnum('unit', [
   'g', 'kg', 'oz', 'lb',
   'mL', 'L', 'us-cup', 'us-pint', 'us-quart', 'us-gallon',
   'stem', 'bulb', 'fruiting-body', 'plant',
+  'us-dry-pint', 'us-dry-quart',
 ]);
-export const dimensionEnum = pgEnum('dimension', ['mass', 'volume', 'count']);
+/** What a unit measures (src/lib/units.ts): stems, bulbs, fruiting bodies and plants are each their own count. */
+export const measureEnum = pgEnum('measure', ['mass', 'volume', 'stems', 'bulbs', 'fruiting-bodies', 'plants']);
 export const limitScopeEnum = pgEnum('limit_scope', ['visit', 'day', 'season', 'parcel-season', 'club-season']);
 export const permitStateEnum = pgEnum('permit_state', ['requested', 'approved', 'active', 'expired', 'revoked', 'declined']);
 export const verdictEnum = pgEnum('verdict', ['clear', 'outside', 'no-permit', 'edge', 'closed']);

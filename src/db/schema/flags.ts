@@ -9,7 +9,7 @@ import { permits } from './permits';
 import { species } from './species';
 
 /** One tally as it stood after the entry that raised a flag. */
-export type FlaggedTally = { scope: string; state: string; used: string; limit: string; unit: string; percent: number };
+export type FlaggedTally = { scope: string; measure?: string; state: string; used: string; limit: string; unit: string; percent: number };
 
 /**
  * A flag: an entry that took a tally over (a breach) or into nearing or reached. Raised in the

@@ -1,9 +1,10 @@
 import { sql } from 'drizzle-orm';
-import { check, index, jsonb, numeric, pgTable, text, unique, uuid } from 'drizzle-orm/pg-core';
+import { check, index, jsonb, numeric, pgTable, text, timestamp, unique, uuid } from 'drizzle-orm/pg-core';
 import { createdAt, id, updatedAt } from './columns';
 import { limitScopeEnum, methodEnum, speciesKindEnum, unitEnum } from './enums';
 import { parcels } from './land';
 import { permits } from './permits';
+import { users } from './auth';
 
 export type Lookalike = { commonName: string; scientificName: string; danger: 'deadly' | 'toxic' | 'inedible'; howToTell: string };
 /** A yearly window, month-day to month-day inclusive; end before start means it crosses New Year. */
@@ -24,7 +25,10 @@ export const species = pgTable('species', {
   updatedAt: updatedAt(),
 });
 
-/** The harvest terms of one species on one parcel. */
+/**
+ * The harvest terms of one species on one parcel. Removing one keeps the row (and the permits'
+ * tighter limits on it) as history; adding the species again brings it back.
+ */
 export const allowances = pgTable(
   'allowances',
   {
@@ -33,6 +37,8 @@ export const allowances = pgTable(
     speciesId: uuid('species_id').notNull().references(() => species.id),
     seasons: jsonb('seasons').$type<SeasonWindow[]>().notNull(),
     methods: methodEnum('methods').array().notNull(),
+    removedAt: timestamp('removed_at', { withTimezone: true, mode: 'date' }),
+    removedBy: text('removed_by').references(() => users.id),
     createdAt: createdAt(),
     updatedAt: updatedAt(),
   },
@@ -41,7 +47,9 @@ export const allowances = pgTable(
 
 /**
  * A limit of an allowance. permitId null: the parcel's own limit. permitId set: a permit's tighter
- * limit, or a club permit's club-wide cap (scope club-season, which needs a permit).
+ * limit, or a club permit's club-wide cap (scope club-season, which needs a permit). One limit per
+ * allowance, permit, scope and measure: its unique index is on an expression (the unit's measure,
+ * `unit_measure` in drizzle/0010), which drizzle's builder cannot state.
  */
 export const limits = pgTable(
   'limits',
@@ -55,7 +63,6 @@ export const limits = pgTable(
     createdAt: createdAt(),
   },
   (t) => [
-    unique('limits_one_per_scope').on(t.allowanceId, t.permitId, t.scope).nullsNotDistinct(),
     index('limits_permit').on(t.permitId),
     check('limits_quantity_positive', sql`${t.quantity} > 0`),
     check('limits_club_needs_permit', sql`${t.scope} <> 'club-season' or ${t.permitId} is not null`),

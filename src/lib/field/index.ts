@@ -2,9 +2,10 @@
 export * from './types';
 export { boundaryContains, distanceToEdgeM, placePosition } from './geometry';
 export { geodesicDistanceM } from './geodesy';
-export { addDays, closuresOn, currentSeason, endOfLocalDay, seasonAsOf, localDateAt, localWallClock, startOfLocalDay } from './time';
-export { limitsInForce, projectEntry, scopeOrder, talliesFor, tallyState, worstState, type Projection, type TallyContext } from './tallies';
+export { addDays, addYears, closuresOn, currentSeason, endOfLocalDay, seasonAsOf, localDateAt, localWallClock, startOfLocalDay } from './time';
+export { entryBases, limitsInForce, measuresLimited, MissingQuantity, projectEntry, scopeOrder, talliesFor, tallyState, worstState, type Projection, type TallyContext } from './tallies';
+export { countingFactsFor, flagFor, measuresOf, usageWindows, type CountingFacts, type FlagDecision, type UsageWindow } from './counting';
 export { checkPermit, permitCovers, type PermitCheck } from './permit-check';
 export { decideCheckIn, methodAllowed, type CheckIn } from './verdict';
 export { formatDay, formatDistance } from './words';
-export { convert, fromBase, toBase, UnitMismatch, unitsOfDimension } from '../units';
+export { convert, fromBase, toBase, UnitMismatch, unitsOfMeasure } from '../units';

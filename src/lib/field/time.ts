@@ -1,4 +1,4 @@
-import { inSeason, type SeasonWindow } from '../seasons';
+import type { SeasonWindow } from '../seasons';
 
 /**
  * Parcel-local calendar time. Offsets come from the runtime's IANA tz data through Intl
@@ -56,6 +56,17 @@ function parseIsoDate(isoDate: string): [number, number, number] {
 export function addDays(isoDate: string, days: number): string {
   const [y, m, d] = parseIsoDate(isoDate);
   return new Date(Date.UTC(y, m - 1, d + days)).toISOString().slice(0, 10);
+}
+
+/**
+ * The same calendar date `years` later: 29 February lands on 28 February in a common year (a
+ * year-long permit from 2028-02-29 runs to 2029-02-28), never on a date that does not exist.
+ */
+export function addYears(isoDate: string, years: number): string {
+  const [y, m, d] = parseIsoDate(isoDate);
+  const year = y + years;
+  const last = new Date(Date.UTC(year, m, 0)).getUTCDate();
+  return `${String(year).padStart(4, '0')}-${String(m).padStart(2, '0')}-${String(Math.min(d, last)).padStart(2, '0')}`;
 }
 
 const hour = 3_600_000;
@@ -119,56 +130,74 @@ function occurrenceDay(year: number, monthDay: string, end: 'start' | 'end'): st
   return `${y}-${monthDay}`;
 }
 
-/** The occurrence of one yearly window that holds a local date, or null. */
-function occurrenceOf(window: SeasonWindow, localDate: string): { start: string; end: string } | null {
-  checkMonthDay(window.start);
-  checkMonthDay(window.end);
+type Occurrence = { start: string; end: string };
+
+/** A month-day's place in a leap year, 1…366 (02-29 is 60), and back. */
+const leapYearStart = Date.UTC(2028, 0, 1);
+const placeOf = (monthDay: string) => Math.round((Date.parse(`2028-${monthDay}T00:00:00Z`) - leapYearStart) / 86_400_000) + 1;
+const monthDayAt = (place: number) => new Date(leapYearStart + (place - 1) * 86_400_000).toISOString().slice(5, 10);
+
+/**
+ * A species' windows as its seasons: windows that overlap or meet on the yearly calendar are one
+ * season (04-15…06-30 with 06-01…07-31 is 04-15…07-31; 04-15…05-31 with 06-01…07-31 too), so a
+ * forager's season never restarts inside one continuous open period. Windows that cover the whole
+ * year are one season a year long, from the first window's start.
+ */
+function seasonWindows(windows: SeasonWindow[]): SeasonWindow[] {
+  const covered = Array.from({ length: 367 }, () => false);
+  for (const w of windows) {
+    checkMonthDay(w.start);
+    checkMonthDay(w.end);
+    const [from, to] = [placeOf(w.start), placeOf(w.end)];
+    for (let p = 1; p <= 366; p += 1) if (from <= to ? p >= from && p <= to : p >= from || p <= to) covered[p] = true;
+  }
+  const first = windows[0];
+  if (!first) return [];
+  const before = (p: number) => (p === 1 ? 366 : p - 1);
+  const starts = Array.from({ length: 366 }, (_, i) => i + 1).filter((p) => covered[p] && !covered[before(p)]);
+  if (starts.length === 0) return [{ start: first.start, end: monthDayAt(before(placeOf(first.start))) }];
+  return starts.map((start) => {
+    let end = start;
+    while (covered[end === 366 ? 1 : end + 1]) end = end === 366 ? 1 : end + 1;
+    return { start: monthDayAt(start), end: monthDayAt(end) };
+  });
+}
+
+/** Every occurrence of one season that starts in the given years (one crossing New Year ends the year after). */
+function occurrencesOf(window: SeasonWindow, years: number[]): Occurrence[] {
+  const crosses = window.start > window.end;
+  return years
+    .map((y) => ({ start: occurrenceDay(y, window.start, 'start'), end: occurrenceDay(crosses ? y + 1 : y, window.end, 'end') }))
+    // A season of 29 February alone has no day in a common year.
+    .filter((o) => o.start <= o.end);
+}
+
+/** The season occurrences around a local date, from two years before to one after, in order. */
+function seasonsAround(windows: SeasonWindow[], localDate: string): Occurrence[] {
   const [year] = parseIsoDate(localDate);
-  if (!inSeason(window, localDate)) return null;
-  if (window.start <= window.end) return { start: occurrenceDay(year, window.start, 'start'), end: occurrenceDay(year, window.end, 'end') };
-  // Crosses New Year: 11-01 … 03-15 holds 2026-12-25 (→ 2027-03-15) and 2027-02-10 (from 2026-11-01).
-  return localDate.slice(5) >= window.start
-    ? { start: occurrenceDay(year, window.start, 'start'), end: occurrenceDay(year + 1, window.end, 'end') }
-    : { start: occurrenceDay(year - 1, window.start, 'start'), end: occurrenceDay(year, window.end, 'end') };
+  return seasonWindows(windows)
+    .flatMap((w) => occurrencesOf(w, [year - 2, year - 1, year, year + 1]))
+    .sort((a, b) => (a.start < b.start ? -1 : a.start > b.start ? 1 : 0));
 }
 
 /**
  * The season occurrence (both ends included) holding a local date, or null when the species is out
- * of season. Windows recur every year and may cross New Year. When several windows hold the date
- * (overlapping windows), their occurrences are joined: from the earliest start to the latest end.
+ * of season. Windows recur every year and may cross New Year. Overlapping or meeting windows make
+ * one season (`seasonWindows`): 04-15…06-30 with 06-01…07-31 is 04-15…07-31 on any day of it, not
+ * only where they overlap; one window never runs into its own next year.
  */
 export function currentSeason(windows: SeasonWindow[], localDate: string): { start: string; end: string } | null {
-  const holding = windows.map((w) => occurrenceOf(w, localDate)).filter((o): o is { start: string; end: string } => o !== null);
-  if (holding.length === 0) return null;
-  return {
-    start: holding.map((o) => o.start).reduce((x, y) => (y < x ? y : x)),
-    end: holding.map((o) => o.end).reduce((x, y) => (y > x ? y : x)),
-  };
+  return seasonsAround(windows, localDate).find((o) => o.start <= localDate && localDate <= o.end) ?? null;
 }
 
 /**
- * The season an audit or a season report covers on a local date: the occurrence in progress (as
- * `currentSeason` joins it), or else the most recent one that has ended; null with no windows.
- * A window's occurrence that starts later in the same year is not yet a season to report.
+ * The season an audit or a season report covers on a local date: the occurrence in progress, or else
+ * the most recent one that has ended; null with no windows. One that starts later is not yet a
+ * season to report.
  */
 export function seasonAsOf(windows: SeasonWindow[], localDate: string): { start: string; end: string } | null {
-  const current = currentSeason(windows, localDate);
-  if (current) return current;
-  const [year] = parseIsoDate(localDate);
-  let latest: { start: string; end: string } | null = null;
-  for (const w of windows) {
-    checkMonthDay(w.start);
-    checkMonthDay(w.end);
-    for (const startYear of [year, year - 1, year - 2]) {
-      const endYear = w.start <= w.end ? startYear : startYear + 1;
-      const occurrence = { start: occurrenceDay(startYear, w.start, 'start'), end: occurrenceDay(endYear, w.end, 'end') };
-      if (occurrence.end < localDate) {
-        if (!latest || occurrence.end > latest.end) latest = occurrence;
-        break;
-      }
-    }
-  }
-  return latest;
+  const seasons = seasonsAround(windows, localDate);
+  return seasons.find((o) => o.start <= localDate && localDate <= o.end) ?? seasons.filter((o) => o.end < localDate).at(-1) ?? null;
 }
 
 /** Every closure whose date range (both ends included) holds a local date. */

@@ -1,4 +1,4 @@
-import type { Unit } from '../units';
+import type { Measure, Unit } from '../units';
 
 /**
  * The field engine's inputs and answers. Everything here is plain data so the same engine runs on
@@ -57,17 +57,27 @@ export type ParcelFacts = {
 export type Forager = { id: string; clubIds: string[] };
 
 /**
- * What has been taken so far, per species and scope, as decimal strings in the base unit of the
- * species' dimension (g, mL or count). Keys are speciesId; absent means nothing taken.
+ * What has been taken so far of one species in one measure, as decimal strings in the measure's
+ * base unit (g, mL, or items): this visit, this day and this season for the forager (under any
+ * permit), everyone on the parcel this season, and each club's members under its permits this
+ * season (by club id). Absent means nothing taken.
  */
-export type Usage = Record<string, Partial<Record<LimitScope, string>>>;
+export type ScopeUsage = { visit?: string; day?: string; season?: string; 'parcel-season'?: string; 'club-season'?: Record<string, string> };
+
+/** Usage by species id, then by measure. */
+export type Usage = Record<string, Partial<Record<Measure, ScopeUsage>>>;
+
+/** One quantity of an entry: an entry gives one per measure its allowance limits ("200 g or 50 plants"). */
+export type EntryQuantity = { quantity: string; unit: Unit };
 
 export type Tally = {
   scope: LimitScope;
+  measure: Measure;
   limit: { quantity: string; unit: Unit; fromPermit: boolean };
   /** In the limit's own unit, as decimal strings rounded to 6 places for display. */
   used: string;
   remaining: string;
+  /** Of the limit, rounded half up to one decimal (percentOf in src/lib/units.ts). */
   percent: number;
   state: TallyState;
 };

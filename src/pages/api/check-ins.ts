@@ -1,12 +1,11 @@
 import { db } from '../../db';
-import { checkIn } from '../../db/field.commands';
 import { checkInSchema } from '../../lib/field.schemas';
 import { endpoint, guard, json, readJson } from '../../server/http';
+import { checkIn } from '../../server/field/check-in';
 
 /** "I am here": position and accuracy radius in, the verdict, hazards and what remains out. */
 export const POST = endpoint(async ({ locals, request }) => {
   const actor = guard(locals.actor, 'field:check-in');
   const { longitude, latitude, accuracyM } = await readJson(request, checkInSchema);
-  const answer = await checkIn(db, { forager: { id: actor.id, clubIds: actor.memberOfClubIds }, position: [longitude, latitude], accuracyM, now: new Date() });
-  return json(answer);
+  return json(await checkIn(db, { forager: { id: actor.id, clubIds: actor.memberOfClubIds }, position: [longitude, latitude], accuracyM }));
 });

@@ -1,6 +1,7 @@
 import { db } from '../../../db';
 import { listLedger } from '../../../db/ledger.queries';
 import { csvContentType, ledgerCsv, ledgerCsvFilename } from '../../../lib/csv';
+import { localDateAt } from '../../../lib/field';
 import { endpoint, guard } from '../../../server/http';
 import { readLedgerFilters } from './_filters';
 
@@ -12,7 +13,8 @@ export const GET = endpoint(async ({ locals, url }) => {
     headers: {
       'content-type': csvContentType,
       // RFC 6266 §4: a plain ASCII filename needs no filename* parameter.
-      'content-disposition': `attachment; filename="${ledgerCsvFilename(new Date())}"`,
+      // Dated on the clock of the newest entry's parcel (a forager's parcels share a zone in practice).
+      'content-disposition': `attachment; filename="${ledgerCsvFilename(localDateAt(new Date(), entries[0]?.timeZone ?? 'UTC'))}"`,
       'cache-control': 'private, no-store',
     },
   });

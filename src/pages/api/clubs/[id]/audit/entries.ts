@@ -2,14 +2,14 @@ import { db } from '../../../../../db';
 import { auditEntries } from '../../../../../db/audit.queries';
 import { auditEntriesQuerySchema } from '../../../../../lib/clubs.schemas';
 import { notFound } from '../../../../../lib/errors';
-import { stewardedClub, todayForAudit } from '../../../../../server/audit-access';
+import { stewardedClub } from '../../../../../server/audit-access';
 import { endpoint, json, parseInput } from '../../../../../server/http';
 
 /** The entries behind one of the club's tallies; a steward never sees where they were made. */
 export const GET = endpoint(async ({ locals, params, url }) => {
   const { clubId } = stewardedClub(locals, params);
   const q = parseInput(auditEntriesQuerySchema, Object.fromEntries(url.searchParams));
-  const entries = await auditEntries(db, { clubId }, { ...q, permitId: q.permitId || null, asOf: q.asOf ?? todayForAudit(new Date()) });
+  const entries = await auditEntries(db, { clubId }, q);
   if (!entries) throw notFound('That parcel and species in the club audit');
   return json({ entries });
 });

@@ -6,6 +6,6 @@ import { ownedParcel } from '../../../../../server/parcel-access';
 
 export const DELETE = endpoint(async ({ locals, params }) => {
   const { actor, parcelId } = await ownedParcel(locals, params);
-  if (!(await removeAllowance(db, { parcelId, ownerId: actor.id, allowanceId: idParam(params.allowanceId, 'Allowance') }))) throw notFound('Allowance');
+  if (!(await removeAllowance(db, { parcelId, ownerId: actor.id, allowanceId: idParam(params.allowanceId, 'Allowance'), now: new Date() }))) throw notFound('Allowance');
   return json({ removed: true });
 });

@@ -11,7 +11,7 @@ export const PUT = endpoint(async ({ locals, params, request }) => {
   const { actor, parcelId } = await ownedParcel(locals, params);
   const allowance = await readJson(request, allowanceSchema);
   if (!(await findSpecies(db, { speciesId: allowance.speciesId }))) throw invalidInput('speciesId', 'That species is not in the catalogue.');
-  const row = await saveAllowance(db, { parcelId, ownerId: actor.id, allowance });
+  const row = await saveAllowance(db, { parcelId, ownerId: actor.id, allowance, now: new Date() });
   if (!row) throw notFound('Parcel');
   return json({ allowance: row });
 });

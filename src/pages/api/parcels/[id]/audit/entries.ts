@@ -2,7 +2,6 @@ import { db } from '../../../../../db';
 import { auditEntries } from '../../../../../db/audit.queries';
 import { auditEntriesQuerySchema } from '../../../../../lib/clubs.schemas';
 import { notFound } from '../../../../../lib/errors';
-import { todayForAudit } from '../../../../../server/audit-access';
 import { endpoint, json, parseInput } from '../../../../../server/http';
 import { ownedParcel } from '../../../../../server/parcel-access';
 
@@ -11,7 +10,7 @@ export const GET = endpoint(async ({ locals, params, url }) => {
   const { actor, parcelId } = await ownedParcel(locals, params, 'parcel:read');
   const q = parseInput(auditEntriesQuerySchema, Object.fromEntries(url.searchParams));
   if (q.parcelId !== parcelId) throw notFound('That tally on this parcel');
-  const entries = await auditEntries(db, { ownerId: actor.id, parcelId }, { ...q, permitId: q.permitId || null, asOf: q.asOf ?? todayForAudit(new Date()) });
+  const entries = await auditEntries(db, { ownerId: actor.id, parcelId }, q);
   if (!entries) throw notFound('That species in this parcel audit');
   return json({ entries });
 });

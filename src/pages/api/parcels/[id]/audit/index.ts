@@ -1,7 +1,6 @@
 import { db } from '../../../../../db';
 import { auditTallies } from '../../../../../db/audit.queries';
 import { auditQuerySchema } from '../../../../../lib/clubs.schemas';
-import { todayForAudit } from '../../../../../server/audit-access';
 import { endpoint, json, parseInput } from '../../../../../server/http';
 import { ownedParcel } from '../../../../../server/parcel-access';
 
@@ -9,5 +8,5 @@ import { ownedParcel } from '../../../../../server/parcel-access';
 export const GET = endpoint(async ({ locals, params, url }) => {
   const { actor, parcelId } = await ownedParcel(locals, params, 'parcel:read');
   const { asOf } = parseInput(auditQuerySchema, Object.fromEntries(url.searchParams));
-  return json(await auditTallies(db, { ownerId: actor.id, parcelId }, { asOf: asOf ?? todayForAudit(new Date()) }));
+  return json(await auditTallies(db, { ownerId: actor.id, parcelId }, { asOf }));
 });
