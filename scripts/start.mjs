@@ -2,7 +2,7 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import {
-  bin, ensureDatabase, ensureDependencies, ensurePostgres, localDir, localSecret, root, run, say,
+  bin, ensureDatabase, ensureDependencies, ensurePostgres, fail, localDir, localSecret, root, run, say,
   startChild, startCluster, waitForHttp,
 } from './lib/setup.mjs';
 
@@ -20,8 +20,12 @@ let stopDatabase = () => {};
 let databaseUrl = process.env.DATABASE_URL;
 if (!databaseUrl) {
   ensurePostgres();
-  stopDatabase = startCluster({ dir: join(localDir, 'pg'), port: pgPort });
-  ensureDatabase({ port: pgPort, name: 'tallywood' });
+  try {
+    stopDatabase = startCluster({ dir: join(localDir, 'pg'), port: pgPort });
+    ensureDatabase({ port: pgPort, name: 'tallywood' });
+  } catch (error) {
+    fail(error instanceof Error ? error.message : String(error));
+  }
   databaseUrl = `postgres://app@127.0.0.1:${pgPort}/tallywood`;
 }
 

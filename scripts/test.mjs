@@ -1,36 +1,56 @@
 // `npm test`: the same set-up as `npm start`, in a fresh database of its own on its own ports,
 // then every test: type check, unit and integration (vitest, real PostgreSQL), end-to-end
-// (Playwright in Debian's Chromium against the built server). Safe to run beside `npm start`.
+// (Playwright in Debian's Chromium against the built server). Then the tests run again at fixed
+// instants where the parcels' local date is not the UTC date, across both 2026 DST changes and on
+// 29 February 2028: the database, the app, the tests and the browser all run on a clock moved there
+// by libfaketime. Safe to run beside `npm start`.
 import { rmSync } from 'node:fs';
 import { join } from 'node:path';
 import {
-  bin, ensureChromium, ensureDatabase, ensureDependencies, ensurePostgres, localDir, run, say, startChild, startCluster,
-  waitForHttp,
+  answers, bin, ensureChromium, ensureDatabase, ensureDependencies, ensureFaketime, ensurePostgres, fakeClockEnv, localDir, run, say, startChild, startCluster,
+  stopCluster, waitForHttp,
 } from './lib/setup.mjs';
 
 const pgPort = Number(process.env.TALLYWOOD_TEST_PG_PORT ?? 54339);
+const shiftedPgPort = Number(process.env.TALLYWOOD_TEST_SHIFTED_PG_PORT ?? 54359);
 const appPort = Number(process.env.TALLYWOOD_TEST_PORT ?? 4331);
 const smtpPort = Number(process.env.TALLYWOOD_TEST_SMTP_PORT ?? 2535);
 const mailHttpPort = Number(process.env.TALLYWOOD_TEST_MAIL_HTTP_PORT ?? 2590);
 const paymentsPort = Number(process.env.TALLYWOOD_TEST_PAYMENTS_PORT ?? 2610);
 const started = Date.now();
 
+/**
+ * The instants of the time-shifted runs (UTC). The demo's parcels keep America/New_York time
+ * (EST = UTC−5, EDT = UTC−4; 2026 changes at 2026-03-08T07:00Z and 2026-11-01T06:00Z, IANA tz data):
+ *   2026-12-03T00:30Z  just after UTC midnight: still 19:30 on 2 December on the parcels
+ *   2026-12-03T04:45Z  23:45 on the parcels, just before their midnight (UTC is already the 3rd)
+ *   2026-03-08T07:30Z  03:30 EDT on the day the clocks went forward (a 23-hour day)
+ *   2026-11-01T06:10Z  01:10 EST, in the hour that happens twice on the day the clocks go back (a 25-hour day)
+ *   2028-02-29T17:00Z  noon on 29 February 2028
+ * TALLYWOOD_TEST_INSTANTS replaces the list (comma-separated ISO instants); "none" skips these runs.
+ * Each has its own cluster, on TALLYWOOD_TEST_SHIFTED_PG_PORT (54359) and the ports after it.
+ */
+const defaultInstants = ['2026-12-03T00:30:00Z', '2026-12-03T04:45:00Z', '2026-03-08T07:30:00Z', '2026-11-01T06:10:00Z', '2028-02-29T17:00:00Z'];
+const asked = process.env.TALLYWOOD_TEST_INSTANTS;
+const instants = asked === 'none' ? [] : asked ? asked.split(',').map((s) => s.trim()).filter(Boolean) : defaultInstants;
+for (const instant of instants) {
+  if (Number.isNaN(Date.parse(instant))) {
+    console.error(`[tallywood] TALLYWOOD_TEST_INSTANTS: "${instant}" is not an ISO 8601 instant (for example 2027-06-30T03:59:00Z)`);
+    process.exit(2);
+  }
+}
+
 ensureDependencies();
 ensurePostgres();
 ensureChromium();
+if (instants.length > 0) ensureFaketime();
 
-const stopDatabase = startCluster({ dir: join(localDir, 'pg-test'), port: pgPort, fresh: true });
-ensureDatabase({ port: pgPort, name: 'tallywood_test' });
 const mailStore = join(localDir, 'mail-test');
-rmSync(mailStore, { recursive: true, force: true });
 const paymentsStore = join(localDir, 'payments-test');
-rmSync(paymentsStore, { recursive: true, force: true });
 
-const env = {
+/** What every run shares: the local fakes, the build, the ports. The database and the clock are each run's own. */
+const common = {
   ...process.env,
-  DATABASE_URL: `postgres://app@127.0.0.1:${pgPort}/tallywood_test`,
-  /** A superuser connection to the test cluster, for tests that make throwaway databases. */
-  TEST_ADMIN_DATABASE_URL: `postgres://app@127.0.0.1:${pgPort}/postgres`,
   AUTH_SECRET: 'test-secret-not-for-production',
   MAIL_CATCHER_SMTP_PORT: String(smtpPort),
   MAIL_CATCHER_HTTP_PORT: String(mailHttpPort),
@@ -49,37 +69,96 @@ const env = {
   STRIPE_WEBHOOK_SECRET: 'whsec_tallywood_test',
 };
 
-const catcher = startChild('mail', bin('tsx'), ['scripts/mail-catcher.ts'], env);
-const payments = startChild('payments', bin('tsx'), ['scripts/payments-fake.ts'], env);
-let failed = false;
-const step = (label, command, args) => {
+const databaseEnv = (port) => ({
+  DATABASE_URL: `postgres://app@127.0.0.1:${port}/tallywood_test`,
+  /** A superuser connection to the test cluster, for tests that make throwaway databases. */
+  TEST_ADMIN_DATABASE_URL: `postgres://app@127.0.0.1:${port}/postgres`,
+});
+
+/**
+ * The local fakes of the mail and payment services, empty and on a run's clock: each run starts from
+ * no mail (a test counts the receipts it caused), and the payments fake signs its webhooks with the
+ * time, which the app refuses more than five minutes from its own clock.
+ */
+async function startFakes(clock = {}) {
+  for (const url of [`http://127.0.0.1:${mailHttpPort}/messages`, `http://127.0.0.1:${paymentsPort}/__events`]) {
+    if (await answers(url)) throw new Error(`something already answers at ${url}: a fake left from another run? Stop it, or set the TALLYWOOD_TEST_* ports.`);
+  }
+  rmSync(mailStore, { recursive: true, force: true });
+  rmSync(paymentsStore, { recursive: true, force: true });
+  const env = { ...common, ...clock };
+  const children = [startChild('mail', bin('tsx'), ['scripts/mail-catcher.ts'], env), startChild('payments', bin('tsx'), ['scripts/payments-fake.ts'], env)];
+  const stop = () =>
+    Promise.all(children.map((child) => (child.exitCode !== null ? null : new Promise((done) => { child.once('exit', done); child.kill('SIGTERM'); }))));
+  try {
+    await waitForHttp(`http://127.0.0.1:${mailHttpPort}/messages`, 30);
+    await waitForHttp(`http://127.0.0.1:${paymentsPort}/__events`, 30);
+  } catch (error) {
+    await stop();
+    throw error;
+  }
+  return stop;
+}
+
+let stopFakes = async () => {};
+const failures = [];
+const step = (label, command, args, env) => {
   say(`${label}…`);
   try {
     run(command, args, { env });
+    return true;
   } catch (error) {
-    failed = true;
+    failures.push(label);
     console.error(`[tallywood] ${label} failed: ${error instanceof Error ? error.message : error}`);
+    return false;
   }
 };
 
-try {
-  await waitForHttp(`http://127.0.0.1:${mailHttpPort}/messages`, 30);
-  await waitForHttp(`http://127.0.0.1:${paymentsPort}/__events`, 30);
+/** A fresh cluster, migrated and seeded (the demo is moved to that clock's today). */
+function prepareDatabase({ dir, port, clock = {} }) {
+  const stop = startCluster({ dir, port, fresh: true, env: clock });
+  ensureDatabase({ port, name: 'tallywood_test' });
+  const env = { ...common, ...databaseEnv(port), ...clock };
   run(bin('tsx'), ['scripts/migrate.ts'], { env });
   run(bin('tsx'), ['scripts/seed.ts'], { env });
-  step('type check (astro check)', bin('astro'), ['check']);
-  step('unit and integration tests (vitest)', bin('vitest'), ['run', '--config', 'tests/vitest.config.ts']);
-  step('build', bin('astro'), ['build']);
-  if (!failed) step('end-to-end tests (Playwright, Chromium)', bin('playwright'), ['test', '--config', 'tests/playwright.config.ts']);
+  return { stop, env };
+}
+
+const local = (instant) => new Intl.DateTimeFormat('en-CA', { timeZone: 'America/New_York', dateStyle: 'short', timeStyle: 'short', hourCycle: 'h23' }).format(new Date(instant));
+
+try {
+  stopFakes = await startFakes();
+  const main = prepareDatabase({ dir: join(localDir, 'pg-test'), port: pgPort });
+  step('type check (astro check)', bin('astro'), ['check'], main.env);
+  step('unit and integration tests (vitest)', bin('vitest'), ['run', '--config', 'tests/vitest.config.ts'], main.env);
+  const built = step('build', bin('astro'), ['build'], main.env);
+  if (failures.length === 0 && built) step('end-to-end tests (Playwright, Chromium)', bin('playwright'), ['test', '--config', 'tests/playwright.config.ts'], main.env);
+  main.stop();
+
+  for (const [n, instant] of (failures.length === 0 ? instants : []).entries()) {
+    const clock = fakeClockEnv(instant);
+    const label = `at ${instant} (${local(instant)} in America/New_York)`;
+    say(`running the tests again ${label}…`);
+    await stopFakes();
+    stopFakes = await startFakes(clock);
+    // A cluster and a port of its own for each instant: nothing of one run's server can linger into the next.
+    const shifted = prepareDatabase({ dir: join(localDir, `pg-test-shifted-${n}`), port: shiftedPgPort + n, clock });
+    try {
+      step(`unit and integration tests ${label}`, bin('vitest'), ['run', '--config', 'tests/vitest.config.ts'], shifted.env);
+      step(`end-to-end tests ${label}`, bin('playwright'), ['test', '--config', 'tests/playwright.config.ts'], shifted.env);
+    } finally {
+      shifted.stop();
+    }
+  }
 } catch (error) {
-  failed = true;
+  failures.push('set-up');
   console.error(error instanceof Error ? error.message : error);
 } finally {
-  catcher.kill('SIGTERM');
-  payments.kill('SIGTERM');
-  stopDatabase();
+  await stopFakes();
+  stopCluster(join(localDir, 'pg-test'));
+  instants.forEach((_, n) => stopCluster(join(localDir, `pg-test-shifted-${n}`)));
 }
 
 const seconds = Math.round((Date.now() - started) / 1000);
-say(failed ? `tests FAILED (${seconds} s)` : `all tests passed (${seconds} s)`);
-process.exit(failed ? 1 : 0);
+say(failures.length > 0 ? `tests FAILED (${seconds} s): ${failures.join('; ')}` : `all tests passed (${seconds} s)`);
+process.exit(failures.length > 0 ? 1 : 0);

@@ -2,6 +2,12 @@ import { join } from 'node:path';
 import { defineConfig } from '@playwright/test';
 
 const port = Number(process.env.TEST_APP_PORT ?? 4331);
+/**
+ * The browser's environment. Under `npm test`'s fixed instants the whole stack runs on libfaketime's
+ * clock; Chromium hangs waiting for page loads when its monotonic clock is left real while its wall
+ * clock is moved, so it takes the fake clock whole (the other processes keep a real monotonic clock).
+ */
+const { FAKETIME_DONT_FAKE_MONOTONIC: _keptForOthers, ...browserEnv } = process.env;
 const outDir = process.env.TALLYWOOD_OUT_DIR ?? join(import.meta.dirname, '..', '.local', 'test-dist');
 
 export default defineConfig({
@@ -21,6 +27,7 @@ export default defineConfig({
       /** Debian's Chromium: Playwright's own browser download cannot work on this network. */
       executablePath: '/usr/bin/chromium',
       args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--disable-component-update', '--disable-sync', '--no-first-run', '--disable-quic'],
+      env: browserEnv as Record<string, string>,
     },
   },
   projects: [

@@ -67,6 +67,35 @@ export function ensureChromium() {
   aptInstall(['chromium'], 'Chromium for the end-to-end tests');
 }
 
+/** Debian's libfaketime, for the test runs at fixed instants (`npm test`). */
+export function ensureFaketime() {
+  if (fakeClockLibrary()) return;
+  aptInstall(['faketime'], 'libfaketime, to run the tests at fixed instants');
+}
+
+/** The multi-threaded libfaketime (Node, Chromium and PostgreSQL all run threads), or null. */
+function fakeClockLibrary() {
+  for (const dir of ['/usr/lib/x86_64-linux-gnu', '/usr/lib/aarch64-linux-gnu', '/usr/lib']) {
+    const path = join(dir, 'faketime', 'libfaketimeMT.so.1');
+    if (existsSync(path)) return path;
+  }
+  return null;
+}
+
+/**
+ * The environment that makes a process and its children see the clock at `instant` (ticking on
+ * from there), through libfaketime: a fixed offset from the real clock, the same in every process
+ * started with it, so the database, the app, the tests and the browser agree. Monotonic clocks are
+ * left alone, so timeouts measure real time.
+ * @param {string} instant an ISO 8601 instant
+ */
+export function fakeClockEnv(instant) {
+  const library = fakeClockLibrary();
+  if (!library) throw new Error('libfaketime is missing (apt-get install faketime)');
+  const seconds = Math.round((Date.parse(instant) - Date.now()) / 1000);
+  return { LD_PRELOAD: library, FAKETIME: `${seconds >= 0 ? '+' : ''}${seconds}`, FAKETIME_DONT_FAKE_MONOTONIC: '1', TALLYWOOD_TEST_INSTANT: instant };
+}
+
 /** The postgres server refuses to run as root: as root, the cluster belongs to the `postgres` user. */
 function asClusterOwner(command, args) {
   return isRoot ? ['runuser', ['-u', 'postgres', '--', command, ...args]] : [command, args];
@@ -83,10 +112,11 @@ function makeReachable(dir) {
 /**
  * Creates (when missing) and starts a cluster in `dir`, listening only on 127.0.0.1:`port`.
  * Returns a stop function. `fresh` removes any earlier cluster first; `settings` ("name=value")
- * are passed to the server when this call starts it.
- * @param {{ dir: string; port: number; fresh?: boolean; settings?: string[] }} options
+ * are passed to the server when this call starts it; `env` is added to the server's environment
+ * (a fake clock, for instance).
+ * @param {{ dir: string; port: number; fresh?: boolean; settings?: string[]; env?: Record<string, string> }} options
  */
-export function startCluster({ dir, port, fresh = false, settings = [] }) {
+export function startCluster({ dir, port, fresh = false, settings = [], env = {} }) {
   const log = `${dir}.log`;
   mkdirSync(dirname(dir), { recursive: true });
   if (fresh && existsSync(dir)) {
@@ -115,10 +145,11 @@ export function startCluster({ dir, port, fresh = false, settings = [] }) {
       '-o', [`-c listen_addresses=127.0.0.1 -p ${port} -c unix_socket_directories=''`, ...settings.map((s) => `-c ${s}`)].join(' '),
       'start',
     ]);
-    const started = quiet(cmd, args);
+    const started = quiet(cmd, args, { env: { ...process.env, ...env } });
     if (started.status !== 0) {
       const tail = existsSync(log) ? readFileSync(log, 'utf8').split('\n').slice(-15).join('\n') : '';
-      fail(`PostgreSQL did not start on port ${port} (is the port taken? set the port variable).\n${tail}`);
+      // Thrown, not exited: a caller that started other services stops them on its way out.
+      throw new Error(`PostgreSQL did not start on port ${port} (is the port taken? set the port variable).\n${started.stdout ?? ''}${started.stderr ?? ''}${tail}`);
     }
   }
   return () => stopCluster(dir);
@@ -133,7 +164,7 @@ export function stopCluster(dir) {
 export function ensureDatabase({ port, name }) {
   const base = ['-h', '127.0.0.1', '-p', String(port), '-U', 'app'];
   const found = quiet(join(pgBin, 'psql'), [...base, '-d', 'postgres', '-tAc', `select 1 from pg_database where datname='${name}'`]);
-  if (found.status !== 0) fail(`cannot reach PostgreSQL on port ${port}: ${found.stderr}`);
+  if (found.status !== 0) throw new Error(`cannot reach PostgreSQL on port ${port}: ${found.stderr}`);
   if (found.stdout.trim() !== '1') run(join(pgBin, 'createdb'), [...base, name]);
 }
 
@@ -162,6 +193,16 @@ export function startChild(label, command, args, env) {
   prefix(child.stdout, process.stdout);
   prefix(child.stderr, process.stderr);
   return child;
+}
+
+/** Whether anything answers at `url` now. */
+export async function answers(url) {
+  try {
+    await fetch(url);
+    return true;
+  } catch {
+    return false;
+  }
 }
 
 /** Resolves when `url` answers (any status), or rejects after `seconds`. */
