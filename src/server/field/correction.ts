@@ -86,7 +86,11 @@ export async function correctEntry(db: Db, { forager, entryId, input, now = new 
         corrects: { entryId: target.id, rootId, reason: input.reason },
         now,
       });
-      if (!entry) return replayOf(await findEntryByKey(tx, input.idempotencyKey), forager) ?? (() => { throw keyInUse(); })();
+      if (!entry) {
+        const first = replayOf(await findEntryByKey(tx, input.idempotencyKey), forager);
+        if (!first) throw keyInUse();
+        return first;
+      }
       const decision = check ? flagFor(check.before, check.projection.tallies, breach) : null;
       if (decision && check) await insertFlag(tx, { entry, decision, tallies: check.projection.tallies, now });
       return { entry, replayed: false, tallies: check?.projection.tallies ?? null };

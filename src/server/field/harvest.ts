@@ -118,7 +118,11 @@ export async function recordHarvest(db: Db, { forager, input, now = new Date() }
       });
       // The same key sent at the same moment for another species took another lock: the later
       // insert waits for the first, then finds the key taken, and answers with the first entry.
-      if (!entry) return replayOf(await findEntryByKey(tx, input.idempotencyKey), forager) ?? (() => { throw keyInUse(); })();
+      if (!entry) {
+        const first = replayOf(await findEntryByKey(tx, input.idempotencyKey), forager);
+        if (!first) throw keyInUse();
+        return first;
+      }
       const decision = flagFor(before, projection.tallies, breach);
       if (decision) await insertFlag(tx, { entry, decision, tallies: projection.tallies, now });
       return { entry, replayed: false, tallies: projection.tallies };
