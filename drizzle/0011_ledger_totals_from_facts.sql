@@ -61,7 +61,10 @@ CREATE UNIQUE INDEX "harvest_totals_key" ON "harvest_totals" USING btree
 -- Each new quantity is added where its entry's stored facts say it counts. Every write to one
 -- parcel and species takes the same transaction lock first, so the day's and the visit's totals
 -- carried on the rows are summed one write after another (at READ COMMITTED, the app's level, each
--- statement after the lock sees what the previous holder committed). Only a correction may take away.
+-- statement after the lock sees what the previous holder committed). The new totals are summed
+-- before the row is written, so the usual entry (the only row of its day and visit) costs one
+-- write; the day's or visit's other rows, when there are any, are brought up to date after it.
+-- Only a correction may take away.
 CREATE FUNCTION add_to_harvest_totals() RETURNS trigger LANGUAGE plpgsql AS $$
 DECLARE
   e harvest_entries%ROWTYPE;
@@ -75,23 +78,30 @@ BEGIN
   END IF;
   PERFORM pg_advisory_xact_lock(hashtextextended('harvest_totals:' || e.parcel_id::text || ':' || e.species_id::text, 0));
   INSERT INTO harvested_parcels (parcel_id) VALUES (e.parcel_id) ON CONFLICT DO NOTHING;
+  SELECT coalesce(sum(t.total), 0) + NEW.base_quantity,
+      coalesce(sum(t.total) FILTER (WHERE t.permit_id IS NOT DISTINCT FROM e.permit_id), 0) + NEW.base_quantity
+    INTO day_now, permit_day_now
+    FROM harvest_totals t
+    WHERE t.forager_id = e.forager_id AND t.parcel_id = e.parcel_id AND t.species_id = e.species_id AND t.measure = NEW.measure AND t.counted_on = e.counted_on;
+  IF e.counted_visit_id IS NOT NULL THEN
+    SELECT coalesce(sum(t.total), 0) + NEW.base_quantity INTO visit_now
+      FROM harvest_totals t WHERE t.visit_id = e.counted_visit_id AND t.species_id = e.species_id AND t.measure = NEW.measure;
+  END IF;
   INSERT INTO harvest_totals AS t (parcel_id, species_id, measure, season_start, season_end, forager_id, counted_on, visit_id, permit_id, club_id,
       total, day_total, permit_day_total, visit_total, entries, breaches)
     VALUES (e.parcel_id, e.species_id, NEW.measure, e.season_start, e.season_end, e.forager_id, e.counted_on, e.counted_visit_id, e.permit_id, e.club_id,
-      NEW.base_quantity, 0, 0, NULL, (e.corrects_entry_id IS NULL)::int, e.breach::int)
+      NEW.base_quantity, day_now, permit_day_now, visit_now, (e.corrects_entry_id IS NULL)::int, e.breach::int)
     ON CONFLICT (parcel_id, species_id, measure, season_start, season_end, forager_id, counted_on, visit_id, permit_id, club_id) DO UPDATE
-      SET total = t.total + excluded.total, entries = t.entries + excluded.entries, breaches = t.breaches + excluded.breaches;
-  SELECT sum(t.total), sum(t.total) FILTER (WHERE t.permit_id IS NOT DISTINCT FROM e.permit_id) INTO day_now, permit_day_now
-    FROM harvest_totals t
-    WHERE t.parcel_id = e.parcel_id AND t.species_id = e.species_id AND t.measure = NEW.measure AND t.forager_id = e.forager_id AND t.counted_on = e.counted_on;
+      SET total = t.total + excluded.total, day_total = excluded.day_total, permit_day_total = excluded.permit_day_total,
+        visit_total = excluded.visit_total, entries = t.entries + excluded.entries, breaches = t.breaches + excluded.breaches;
+  -- The day's other rows (other visits, permits or seasons) and the visit's other rows, if any.
   UPDATE harvest_totals t SET day_total = day_now,
       permit_day_total = CASE WHEN t.permit_id IS NOT DISTINCT FROM e.permit_id THEN permit_day_now ELSE t.permit_day_total END
-    WHERE t.parcel_id = e.parcel_id AND t.species_id = e.species_id AND t.measure = NEW.measure AND t.forager_id = e.forager_id AND t.counted_on = e.counted_on;
+    WHERE t.forager_id = e.forager_id AND t.parcel_id = e.parcel_id AND t.species_id = e.species_id AND t.measure = NEW.measure AND t.counted_on = e.counted_on
+      AND t.day_total IS DISTINCT FROM day_now;
   IF e.counted_visit_id IS NOT NULL THEN
-    SELECT sum(t.total) INTO visit_now FROM harvest_totals t
-      WHERE t.visit_id = e.counted_visit_id AND t.species_id = e.species_id AND t.measure = NEW.measure;
     UPDATE harvest_totals t SET visit_total = visit_now
-      WHERE t.visit_id = e.counted_visit_id AND t.species_id = e.species_id AND t.measure = NEW.measure;
+      WHERE t.visit_id = e.counted_visit_id AND t.species_id = e.species_id AND t.measure = NEW.measure AND t.visit_total IS DISTINCT FROM visit_now;
   END IF;
   RETURN NULL;
 END $$;
