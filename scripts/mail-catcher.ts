@@ -6,6 +6,7 @@ import { createServer } from 'node:http';
 import { join } from 'node:path';
 import { simpleParser } from 'mailparser';
 import { SMTPServer } from 'smtp-server';
+import { localRequestProblem } from './lib/local-fake.mjs';
 
 type Caught = { id: string; from: string; to: string[]; subject: string; date: string; text: string; html: string | null };
 
@@ -14,6 +15,8 @@ const httpPort = Number(process.env.MAIL_CATCHER_HTTP_PORT ?? 2580);
 const store = process.env.MAIL_CATCHER_STORE ?? join(process.cwd(), '.local', 'mail');
 const file = join(store, 'messages.json');
 const keep = 500;
+/** Every endpoint shows or clears sign-in links, so each needs the local token (scripts/lib/local-fake.mjs). */
+const token = process.env.LOCAL_FAKES_TOKEN;
 
 mkdirSync(store, { recursive: true });
 let messages: Caught[] = existsSync(file) ? JSON.parse(readFileSync(file, 'utf8')) : [];
@@ -53,6 +56,11 @@ const smtp = new SMTPServer({
 });
 
 const http = createServer((req, res) => {
+  const problem = localRequestProblem(req, { port: httpPort, token, needsToken: true });
+  if (problem) {
+    res.writeHead(problem.status, { 'content-type': 'application/json' }).end(JSON.stringify({ error: problem.message }));
+    return;
+  }
   const url = new URL(req.url ?? '/', `http://127.0.0.1:${httpPort}`);
   if (url.pathname === '/messages' && req.method === 'GET') {
     const to = url.searchParams.get('to')?.toLowerCase();

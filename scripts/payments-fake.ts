@@ -6,6 +6,7 @@ import { existsSync, mkdirSync, readFileSync, renameSync, writeFileSync } from '
 import { createServer, type IncomingMessage, type ServerResponse } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { join } from 'node:path';
+import { localRequestProblem } from './lib/local-fake.mjs';
 
 type Session = {
   id: string; object: 'checkout.session'; mode: 'payment'; status: 'open' | 'complete' | 'expired';
@@ -36,6 +37,8 @@ const apiVersion = '2026-10-28.endive';
 /** Delays before each webhook attempt: bounded, so Pay answers within a few seconds even when the app is down. */
 const retryDelaysMs = [0, 250, 500, 1000, 2000];
 const file = join(store, 'state.json');
+/** The test hooks (/__events) need the local token; the API needs the secret key, the checkout page neither. */
+const localToken = process.env.LOCAL_FAKES_TOKEN;
 
 mkdirSync(store, { recursive: true });
 const state: State = existsSync(file) ? JSON.parse(readFileSync(file, 'utf8')) : { sessions: {}, refunds: [], events: [], idempotency: {} };
@@ -293,7 +296,9 @@ const server = createServer((req, res) => {
   const path = new URL(req.url ?? '/', baseUrl).pathname;
   const checkoutPath = /^\/checkout\/([\w-]+)(?:\/(pay|cancel))?$/.exec(path);
   const eventsPath = /^\/__events(?:\/([\w-]+)\/resend)?$/.exec(path);
-  const handled = path.startsWith('/v1/') ? api(req, res, path)
+  const problem = localRequestProblem(req, { port: (server.address() as AddressInfo).port, token: localToken, needsToken: path.startsWith('/__events') });
+  const handled = problem ? Promise.reject(new ApiError(problem.status, problem.message))
+    : path.startsWith('/v1/') ? api(req, res, path)
     : checkoutPath ? checkout(req, res, checkoutPath[1] ?? '', checkoutPath[2])
     : eventsPath ? testHooks(req, res, eventsPath[1])
     : Promise.reject(new ApiError(404, `Unrecognized request URL (${req.method}: ${path}).`));

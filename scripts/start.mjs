@@ -11,7 +11,9 @@ const pgPort = Number(process.env.TALLYWOOD_PG_PORT ?? 54329);
 const smtpPort = Number(process.env.MAIL_CATCHER_SMTP_PORT ?? 2525);
 const mailHttpPort = Number(process.env.MAIL_CATCHER_HTTP_PORT ?? 2580);
 const paymentsPort = Number(process.env.PAYMENTS_FAKE_PORT ?? 2600);
-const useFakePayments = !process.env.STRIPE_API_URL;
+/** Local mode: this machine only, with the local fakes for what is not configured (src/server/deployment.ts). */
+const localMode = !process.env.PUBLIC_HOSTNAME;
+const useFakePayments = localMode && !process.env.STRIPE_API_URL;
 const started = Date.now();
 
 ensureDependencies();
@@ -29,8 +31,12 @@ if (!databaseUrl) {
   databaseUrl = `postgres://app@127.0.0.1:${pgPort}/tallywood`;
 }
 
-const useCatcher = !process.env.SMTP_URL;
+const useCatcher = localMode && !process.env.SMTP_URL;
+/** The app and the local fakes share it; the fakes' mailbox and test endpoints need it (scripts/lib/local-fake.mjs). */
+const localFakesToken = localMode ? localSecret('local-fakes-token') : undefined;
 const env = {
+  TALLYWOOD_LOCAL_MODE: String(localMode),
+  ...(localFakesToken ? { LOCAL_FAKES_TOKEN: localFakesToken } : {}),
   DATABASE_URL: databaseUrl,
   AUTH_SECRET: process.env.AUTH_SECRET ?? localSecret('auth-secret'),
   HOST: '127.0.0.1',
@@ -64,6 +70,7 @@ try {
         MAIL_CATCHER_SMTP_PORT: String(smtpPort),
         MAIL_CATCHER_HTTP_PORT: String(mailHttpPort),
         MAIL_CATCHER_STORE: join(localDir, 'mail'),
+        LOCAL_FAKES_TOKEN: localFakesToken,
       }),
     );
   }
@@ -73,12 +80,13 @@ try {
         PAYMENTS_FAKE_PORT: String(paymentsPort),
         PAYMENTS_FAKE_STORE: join(localDir, 'payments'),
         PAYMENTS_WEBHOOK_URL: `http://127.0.0.1:${port}/api/payments/webhook`,
+        LOCAL_FAKES_TOKEN: localFakesToken,
       }),
     );
   }
   say('building the app…');
   run(bin('astro'), ['build'], { env: { ...process.env, ...env }, stdio: ['ignore', 'ignore', 'inherit'] });
-  const server = startChild('app', 'node', [join(root, 'dist', 'server', 'entry.mjs')], env);
+  const server = startChild('app', 'node', [join(root, 'scripts', 'serve.mjs')], env);
   children.push(server);
   for (const child of children) child.on('exit', (c) => !stopping && (say('a service stopped; shutting down.'), stop(c ?? 1)));
   await waitForHttp(`http://127.0.0.1:${port}/api/health`);

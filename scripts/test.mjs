@@ -4,6 +4,7 @@
 // instants where the parcels' local date is not the UTC date, across both 2026 DST changes and on
 // 29 February 2028: the database, the app, the tests and the browser all run on a clock moved there
 // by libfaketime. Safe to run beside `npm start`.
+import { randomBytes } from 'node:crypto';
 import { rmSync } from 'node:fs';
 import { join } from 'node:path';
 import {
@@ -52,6 +53,10 @@ const paymentsStore = join(localDir, 'payments-test');
 const common = {
   ...process.env,
   AUTH_SECRET: 'test-secret-not-for-production',
+  /** This machine only: the local mail catcher, its mailbox and the payments fake (src/server/deployment.ts). */
+  TALLYWOOD_LOCAL_MODE: 'true',
+  /** Shared by the app, the local fakes and the tests that read what the fakes keep (scripts/lib/local-fake.mjs). */
+  LOCAL_FAKES_TOKEN: randomBytes(24).toString('base64url'),
   MAIL_CATCHER_SMTP_PORT: String(smtpPort),
   MAIL_CATCHER_HTTP_PORT: String(mailHttpPort),
   MAIL_CATCHER_HTTP_URL: `http://127.0.0.1:${mailHttpPort}`,

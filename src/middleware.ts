@@ -4,7 +4,7 @@ import { findActorBySession } from './db/accounts.queries';
 import { closeStaleVisits } from './db/field.commands';
 import { advancePermitsByDate } from './db/permits.lifecycle';
 import { mayEver, type Action } from './lib/permissions';
-import { sessionCookieNames } from './server/auth';
+import { sessionCookieName } from './server/auth';
 
 /** Pages and the action a visitor's roles must allow to open them. API routes guard themselves. */
 const pageRules: [prefix: string, action: Action][] = [
@@ -39,7 +39,7 @@ export const onRequest = defineMiddleware(async (context, next) => {
     return next();
   }
   advancePermitsNow(new Date());
-  const token = sessionCookieNames.map((name) => context.cookies.get(name)?.value).find(Boolean);
+  const token = context.cookies.get(sessionCookieName(context.url))?.value;
   context.locals.actor = token ? await findActorBySession(db, { sessionToken: token, now: new Date() }) : null;
 
   const path = context.url.pathname;

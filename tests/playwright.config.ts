@@ -35,9 +35,10 @@ export default defineConfig({
     { name: 'chromium', use: { browserName: 'chromium' }, dependencies: ['sessions'] },
   ],
   webServer: {
-    command: `node ${join(outDir, 'server', 'entry.mjs')}`,
+    /** Served as in production (scripts/serve.mjs), in local mode: mail to the local catcher, payments to the local fake. */
+    command: `node ${join(import.meta.dirname, '..', 'scripts', 'serve.mjs')}`,
     url: `http://127.0.0.1:${port}/api/health`,
-    env: { ...(process.env as Record<string, string>), HOST: '127.0.0.1', PORT: String(port) },
+    env: { ...(process.env as Record<string, string>), HOST: '127.0.0.1', PORT: String(port), TALLYWOOD_OUT_DIR: outDir, TALLYWOOD_LOCAL_MODE: 'true' },
     reuseExistingServer: false,
     timeout: 60_000,
     stdout: 'ignore',

@@ -1,7 +1,7 @@
 import type { ChildProcess } from 'node:child_process';
 import { existsSync, readFileSync, statSync } from 'node:fs';
 import { Agent, request } from 'node:http';
-import { join } from 'node:path';
+import { dirname, join } from 'node:path';
 import { bin, localDir, root, run, startChild, waitForHttp } from '../lib/setup.mjs';
 import type { BenchPosition } from './parcels';
 import { runConcurrently, summarise, type Latencies } from './stats';
@@ -26,7 +26,10 @@ export function findOrBuildServer(log: (line: string) => void): { entry: string;
 }
 
 export async function startServer(entry: string, databaseUrl: string): Promise<ChildProcess> {
-  const server = startChild('app', 'node', [entry], {
+  // Served as production serves it (scripts/serve.mjs), in local mode: the bench's fakes and keys are the local ones.
+  const server = startChild('app', 'node', [join(root, 'scripts', 'serve.mjs')], {
+    TALLYWOOD_OUT_DIR: dirname(dirname(entry)),
+    TALLYWOOD_LOCAL_MODE: 'true',
     DATABASE_URL: databaseUrl,
     HOST: '127.0.0.1',
     PORT: String(benchPort),

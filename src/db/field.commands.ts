@@ -120,9 +120,9 @@ async function withQuantities(db: Executor, entry: typeof harvestEntries.$inferS
   return { ...entry, quantities };
 }
 
-/** The entry a key was first sent with, if any. */
-export async function findEntryByKey(db: Executor, key: string): Promise<StoredEntry | null> {
-  const [row] = await db.select().from(harvestEntries).where(eq(harvestEntries.idempotencyKey, key));
+/** The entry the forager first sent a key with, if any. Keys are the forager's own: another's same key is another entry. */
+export async function findEntryByKey(db: Executor, { foragerId, key }: { foragerId: string; key: string }): Promise<StoredEntry | null> {
+  const [row] = await db.select().from(harvestEntries).where(and(eq(harvestEntries.foragerId, foragerId), eq(harvestEntries.idempotencyKey, key)));
   return row ? withQuantities(db, row) : null;
 }
 
@@ -144,6 +144,8 @@ export async function chainRemaining(db: Executor, { rootId }: { rootId: string 
 
 export type NewEntry = {
   idempotencyKey: string;
+  /** What was asked with the key (src/server/field/harvest.ts, requestHashOf). */
+  requestHash: string;
   forager: Forager;
   parcelId: string;
   speciesId: string;
@@ -162,14 +164,15 @@ export type NewEntry = {
 };
 
 /**
- * Inserts an entry and its quantities (the kept totals follow by trigger). A key already taken —
- * the same key sent at the same moment — inserts nothing and returns null.
+ * Inserts an entry and its quantities (the kept totals follow by trigger). A key the forager already
+ * used — the same key sent at the same moment — inserts nothing and returns null.
  */
 export async function insertEntry(tx: Tx, e: NewEntry): Promise<StoredEntry | null> {
   const [entry] = await tx
     .insert(harvestEntries)
     .values({
       idempotencyKey: e.idempotencyKey,
+      requestHash: e.requestHash,
       foragerId: e.forager.id,
       parcelId: e.parcelId,
       permitId: e.facts.permitId,
@@ -193,7 +196,7 @@ export async function insertEntry(tx: Tx, e: NewEntry): Promise<StoredEntry | nu
       recordedBy: e.forager.id,
       recordedAt: e.now,
     })
-    .onConflictDoNothing({ target: harvestEntries.idempotencyKey })
+    .onConflictDoNothing({ target: [harvestEntries.foragerId, harvestEntries.idempotencyKey] })
     .returning();
   if (!entry) return null;
   await tx.insert(harvestQuantities).values(e.quantities.map((q) => ({ entryId: entry.id, ...q })));

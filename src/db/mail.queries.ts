@@ -1,31 +1,21 @@
-import { and, count, eq, gt } from 'drizzle-orm';
+import { eq } from 'drizzle-orm';
 import type { Executor } from './client';
 import { outgoingMail } from './schema';
 
-export async function recordMail(db: Executor, input: { purpose: string; toAddress: string; subject: string; clientAddress?: string | null }) {
-  const [row] = await db.insert(outgoingMail).values(input).returning({ id: outgoingMail.id });
-  if (!row) throw new Error('outgoing mail was not recorded');
-  return row.id;
+/**
+ * Records a mail about to be sent; its id. With a `dedupeKey` already recorded, nothing is recorded
+ * and the answer is null: that mail went (or is going) already.
+ */
+export async function recordMail(db: Executor, input: { purpose: string; toAddress: string; subject: string; clientAddress?: string | null; dedupeKey?: string | null }) {
+  const [row] = await db.insert(outgoingMail).values(input).onConflictDoNothing({ target: outgoingMail.dedupeKey }).returning({ id: outgoingMail.id });
+  if (!row && !input.dedupeKey) throw new Error('outgoing mail was not recorded');
+  return row?.id ?? null;
 }
 
 export async function markMail(db: Executor, { id, error, now }: { id: string; error?: string; now: Date }) {
   await db
     .update(outgoingMail)
-    .set(error ? { state: 'failed', error } : { state: 'sent', sentAt: now })
+    // A failed mail gives up its dedupe key, so asking again sends it.
+    .set(error ? { state: 'failed', error, dedupeKey: null } : { state: 'sent', sentAt: now })
     .where(eq(outgoingMail.id, id));
-}
-
-/** How many mails of a purpose went to an address, and from a client, since a moment. */
-export async function countRecentMail(db: Executor, { purpose, toAddress, clientAddress, since }: { purpose: string; toAddress: string; clientAddress: string | null; since: Date }) {
-  const [byAddress] = await db
-    .select({ n: count() })
-    .from(outgoingMail)
-    .where(and(eq(outgoingMail.purpose, purpose), eq(outgoingMail.toAddress, toAddress), gt(outgoingMail.createdAt, since)));
-  const [byClient] = clientAddress
-    ? await db
-        .select({ n: count() })
-        .from(outgoingMail)
-        .where(and(eq(outgoingMail.purpose, purpose), eq(outgoingMail.clientAddress, clientAddress), gt(outgoingMail.createdAt, since)))
-    : [{ n: 0 }];
-  return { byAddress: byAddress?.n ?? 0, byClient: byClient?.n ?? 0 };
 }

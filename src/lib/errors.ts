@@ -26,4 +26,6 @@ export const unverifiedLandowner = () =>
 export const notFound = (what = 'That') => new AppError(404, 'not-found', `${what} was not found.`);
 export const invalidInput = (field: string, message: string) => new AppError(400, 'invalid-input', message, field);
 export const conflict = (field: string | undefined, message: string) => new AppError(409, 'conflict', message, field);
-export const tooMany = (message: string) => new AppError(429, 'rate-limited', message);
+/** A 429; `retryAfterSeconds` becomes its Retry-After header (RFC 9110 §10.2.3) and a detail for API clients. */
+export const tooMany = (message: string, retryAfterSeconds?: number) =>
+  new AppError(429, 'rate-limited', message, undefined, retryAfterSeconds === undefined ? undefined : { retryAfterSeconds });

@@ -46,6 +46,9 @@ export const parcelUpdateSchema = z.object(settingsFields).partial().extend({
   boundary: boundaryGeometry.optional(),
   /** A draft becomes listed (visible to foragers) only for a verified landowner. */
   status: z.enum(['draft', 'listed', 'archived']).optional(),
+}).refine((patch) => Object.values(patch).some((value) => value !== undefined), {
+  path: ['body'],
+  message: 'Send at least one field to change: name, description, boundary, status or another setting.',
 });
 
 export const closureSchema = z

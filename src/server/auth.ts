@@ -1,16 +1,42 @@
+import { AsyncLocalStorage } from 'node:async_hooks';
 import { Auth, type AuthConfig } from '@auth/core';
 import Nodemailer from '@auth/core/providers/nodemailer';
 import { DrizzleAdapter } from '@auth/drizzle-adapter';
-import { AUTH_SECRET, MAIL_CATCHER_SMTP_PORT, SIGN_IN_LIMIT_PER_CLIENT_PER_HOUR, SIGN_IN_LIMIT_PER_HOUR, SMTP_URL } from 'astro:env/server';
+import { AUTH_SECRET, MAIL_CATCHER_SMTP_PORT, SMTP_URL } from 'astro:env/server';
 import { db } from '../db';
-import { countRecentMail } from '../db/mail.queries';
 import { accounts, sessions, users, verificationTokens } from '../db/schema';
-import { AppError, tooMany } from '../lib/errors';
+import { AppError } from '../lib/errors';
 import { mailHtml, sendMail } from './mail';
+import { spend } from './rate-limits';
 
-/** Carries the requester's address from our sign-in endpoint into the mail record. */
-const clientHeader = 'x-tallywood-client-address';
+/**
+ * Carries the requester's address from our sign-in endpoint into the mail record, in the process
+ * only: nothing a request sends can set it.
+ */
+const signInClient = new AsyncLocalStorage<string | null>();
+
+/** Auth.js names the session cookie by the scheme: `__Secure-` over HTTPS, plain over HTTP. */
 export const sessionCookieNames = ['__Secure-authjs.session-token', 'authjs.session-token'];
+
+/**
+ * The one session cookie a request may sign in with: over HTTPS only the `__Secure-` one (a browser
+ * keeps it only from a secure origin, so nobody on the network can plant it), over HTTP only the
+ * plain one. The scheme is the socket's own unless a trusted proxy said otherwise (scripts/serve.mjs).
+ */
+export function sessionCookieName(url: URL) {
+  return url.protocol === 'https:' ? '__Secure-authjs.session-token' : 'authjs.session-token';
+}
+
+/**
+ * The Auth.js routes a browser may reach: only the e-mailed link. Sign-in links are asked for at
+ * /api/sign-in (which checks the account and the limits and then calls Auth.js in the process), and
+ * sessions end at /api/sign-out. Everything else under /api/auth answers 404, however its path is
+ * spelled (a doubled slash, an encoded one, a dot segment).
+ */
+export const authRoutesOpenToBrowsers = new Set(['GET /api/auth/callback/nodemailer']);
+
+/** An ordinary user mistake, not a fault: Auth.js's name for an expired, used or mistyped link. */
+const userMistakes = new Set(['Verification']);
 
 export const authConfig: AuthConfig = {
   adapter: DrizzleAdapter(db, {
@@ -23,13 +49,13 @@ export const authConfig: AuthConfig = {
     Nodemailer({
       server: SMTP_URL ?? { host: '127.0.0.1', port: MAIL_CATCHER_SMTP_PORT, secure: false, ignoreTLS: true },
       maxAge: 30 * 60,
-      async sendVerificationRequest({ identifier, url, request }) {
+      async sendVerificationRequest({ identifier, url }) {
         const host = new URL(url).host;
         await sendMail({
           purpose: 'sign-in',
           to: identifier,
           subject: 'Your Tallywood sign-in link',
-          clientAddress: request.headers.get(clientHeader),
+          clientAddress: signInClient.getStore() ?? null,
           text: `Sign in to Tallywood on ${host} by opening this link within 30 minutes:\n\n${url}\n\nIf you did not ask for it, ignore this e-mail; nobody can sign in without the link.\n`,
           html: mailHtml({
             heading: 'Sign in to Tallywood',
@@ -45,32 +71,42 @@ export const authConfig: AuthConfig = {
   trustHost: true,
   basePath: '/api/auth',
   pages: { signIn: '/sign-in', verifyRequest: '/sign-in/check-email', error: '/sign-in/problem' },
+  logger: {
+    // A used or expired link is the visitor's mistake, shown to them on /sign-in/problem: one line here, no stack.
+    error(error) {
+      const type = (error as { type?: string }).type ?? error.name;
+      if (userMistakes.has(type)) console.warn(`sign-in link refused (${type}): ${error.message.split('\n')[0]}`);
+      else console.error(error);
+    },
+  },
 };
 
 /**
- * Sends a sign-in link through Auth.js, after the per-address and per-client limits. Auth.js
+ * Spends one sign-in e-mail of the client's and of the address's hourly allowance (429 when either
+ * is used up). The client is the socket's address, or the one a trusted proxy names.
+ */
+export async function spendSignInAllowance({ email, clientAddress }: { email: string; clientAddress: string | null }) {
+  if (clientAddress) await spend('signInPerClient', clientAddress);
+  await spend('signInPerAddress', email.trim().toLowerCase());
+}
+
+/**
+ * Sends a sign-in link through Auth.js; spend the allowance first (`spendSignInAllowance`). Auth.js
  * wants a CSRF token with the form, so this asks it for one first, as a browser would.
  */
-export async function requestSignInLink({ email, origin, next = '/', clientAddress, now }: { email: string; origin: string; next?: string; clientAddress: string | null; now: Date }) {
-  const since = new Date(now.getTime() - 60 * 60 * 1000);
-  const recent = await countRecentMail(db, { purpose: 'sign-in', toAddress: email, clientAddress, since });
-  if (recent.byAddress >= SIGN_IN_LIMIT_PER_HOUR) {
-    throw tooMany(`We have sent ${recent.byAddress} sign-in e-mails to this address in the last hour. Use the newest one, or try again later.`);
-  }
-  if (recent.byClient >= SIGN_IN_LIMIT_PER_CLIENT_PER_HOUR) {
-    throw tooMany('Too many sign-in e-mails have been asked for from your network in the last hour. Try again later.');
-  }
-
+export async function sendSignInLink({ email, origin, next = '/', clientAddress }: { email: string; origin: string; next?: string; clientAddress: string | null }) {
   const csrf = await Auth(new Request(`${origin}/api/auth/csrf`), authConfig);
   const { csrfToken } = (await csrf.json()) as { csrfToken: string };
   const cookie = csrf.headers.getSetCookie().map((c) => c.split(';')[0]).join('; ');
-  const response = await Auth(
-    new Request(`${origin}/api/auth/signin/nodemailer`, {
-      method: 'POST',
-      headers: { 'content-type': 'application/x-www-form-urlencoded', cookie, [clientHeader]: clientAddress ?? '' },
-      body: new URLSearchParams({ email, csrfToken, callbackUrl: `${origin}${next}` }),
-    }),
-    authConfig,
+  const response = await signInClient.run(clientAddress, () =>
+    Auth(
+      new Request(`${origin}/api/auth/signin/nodemailer`, {
+        method: 'POST',
+        headers: { 'content-type': 'application/x-www-form-urlencoded', cookie },
+        body: new URLSearchParams({ email, csrfToken, callbackUrl: `${origin}${next}` }),
+      }),
+      authConfig,
+    ),
   );
   const location = response.headers.get('location') ?? '';
   // Auth.js answers a redirect: to its verify-request page when the mail went, to the error page when not.

@@ -6,7 +6,9 @@ import { mailHtml, sendMail } from './mail';
 
 /**
  * Tells the landowner (and the stewards of a club permit) at once that an entry went over a limit.
- * A correction that took its day over is told the same way, naming the day it counts on.
+ * A correction that took its day over is told the same way, naming the day it counts on. Each
+ * recipient is told once per entry: asked again (the entry's key sent again after a lost answer), it
+ * sends only what did not go the first time.
  */
 export async function noticeBreach({ entryId, origin }: { entryId: string; origin: string }) {
   const [row] = await db.execute<{
@@ -32,7 +34,7 @@ export async function noticeBreach({ entryId, origin }: { entryId: string; origi
   ];
   for (const to of row.recipients) {
     try {
-      await sendMail({ purpose: 'breach', to, subject: heading, text: `${heading}\n\n${paragraphs.join('\n\n')}\n\n${origin}/land/${row.parcel_id}\n`, html: mailHtml({ heading, paragraphs, action: { label: 'Open the parcel', url: `${origin}/land/${row.parcel_id}` } }) });
+      await sendMail({ purpose: 'breach', to, dedupeKey: `breach:${entryId}:${to}`, subject: heading, text: `${heading}\n\n${paragraphs.join('\n\n')}\n\n${origin}/land/${row.parcel_id}\n`, html: mailHtml({ heading, paragraphs, action: { label: 'Open the parcel', url: `${origin}/land/${row.parcel_id}` } }) });
     } catch (error) {
       console.error(`could not send breach mail to ${to}:`, error);
     }

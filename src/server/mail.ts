@@ -1,25 +1,38 @@
-import { MAIL_CATCHER_SMTP_PORT, MAIL_FROM, SMTP_URL } from 'astro:env/server';
+import { MAIL_CATCHER_SMTP_PORT, MAIL_FROM, SMTP_URL, TALLYWOOD_LOCAL_MODE } from 'astro:env/server';
 import nodemailer from 'nodemailer';
 import { db } from '../db';
 import { markMail, recordMail } from '../db/mail.queries';
 
-/** True while mail goes to the local catcher (and so the mailbox page exists). */
-export const usingMailCatcher = !SMTP_URL;
+/** True while mail goes to the local catcher: only in local mode (a deployment without SMTP_URL does not start). */
+export const usingMailCatcher = TALLYWOOD_LOCAL_MODE && !SMTP_URL;
 
-/** The local mailbox shows every sign-in link, so it answers only requests from this machine. */
 export function isLoopback(address: string | undefined) {
   return address === '127.0.0.1' || address === '::1' || address === '::ffff:127.0.0.1';
+}
+
+/** Headers by which a proxy relays someone else's request, and the launcher's mark that one came with any (scripts/lib/forwarded.mjs). */
+const forwardingHeaders = ['forwarded', 'x-forwarded-for', 'x-forwarded-host', 'x-forwarded-proto', 'x-forwarded-port', 'x-real-ip', 'x-tallywood-relayed'];
+
+/**
+ * The local mailbox shows every sign-in link, so it exists only in local mode and answers only a
+ * request made on this machine: from the loopback socket itself, relayed by nobody. scripts/serve.mjs
+ * removes forwarded headers from untrusted peers, so the address is the socket's, and marks a
+ * request that came with any: a proxy on this machine relays strangers from loopback too.
+ */
+export function mayReadMailbox(request: Request, clientAddress: string | undefined) {
+  return usingMailCatcher && isLoopback(clientAddress) && forwardingHeaders.every((name) => !request.headers.has(name));
 }
 
 const transport = nodemailer.createTransport(
   SMTP_URL ?? { host: '127.0.0.1', port: MAIL_CATCHER_SMTP_PORT, secure: false, ignoreTLS: true },
 );
 
-export type Mail = { purpose: string; to: string; subject: string; text: string; html: string; clientAddress?: string | null };
+export type Mail = { purpose: string; to: string; subject: string; text: string; html: string; clientAddress?: string | null; dedupeKey?: string };
 
-/** Sends one e-mail and keeps a record of it (the record is what rate limits count). */
+/** Sends one e-mail and keeps a record of it. A mail with a `dedupeKey` recorded before is not sent again. */
 export async function sendMail(mail: Mail) {
-  const id = await recordMail(db, { purpose: mail.purpose, toAddress: mail.to, subject: mail.subject, clientAddress: mail.clientAddress ?? null });
+  const id = await recordMail(db, { purpose: mail.purpose, toAddress: mail.to, subject: mail.subject, clientAddress: mail.clientAddress ?? null, dedupeKey: mail.dedupeKey ?? null });
+  if (!id) return;
   try {
     await transport.sendMail({ from: MAIL_FROM, to: mail.to, subject: mail.subject, text: mail.text, html: mail.html });
     await markMail(db, { id, now: new Date() });

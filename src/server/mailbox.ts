@@ -1,4 +1,4 @@
-import { MAIL_CATCHER_HTTP_URL } from 'astro:env/server';
+import { LOCAL_FAKES_TOKEN, MAIL_CATCHER_HTTP_URL } from 'astro:env/server';
 import { AppError } from '../lib/errors';
 
 export type CaughtMail = { id: string; from: string; to: string[]; subject: string; date: string; text: string; html: string | null };
@@ -8,7 +8,8 @@ export async function listCaughtMail(to?: string | null): Promise<CaughtMail[]> 
   const url = new URL('/messages', MAIL_CATCHER_HTTP_URL);
   if (to) url.searchParams.set('to', to);
   try {
-    const response = await fetch(url);
+    const response = await fetch(url, { headers: { 'x-local-token': LOCAL_FAKES_TOKEN ?? '' } });
+    if (!response.ok) throw new Error(`the mail catcher answered ${response.status}`);
     return (await response.json()) as CaughtMail[];
   } catch {
     throw new AppError(503, 'mailbox-unavailable', `The local mail catcher at ${MAIL_CATCHER_HTTP_URL} is not answering; is npm start still running?`);

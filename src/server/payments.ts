@@ -22,12 +22,8 @@ function createStripeClient(apiUrl: string, secretKey: string) {
     throw new Error(`STRIPE_API_URL ${apiUrl} is plain HTTP; only a test key (sk_test_…) may be sent there.`);
   }
   const port = Number(api.port || (protocol === 'http' ? 80 : 443));
-  // The default webhook secret is public (it is in this repository): anyone could sign a "paid"
-  // event with it. It is accepted only while payments go to a fake on this machine.
-  const local = api.hostname === '127.0.0.1' || api.hostname === 'localhost' || api.hostname === '::1';
-  if (!local && STRIPE_WEBHOOK_SECRET.startsWith('whsec_tallywood_')) {
-    throw new Error('STRIPE_WEBHOOK_SECRET is still the local default; set the signing secret the provider gives for this webhook.');
-  }
+  // The local fake and its published keys are allowed in local mode only: src/server/deployment.ts
+  // refuses to start a server that would take them anywhere else.
   return new Stripe(secretKey, { host: api.hostname, port, protocol, maxNetworkRetries: 2, timeout: 20_000 });
 }
 
@@ -151,6 +147,12 @@ async function settleCheckout(tx: Tx, session: Stripe.Checkout.Session, now: Dat
   if (session.payment_status !== 'paid') return null;
   const payment = await lockPaymentBySession(tx, { sessionId: session.id });
   if (!payment || payment.state === 'paid' || payment.state === 'refunded') return null;
+  const mismatch = checkoutMismatch(session, payment);
+  if (mismatch) {
+    // Signed by the provider yet not what we asked for: nothing is settled, and staff must look.
+    console.error(`payment ${payment.id}: checkout ${session.id} was not settled: ${mismatch}`);
+    return null;
+  }
   const intent = typeof session.payment_intent === 'string' ? session.payment_intent : (session.payment_intent?.id ?? null);
   await markPaymentPaid(tx, { paymentId: payment.id, providerPaymentId: intent, paidAt: now });
   // The success page is ours, so its origin is where the payer reached Tallywood: links in the e-mail go there.
@@ -159,6 +161,21 @@ async function settleCheckout(tx: Tx, session: Stripe.Checkout.Session, now: Dat
   if ((permit.state !== 'approved' && permit.state !== 'active') || permit.feePaidAt) return { kind: 'refund', paymentId: payment.id, origin };
   await recordFeePaid(tx, { permitId: permit.id, paidAt: now, actorId: payment.payerId });
   return { kind: 'receipt', paymentId: payment.id, origin };
+}
+
+/**
+ * Why a completed checkout does not settle the payment row it names, or null when it does: the row
+ * this checkout was opened for (our payment id in its metadata), for the amount and currency the
+ * row records.
+ */
+export function checkoutMismatch(
+  session: Pick<Stripe.Checkout.Session, 'amount_total' | 'currency' | 'metadata'>,
+  payment: { id: string; amountMinor: number; currency: string },
+): string | null {
+  if (session.metadata?.paymentId !== payment.id) return `it names payment ${session.metadata?.paymentId ?? '(none)'}`;
+  if (session.amount_total !== payment.amountMinor) return `it paid ${session.amount_total ?? '(no amount)'} minor units, not ${payment.amountMinor}`;
+  if ((session.currency ?? '').toLowerCase() !== payment.currency.toLowerCase()) return `it paid in ${session.currency ?? '(no currency)'}, not ${payment.currency}`;
+  return null;
 }
 
 async function refundLatePayment({ paymentId, origin }: { paymentId: string; origin?: string }, now: Date) {

@@ -2,6 +2,7 @@ import exifr from 'exifr';
 import sharp from 'sharp';
 import { AppError, invalidInput } from '../lib/errors';
 import { photoExtensions, sniffImageType, webpExifPayload, type PhotoType } from '../lib/photo-bytes';
+import { readCapped } from './request-body';
 
 /** A harvest photo larger than this is refused: a phone's full-size JPEG is 2–6 MB. */
 export const maxPhotoBytes = 10 * 1024 * 1024;
@@ -20,6 +21,21 @@ export type ProcessedPhoto = {
   shared: Buffer;
   sharedContentType: SharedPhotoType;
 };
+
+/**
+ * The most pixels a photo may declare: a 48-megapixel phone camera's full size (8064 × 6048) fits.
+ * A small file can declare a far larger image (a "decompression bomb"); its header is read first and
+ * the photo refused before any pixel is decoded, and sharp is held to the same limit while decoding.
+ */
+export const maxPhotoPixels = 50_000_000;
+
+const tooManyPixels = (width: number, height: number) =>
+  new AppError(
+    413,
+    'photo-too-large',
+    `That photo is ${width} × ${height} pixels (${Math.round((width * height) / 1e6)} megapixels); Tallywood takes up to ${maxPhotoPixels / 1e6} megapixels. Share a reduced size.`,
+    'photo',
+  );
 
 export const photoTooLarge = () =>
   new AppError(413, 'file-too-large', `That photo is larger than ${maxPhotoBytes / 1024 / 1024} MB. Send a smaller one (most phones can share a reduced size).`, 'photo');
@@ -48,38 +64,13 @@ const maxBodyBytes = maxPhotoBytes + multipartOverheadBytes;
 export async function readPhotoPart(request: Request): Promise<Uint8Array> {
   const type = request.headers.get('content-type') ?? '';
   if (!type.startsWith('multipart/form-data')) throw invalidInput('photo', 'Send the photo as multipart/form-data in a field named "photo".');
-  if (Number(request.headers.get('content-length') ?? 0) > maxBodyBytes) throw photoTooLarge();
-  const body = await readCapped(request, maxBodyBytes);
+  const body = await readCapped(request, maxBodyBytes, photoTooLarge);
   const form = await new Response(body, { headers: { 'content-type': type } }).formData().catch(() => null);
   const file = form?.get('photo');
   if (!(file instanceof File)) throw invalidInput('photo', 'Choose a photo to upload (a field named "photo").');
   if (file.size > maxPhotoBytes) throw photoTooLarge();
   if (file.size === 0) throw invalidInput('photo', 'That photo is empty.');
   return new Uint8Array(await file.arrayBuffer());
-}
-
-async function readCapped(request: Request, limit: number): Promise<Uint8Array<ArrayBuffer>> {
-  if (!request.body) return new Uint8Array();
-  const reader = request.body.getReader();
-  const chunks: Uint8Array[] = [];
-  let total = 0;
-  for (;;) {
-    const { done, value } = await reader.read();
-    if (done) break;
-    total += value.byteLength;
-    if (total > limit) {
-      await reader.cancel().catch(() => {});
-      throw photoTooLarge();
-    }
-    chunks.push(value);
-  }
-  const body = new Uint8Array(total);
-  let at = 0;
-  for (const chunk of chunks) {
-    body.set(chunk, at);
-    at += chunk.byteLength;
-  }
-  return body;
 }
 
 /**
@@ -96,11 +87,13 @@ export async function processPhoto(bytes: Uint8Array): Promise<ProcessedPhoto> {
   const exifSource = contentType === 'image/webp' ? webpExifPayload(bytes) : buffer;
   const gps = exifSource ? await readGps(Buffer.from(exifSource.buffer, exifSource.byteOffset, exifSource.byteLength)) : null;
   const sharedContentType: SharedPhotoType = sharedTypeFor(contentType);
+  const size = await sharp(buffer, { limitInputPixels: false }).metadata().catch(() => null);
+  if (size?.width && size.height && size.width * size.height > maxPhotoPixels) throw tooManyPixels(size.width, size.height);
   let shared: Buffer;
   try {
     // rotate() with no angle applies the EXIF orientation, so the copy stands upright without it.
     // No withMetadata/keepMetadata/withExif: sharp writes none of the input's metadata.
-    const image = sharp(buffer, { failOn: 'error' }).rotate();
+    const image = sharp(buffer, { failOn: 'error', limitInputPixels: maxPhotoPixels }).rotate();
     shared =
       sharedContentType === 'image/webp'
         ? await image.webp({ quality: 85 }).toBuffer()

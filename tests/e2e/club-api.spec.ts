@@ -209,12 +209,22 @@ test.describe("a parcel's audit, flags and season report", () => {
     expect((await steward.get(`/api/parcels/${ids.parcel}/season-report?club=${randomUUID()}`)).status()).toBe(404);
   });
 
-  test("given the club's steward sending the report, the landowner and the steward get it by e-mail", async () => {
-    const sent = await steward.post(`/api/parcels/${ids.parcel}/season-report/send`, { data: { clubId: ids.club } });
-    expect(sent.status(), await sent.text()).toBe(200);
-    expect(((await sent.json()).sentTo as string[]).sort()).toEqual(['landowner@example.org', 'steward@example.org']);
+  test("given the club's steward sending the report (five clicks at once), the landowner and the steward get it by e-mail once", async () => {
+    const send = () => steward.post(`/api/parcels/${ids.parcel}/season-report/send`, { data: { clubId: ids.club } });
+    const answers = await Promise.all(Array.from({ length: 5 }, send));
+    const sent = answers.filter((a) => a.status() === 200);
+    expect(sent, 'exactly one send goes through').toHaveLength(1);
+    expect(((await sent[0]?.json()).sentTo as string[]).sort()).toEqual(['landowner@example.org', 'steward@example.org']);
+    for (const refused of answers.filter((a) => a.status() !== 200)) {
+      expect(refused.status()).toBe(429);
+      expect((await refused.json()).error.message).toMatch(/less than a minute ago; it was not sent twice/);
+      expect(Number(refused.headers()['retry-after'])).toBeGreaterThan(0);
+    }
     const subject = `Season report for ${ids.parcelName} from ${clubName}`;
-    await expect.poll(async () => (await mailFor(walter, 'landowner@example.org')).some((m) => m.subject === subject), { message: 'the season report e-mail' }).toBe(true);
+    const copies = async () => (await mailFor(walter, 'landowner@example.org')).filter((m) => m.subject === subject).length;
+    await expect.poll(copies, { message: 'the season report e-mail' }).toBe(1);
+    expect((await send()).status()).toBe(429);
+    expect(await copies()).toBe(1);
   });
 });
 

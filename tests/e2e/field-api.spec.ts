@@ -1,6 +1,6 @@
 import { randomUUID } from 'node:crypto';
-import { expect, test, type APIRequestContext } from '@playwright/test';
-import { apiAs } from './support';
+import { expect, request as playwrightRequest, test, type APIRequestContext } from '@playwright/test';
+import { apiAs, baseURL, mailFor, signInApi } from './support';
 
 /** The field API against the real server and database: bad input, concurrency and idempotency. */
 const west = -72.99;
@@ -11,6 +11,7 @@ const centre = { longitude: west + size / 2, latitude: south + size / 2 };
 let walter: APIRequestContext;
 let forager: APIRequestContext;
 let visitId = '';
+let parcelId = '';
 const ids: Record<string, string> = {};
 
 test.describe.configure({ mode: 'serial' });
@@ -20,7 +21,7 @@ test.beforeAll(async () => {
   const ring = [[west, south], [west + size, south], [west + size, south + size], [west, south + size], [west, south]];
   const created = await walter.post('/api/parcels', { data: { name: `Field API lot ${Date.now()}`, timeZone: 'America/New_York', nearingThresholdPercent: 80, openToRequests: false, description: '', boundary: { type: 'Polygon', coordinates: [ring] } } });
   expect(created.status(), await created.text()).toBe(201);
-  const parcelId = (await created.json()).parcel.id as string;
+  parcelId = (await created.json()).parcel.id as string;
   const { species } = (await (await walter.get('/api/species')).json()) as { species: { id: string; commonName: string }[] };
   for (const s of species) ids[s.commonName] = s.id;
   const allow = (speciesId: string | undefined, limits: unknown[]) =>
@@ -101,6 +102,54 @@ test('given one idempotency key sent 20 times at once, one entry is recorded and
   const day = (await preview.json()).tallies.find((t: { scope: string }) => t.scope === 'day');
   // 100 g recorded once, plus this 1 g preview, in the limit's unit (kg): 0.101 kg.
   expect(Number(day.used)).toBeCloseTo(0.101, 6);
+});
+
+test('given a key sent again with a different body, it answers 422 saying so and saves nothing', async () => {
+  const first = entry('Oyster mushroom', '100', 'g');
+  expect((await forager.post('/api/harvest-entries', { data: first })).status()).toBe(201);
+  const before = await forager.get('/api/ledger').then((r) => r.text());
+  for (const changed of [{ ...first, quantities: [{ quantity: '900', unit: 'g' }] }, { ...first, method: 'cut' }, { ...first, acknowledgeOver: true }]) {
+    const again = await forager.post('/api/harvest-entries', { data: changed });
+    expect(again.status()).toBe(422);
+    const { error } = await again.json();
+    expect(error).toMatchObject({ code: 'key-reused', field: 'idempotencyKey' });
+    expect(error.message).toMatch(/different entry/);
+  }
+  // The same key as a correction is another request too.
+  const { entry: saved } = await (await forager.post('/api/harvest-entries', { data: first })).json();
+  const asCorrection = await correct(saved.id, { ...correction('-10', 'g', 'Weighed again'), idempotencyKey: first.idempotencyKey });
+  expect(asCorrection.status()).toBe(422);
+  expect(await forager.get('/api/ledger').then((r) => r.text())).toBe(before);
+});
+
+test("given another forager's key, it is theirs alone: this forager's entry with the same key is saved, and nothing tells that the key was used", async () => {
+  const email = `key-owner-${randomUUID().slice(0, 8)}@example.org`;
+  const granted = await walter.post(`/api/parcels/${parcelId}/permits`, { data: { holder: { kind: 'forager', email }, startsOn: '2020-01-01', endsOn: '2099-12-31' } });
+  expect(granted.status(), await granted.text()).toBe(201);
+  const other = await signInApi(await playwrightRequest.newContext({ baseURL, extraHTTPHeaders: { origin: baseURL } }), email);
+  const checkIn = await (await other.post('/api/check-ins', { data: { ...centre, accuracyM: 5 } })).json();
+  expect(checkIn.verdict).toBe('clear');
+  const mine = entry('Oyster mushroom', '10', 'g');
+  const theirs = { ...mine, visitId: checkIn.visitId, quantities: [{ quantity: '20', unit: 'g' }] };
+  const saved = await forager.post('/api/harvest-entries', { data: mine });
+  expect(saved.status()).toBe(201);
+  const alsoSaved = await other.post('/api/harvest-entries', { data: theirs });
+  expect(alsoSaved.status(), await alsoSaved.text()).toBe(201);
+  expect((await alsoSaved.json()).entry.id).not.toBe((await saved.json()).entry.id);
+  await other.dispose();
+});
+
+test('given a breach entry sent again with its key, the landowner is told once, not twice', async () => {
+  const told = async () => (await mailFor(walter, 'landowner@example.org')).filter((m) => m.subject.startsWith('Limit breached')).length;
+  const before = await told();
+  const over = entry('Fiddlehead (ostrich fern)', '1', 'stem', { acknowledgeOver: true });
+  const first = await forager.post('/api/harvest-entries', { data: over });
+  expect(first.status(), await first.text()).toBe(201);
+  expect((await first.json()).entry.breach).toBe(true);
+  await expect.poll(told).toBe(before + 1);
+  const replayed = await Promise.all([1, 2, 3].map(() => forager.post('/api/harvest-entries', { data: over })));
+  expect(replayed.map((r) => r.status())).toEqual([200, 200, 200]);
+  expect(await told()).toBe(before + 1);
 });
 
 test('given a 50 MB photo or a file that is not an image, the upload is refused with a clear 4xx', async () => {

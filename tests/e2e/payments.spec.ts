@@ -1,4 +1,4 @@
-import { randomBytes } from 'node:crypto';
+import { randomBytes, randomUUID } from 'node:crypto';
 import { expect, test, type APIRequestContext } from '@playwright/test';
 import Stripe from 'stripe';
 import { apiAs, baseURL, mailFor, pageAs } from './support';
@@ -10,6 +10,8 @@ import { apiAs, baseURL, mailFor, pageAs } from './support';
  */
 const hattie = 'hattie.brule@example.org';
 const fakeUrl = `http://127.0.0.1:${process.env.PAYMENTS_FAKE_PORT ?? 2610}`;
+/** The fake's test hooks answer only with the token npm test shares with it (scripts/lib/local-fake.mjs). */
+const localToken = { headers: { 'x-local-token': process.env.LOCAL_FAKES_TOKEN ?? '' } };
 const webhookSecret = process.env.STRIPE_WEBHOOK_SECRET ?? 'whsec_tallywood_test';
 /** Only its webhook helpers are used: the SDK signs test payloads the way the provider does. */
 const sdk = new Stripe('sk_test_unused');
@@ -73,6 +75,21 @@ test('given a webhook with a bad or missing signature, it answers 400 and nothin
   expect(await (await api.get(`/payments/done?session_id=${sessionId()}`)).text()).toContain('Confirming…');
 });
 
+test('given a correctly signed completion of this checkout for another amount, currency or payment row, nothing is settled', async () => {
+  const provider = new Stripe(process.env.STRIPE_SECRET_KEY ?? 'sk_test_tallywood_test', { host: '127.0.0.1', port: Number(new URL(fakeUrl).port), protocol: 'http', maxNetworkRetries: 0 });
+  const session = await provider.checkout.sessions.retrieve(sessionId());
+  expect(session.metadata?.paymentId).toBeTruthy();
+  const paid = { ...session, status: 'complete', payment_status: 'paid', payment_intent: 'pi_test_forged' };
+  for (const changed of [{ amount_total: 1 }, { currency: 'eur' }, { metadata: { permitId, paymentId: randomUUID() } }]) {
+    const body = JSON.stringify({ id: `evt_test_${randomBytes(6).toString('hex')}`, object: 'event', type: 'checkout.session.completed', data: { object: { ...paid, ...changed } } });
+    const response = await postWebhook(body, sdk.webhooks.generateTestHeaderString({ payload: body, secret: webhookSecret }));
+    expect(response.status(), JSON.stringify(changed)).toBe(200);
+  }
+  const { fees } = (await (await api.get('/api/payments/due')).json()) as { fees: Fee[] };
+  expect(fees.map((f) => f.permitId)).toContain(permitId);
+  expect(await receiptsFor(api)).toHaveLength(0);
+});
+
 test('given the checkout in Chromium, Pay lands on the done page with the permit active and a receipt mailed', async ({ browser }) => {
   const page = await pageAs(browser, hattie);
   const response = await page.request.post(`/api/permits/${permitId}/checkout`, { headers: { origin: baseURL } });
@@ -100,10 +117,10 @@ test('given the checkout in Chromium, Pay lands on the done page with the permit
 });
 
 test('given a replayed event, the second delivery answers duplicate and nothing happens twice', async () => {
-  const { events } = (await (await api.get(`${fakeUrl}/__events`)).json()) as { events: FakeEvent[] };
+  const { events } = (await (await api.get(`${fakeUrl}/__events`, localToken)).json()) as { events: FakeEvent[] };
   const completed = events.find((e) => e.type === 'checkout.session.completed' && e.data.object.id === sessionId());
   expect(completed).toBeDefined();
-  const resent = await (await api.post(`${fakeUrl}/__events/${completed?.id}/resend`)).json();
+  const resent = await (await api.post(`${fakeUrl}/__events/${completed?.id}/resend`, localToken)).json();
   expect(resent).toEqual({ status: 200, body: { received: true, duplicate: true } });
 
   const body = JSON.stringify({ id: `evt_test_e2e_${randomBytes(6).toString('hex')}`, object: 'event', type: 'customer.created', data: { object: { id: 'cus_test_e2e' } } });

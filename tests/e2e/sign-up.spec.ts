@@ -1,5 +1,5 @@
 import { expect, test } from '@playwright/test';
-import { mailFor, signIn, signInLinkFor } from './support';
+import { baseURL, mailFor, signIn, signInLinkFor } from './support';
 
 test('given a new person who manages land, it makes an unverified landowner whom an admin then verifies', async ({ browser }) => {
   const email = `new.landowner.${Date.now()}@example.org`;
@@ -57,4 +57,27 @@ test('given more sign-in requests for one address than the hourly limit, it refu
   const refused = await request.post('/api/sign-in', { data: { email } });
   expect((await refused.json()).error.message).toContain('in the last hour');
   await expect.poll(async () => (await mailFor(request, email)).length).toBe(before + 5);
+});
+
+test('given 20 sign-in requests for one address at the same moment, exactly the hourly limit of links is sent', async ({ request }) => {
+  // Counted by one atomic upsert per request (rate-limiter-flexible's Drizzle store): none can slip between a count and a send.
+  const email = 'irene.duval@example.org';
+  const before = (await mailFor(request, email)).length;
+  const answers = await Promise.all(Array.from({ length: 20 }, () => request.post('/api/sign-in', { data: { email } })));
+  const statuses = answers.map((a) => a.status());
+  expect(statuses.filter((s) => s === 202)).toHaveLength(5);
+  expect(statuses.filter((s) => s === 429)).toHaveLength(15);
+  await expect.poll(async () => (await mailFor(request, email)).length).toBe(before + 5);
+});
+
+test('given a doubled slash, an encoded slash or a dot segment, the Auth.js sign-in action is not reachable around /api/sign-in', async ({ request }) => {
+  const email = 'dale.hosmer@example.org';
+  const before = (await mailFor(request, email)).length;
+  const csrf = await request.get('/api/auth/csrf');
+  expect(csrf.status()).toBe(404);
+  for (const path of ['/api/auth//signin/nodemailer', '/api/auth/signin/nodemailer', '/api/auth/signin//nodemailer', '/api/auth/%73ignin/nodemailer', '/api/auth/x/../signin/nodemailer', '/api/auth/session', '/api/auth/signout']) {
+    const response = await request.post(path, { form: { email, csrfToken: 'anything', callbackUrl: '/' }, headers: { origin: baseURL, 'x-tallywood-client-address': '203.0.113.9' } });
+    expect(response.status(), path).toBe(404);
+  }
+  expect((await mailFor(request, email)).length).toBe(before);
 });

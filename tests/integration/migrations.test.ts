@@ -178,9 +178,13 @@ describe('the append-only records and constraints', () => {
     expect(row).toEqual({ method: 'pick', quantity: '1.000000', n: 1, q: 1 });
   });
 
-  it('given a second entry with the same idempotency key, it refuses it', async () => {
+  it("given a second entry of the same forager with the same idempotency key, it refuses it; another forager's same key is theirs", async () => {
     const error = await refusal(db().insert(harvestEntries).values(entry('key-1')));
-    expect(error).toMatchObject({ code: uniqueViolation, constraint_name: 'harvest_entries_idempotency_key_unique' });
+    expect(error).toMatchObject({ code: uniqueViolation, constraint_name: 'harvest_entries_forager_key' });
+    const [other] = await db().insert(users).values({ email: 'other-keys@example.org', name: 'Other Keys', roles: ['forager'] }).returning();
+    if (!other) throw new Error('fixture row was not inserted');
+    const theirs = await db().insert(harvestEntries).values({ ...entry('key-1'), foragerId: other.id, recordedBy: other.id }).returning({ id: harvestEntries.id });
+    expect(theirs).toHaveLength(1);
   });
 
   it('given a permit held by both a person and a club, it refuses it', async () => {

@@ -1,6 +1,6 @@
 import { spawn, type ChildProcess } from 'node:child_process';
 import { mkdtemp, rm } from 'node:fs/promises';
-import { createServer, type Server } from 'node:http';
+import { createServer, request, type Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
@@ -27,6 +27,9 @@ let port: number;
 let fake: ChildProcess | undefined;
 let stripe: Stripe;
 let baseUrl: string;
+/** The fake's test hooks answer only with the local token (scripts/lib/local-fake.mjs). */
+const localToken = 'payments-test-local-token';
+const withToken = { headers: { 'x-local-token': localToken } };
 
 async function listen(server: Server, onPort = 0) {
   await new Promise<void>((resolve) => server.listen(onPort, '127.0.0.1', resolve));
@@ -37,7 +40,7 @@ async function listen(server: Server, onPort = 0) {
 async function startFake(webhookPort: number) {
   const child = spawn(join(root, 'node_modules', '.bin', 'tsx'), ['scripts/payments-fake.ts'], {
     cwd: root,
-    env: { ...process.env, PAYMENTS_FAKE_PORT: String(port), PAYMENTS_FAKE_STORE: store, PAYMENTS_WEBHOOK_URL: `http://127.0.0.1:${webhookPort}/hook`, STRIPE_SECRET_KEY: secretKey, STRIPE_WEBHOOK_SECRET: webhookSecret },
+    env: { ...process.env, PAYMENTS_FAKE_PORT: String(port), PAYMENTS_FAKE_STORE: store, PAYMENTS_WEBHOOK_URL: `http://127.0.0.1:${webhookPort}/hook`, LOCAL_FAKES_TOKEN: localToken, STRIPE_SECRET_KEY: secretKey, STRIPE_WEBHOOK_SECRET: webhookSecret },
     stdio: ['ignore', 'pipe', 'inherit'],
   });
   await new Promise<void>((resolve, reject) => {
@@ -100,7 +103,25 @@ const permitFee = {
 const press = (url: string, button: 'pay' | 'cancel') => fetch(`${url}/${button}`, { method: 'POST', redirect: 'manual' });
 const signatureTime = (header: string) => Number(/t=(\d+)/.exec(header)?.[1]);
 
+/** A raw request, so the Host header is the one given (fetch sets its own). */
+function rawGet(url: string, headers: Record<string, string>): Promise<number> {
+  return new Promise((resolve, reject) => {
+    request(url, { headers }, (res) => {
+      res.resume();
+      resolve(res.statusCode ?? 0);
+    }).on('error', reject).end();
+  });
+}
+
 describe('the local payments fake', () => {
+  it('answers only requests addressed to 127.0.0.1 (a page reaching it through a rebound host name gets 421) and its test hooks only with the local token', async () => {
+    expect(await rawGet(`${baseUrl}/__events`, { host: 'attacker.example', 'x-local-token': localToken })).toBe(421);
+    expect(await rawGet(`${baseUrl}/v1/checkout/sessions/cs_test_x`, { host: `attacker.example:${port}`, authorization: `Bearer ${secretKey}` })).toBe(421);
+    expect(await rawGet(`${baseUrl}/__events`, { host: `127.0.0.1:${port}` })).toBe(401);
+    expect(await rawGet(`${baseUrl}/__events`, { host: `127.0.0.1:${port}`, 'x-local-token': 'guessed' })).toBe(401);
+    expect(await rawGet(`${baseUrl}/__events`, { host: `127.0.0.1:${port}`, 'x-local-token': localToken })).toBe(200);
+  });
+
   it("given no key or a key other than the account's, it answers 401 with the provider's error shape", async () => {
     const bare = await fetch(`${baseUrl}/v1/checkout/sessions/cs_test_x`);
     expect(bare.status).toBe(401);
@@ -153,7 +174,7 @@ describe('the local payments fake', () => {
     const session = await stripe.checkout.sessions.create(permitFee);
     expect((await press(session.url ?? '', 'pay')).status).toBe(303);
     expect(deliveries).toHaveLength(3);
-    const { events } = await (await fetch(`${baseUrl}/__events`)).json();
+    const { events } = await (await fetch(`${baseUrl}/__events`, withToken)).json();
     const sent = events.find((e: { data: { object: { id: string } } }) => e.data.object.id === session.id);
     expect(sent.deliveries.map((d: { status: number }) => d.status)).toEqual([500, 500, 200]);
   });
@@ -195,7 +216,7 @@ describe('the local payments fake', () => {
     await press(session.url ?? '', 'pay');
     const [first] = deliveries as [Delivery];
     const { id } = JSON.parse(first.body) as { id: string };
-    const resent = await (await fetch(`${baseUrl}/__events/${id}/resend`, { method: 'POST' })).json();
+    const resent = await (await fetch(`${baseUrl}/__events/${id}/resend`, { method: 'POST', ...withToken })).json();
     expect(resent).toEqual({ status: 200, body: { received: true } });
     const second = deliveries[1];
     expect(second?.body).toBe(first.body);
@@ -204,10 +225,10 @@ describe('the local payments fake', () => {
 
   it('given a restart, it keeps its sessions and events', async () => {
     const session = await stripe.checkout.sessions.create(permitFee);
-    const before = (await (await fetch(`${baseUrl}/__events`)).json()).events.length;
+    const before = (await (await fetch(`${baseUrl}/__events`, withToken)).json()).events.length;
     await stopFake();
     fake = await startFake((receiver.address() as AddressInfo).port);
     expect(await stripe.checkout.sessions.retrieve(session.id)).toEqual(session);
-    expect((await (await fetch(`${baseUrl}/__events`)).json()).events).toHaveLength(before);
+    expect((await (await fetch(`${baseUrl}/__events`, withToken)).json()).events).toHaveLength(before);
   });
 });

@@ -63,8 +63,10 @@ export const harvestEntries = pgTable(
   'harvest_entries',
   {
     id: id(),
-    /** The client's key for this entry: sending it again returns the first result. */
-    idempotencyKey: text('idempotency_key').notNull().unique(),
+    /** The forager's key for this entry: sending it again returns the first result. Unique per forager. */
+    idempotencyKey: text('idempotency_key').notNull(),
+    /** SHA-256 of what was asked with the key, so the key sent with something else is refused; null on entries older than it. */
+    requestHash: text('request_hash'),
     foragerId: text('forager_id').notNull().references(() => users.id),
     parcelId: uuid('parcel_id').notNull().references(() => parcels.id),
     /** The permit it counts under: the visit's permit (for a correction, the root entry's). */
@@ -102,6 +104,9 @@ export const harvestEntries = pgTable(
     index('harvest_entries_forager').on(t.foragerId, t.recordedAt),
     index('harvest_entries_permit').on(t.permitId),
     index('harvest_entries_visit').on(t.visitId),
+    uniqueIndex('harvest_entries_forager_key').on(t.foragerId, t.idempotencyKey),
+    /** Deleting a visit (never done by the app, but by clean-ups) checks this reference; without it, by reading every entry. */
+    index('harvest_entries_counted_visit').on(t.countedVisitId).where(sql`${t.countedVisitId} is not null`),
     /** Corrections are few: finding an entry's corrections reads only these. */
     index('harvest_entries_corrects').on(t.correctsEntryId).where(sql`${t.correctsEntryId} is not null`),
     index('harvest_entries_root').on(t.rootEntryId).where(sql`${t.rootEntryId} is not null`),

@@ -1,5 +1,5 @@
 import { sql } from 'drizzle-orm';
-import { check, index, integer, jsonb, pgTable, text, uuid } from 'drizzle-orm/pg-core';
+import { check, index, integer, jsonb, pgTable, text, timestamp, uuid } from 'drizzle-orm/pg-core';
 import { at, createdAt, id, point } from './columns';
 import { mailStateEnum, paymentStateEnum, uploadPurposeEnum } from './enums';
 import { users } from './auth';
@@ -48,6 +48,8 @@ export const outgoingMail = pgTable(
     subject: text('subject').notNull(),
     /** The client address that caused the mail, where a request did (sign-in links). */
     clientAddress: text('client_address'),
+    /** A mail that must go once only (a breach notice per entry and recipient): a second with the same key is not sent. */
+    dedupeKey: text('dedupe_key').unique(),
     state: mailStateEnum('state').notNull().default('queued'),
     error: text('error'),
     createdAt: createdAt(),
@@ -90,3 +92,14 @@ export type Upload = typeof uploads.$inferSelect;
 export type AuditEvent = typeof auditEvents.$inferSelect;
 export type OutgoingMail = typeof outgoingMail.$inferSelect;
 export type Payment = typeof payments.$inferSelect;
+
+/**
+ * The counters of rate-limit-flexible's Drizzle store (src/server/rate-limits.ts): one row per limit
+ * and key, its points spent in the current window and when the window ends. Each request adds its
+ * point in one INSERT … ON CONFLICT DO UPDATE, so requests at the same moment cannot both pass.
+ */
+export const rateLimits = pgTable('rate_limits', {
+  key: text('key').primaryKey(),
+  points: integer('points').notNull(),
+  expire: timestamp('expire', { withTimezone: true }),
+});

@@ -1,3 +1,4 @@
+import { boundaryFileLimitProblem } from './file-limits';
 import { collectGeoJson, type Collected } from './geojson';
 import { collectGpx, collectKml, readXml } from './kml-gpx';
 import type { BoundaryFeature, BoundaryProblem } from './types';
@@ -38,6 +39,9 @@ export function parseBoundaryFile(text: string, fileName?: string): ParseResult 
   if (body.startsWith('PK\u0003\u0004')) return unsupported(extensionHints[extension] ?? 'This is a zip archive (a KMZ or a zipped shapefile), which cannot be read.');
   // Binary files (PNG, PDF, shapefile…) show control characters that no text boundary format holds.
   if (/[\u0000-\u0008\u000E-\u001F]/.test(body.slice(0, 1024))) return unsupported(`${hint}This file is not text; it may be an image or a binary export.`);
+
+  const limit = boundaryFileLimitProblem(body);
+  if (limit) return { ok: false, problems: [limit] };
 
   let read: { format: BoundaryFileFormat; collected: Collected };
   const first = body[0];

@@ -23,8 +23,8 @@ export type BoundaryLimits = { maxVertices: number; maxAreaHectares: number };
  * change wording; codes do not.
  */
 export const boundaryProblemCodes = [
-  // reading the file (parse.ts)
-  'unsupported-format', 'unsupported-crs', 'no-polygon', 'open-track',
+  // reading the file (parse.ts, file-limits.ts)
+  'unsupported-format', 'unsupported-crs', 'no-polygon', 'open-track', 'file-too-complex',
   // shape and coordinates (validate.ts)
   'not-a-polygon', 'bad-coordinates', 'too-few-positions', 'unclosed-ring', 'out-of-range', 'swapped-coordinates',
   'crosses-antimeridian', 'too-many-vertices', 'too-large', 'empty',

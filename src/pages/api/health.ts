@@ -2,13 +2,19 @@ import { db } from '../../db';
 import { migrationStatus, postgisVersion } from '../../db/migrations';
 import { endpoint, json } from '../../server/http';
 
-/** For load balancers and people: is the database there, with PostGIS and every migration? */
+/**
+ * For load balancers and people: is the database there, with PostGIS and every migration? Anyone
+ * may ask, so the answer is a status word only; what went wrong, with versions and counts, goes to
+ * the server's log.
+ */
 export const GET = endpoint(async () => {
   try {
     const [postgis, migrations] = await Promise.all([postgisVersion(db), migrationStatus(db)]);
-    const ok = postgis !== null && migrations.upToDate;
-    return json({ ok, database: 'reachable', postgis, migrations }, ok ? 200 : 503);
+    const status = postgis === null ? 'postgis-missing' : migrations.upToDate ? 'ready' : 'migrations-pending';
+    if (status !== 'ready') console.error(`health: ${status} (PostGIS ${postgis ?? 'absent'}; ${migrations.applied} of ${migrations.known} migrations applied)`);
+    return json({ ok: status === 'ready', status }, status === 'ready' ? 200 : 503);
   } catch (error) {
-    return json({ ok: false, database: 'unreachable', error: String(error) }, 503);
+    console.error('health: the database did not answer:', error);
+    return json({ ok: false, status: 'database-unreachable' }, 503);
   }
 });

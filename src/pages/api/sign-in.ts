@@ -2,7 +2,7 @@ import { db } from '../../db';
 import { findUserByEmail } from '../../db/accounts.queries';
 import { signInSchema } from '../../lib/accounts.schemas';
 import { AppError } from '../../lib/errors';
-import { requestSignInLink } from '../../server/auth';
+import { sendSignInLink, spendSignInAllowance } from '../../server/auth';
 import { endpoint, json, readJson } from '../../server/http';
 
 /** Sends a sign-in link to an existing account. */
@@ -12,6 +12,7 @@ export const POST = endpoint(async ({ request, url, clientAddress }) => {
   if (!user) {
     throw new AppError(404, 'no-account', 'No account uses this address. Check the spelling, or create an account.', 'email');
   }
-  await requestSignInLink({ email, origin: url.origin, next, clientAddress: clientAddress ?? null, now: new Date() });
+  await spendSignInAllowance({ email, clientAddress: clientAddress ?? null });
+  await sendSignInLink({ email, origin: url.origin, next, clientAddress: clientAddress ?? null });
   return json({ sent: true, email }, 202);
 });

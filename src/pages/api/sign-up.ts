@@ -2,7 +2,7 @@ import { db } from '../../db';
 import { createAccount, findUserByEmail } from '../../db/accounts.queries';
 import { signUpSchema } from '../../lib/accounts.schemas';
 import { conflict } from '../../lib/errors';
-import { requestSignInLink } from '../../server/auth';
+import { sendSignInLink, spendSignInAllowance } from '../../server/auth';
 import { endpoint, json, readJson } from '../../server/http';
 
 /**
@@ -14,8 +14,10 @@ export const POST = endpoint(async ({ request, url, clientAddress }) => {
   if (await findUserByEmail(db, { email: input.email })) {
     throw conflict('email', 'An account already uses this address. Sign in instead.');
   }
+  // Limited before the account is made: a refused sign-up leaves nothing behind.
+  await spendSignInAllowance({ email: input.email, clientAddress: clientAddress ?? null });
   const user = await createAccount(db, input);
   if (!user) throw conflict('email', 'An account already uses this address. Sign in instead.');
-  await requestSignInLink({ email: input.email, origin: url.origin, clientAddress: clientAddress ?? null, now: new Date() });
+  await sendSignInLink({ email: input.email, origin: url.origin, clientAddress: clientAddress ?? null });
   return json({ created: true, email: user.email, roles: user.roles }, 201);
 });

@@ -7,7 +7,7 @@ import type { Forager } from '../../lib/field/types';
 import { AppError, invalidInput, notFound } from '../../lib/errors';
 import type { CorrectionInput } from '../../lib/field.schemas';
 import { addDecimals, compareDecimals, measureOf, toBase, units, type Measure } from '../../lib/units';
-import { keyInUse, replayOf, storedQuantities, type RecordResult } from './harvest';
+import { keyInUse, replayOf, requestHashOf, storedQuantities, type RecordResult } from './harvest';
 
 const measureWords = (m: Measure) => (m === 'mass' ? 'a weight' : m === 'volume' ? 'a volume' : `a count of ${m.replace('-', ' ')}`);
 
@@ -24,7 +24,8 @@ export async function correctEntry(db: Db, { forager, entryId, input, now = new 
       const target = await findOwnEntry(tx, { entryId, foragerId: forager.id });
       if (!target) throw notFound('The entry to correct');
       await lockAllowance(tx, { parcelId: target.parcelId, speciesId: target.speciesId });
-      const replay = replayOf(await findEntryByKey(tx, input.idempotencyKey), forager);
+      const requestHash = requestHashOf('correction', input, { entryId });
+      const replay = replayOf(await findEntryByKey(tx, { foragerId: forager.id, key: input.idempotencyKey }), requestHash);
       if (replay) return replay;
       const rootId = target.rootEntryId ?? target.id;
       const root = rootId === target.id ? target : await findOwnEntry(tx, { entryId: rootId, foragerId: forager.id });
@@ -70,6 +71,7 @@ export async function correctEntry(db: Db, { forager, entryId, input, now = new 
       const bases = Object.fromEntries(input.quantities.map((q) => [measureOf(q.unit), toBase(q.quantity, q.unit)]));
       const entry = await insertEntry(tx, {
         idempotencyKey: input.idempotencyKey,
+        requestHash,
         forager,
         parcelId: root.parcelId,
         speciesId: root.speciesId,
@@ -87,7 +89,7 @@ export async function correctEntry(db: Db, { forager, entryId, input, now = new 
         now,
       });
       if (!entry) {
-        const first = replayOf(await findEntryByKey(tx, input.idempotencyKey), forager);
+        const first = replayOf(await findEntryByKey(tx, { foragerId: forager.id, key: input.idempotencyKey }), requestHash);
         if (!first) throw keyInUse();
         return first;
       }

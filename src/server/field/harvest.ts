@@ -1,3 +1,4 @@
+import { createHash } from 'node:crypto';
 import { findEntryByKey, findVisit, insertEntry, insertFlag, lockAllowance, photoDistance, type StoredEntry } from '../../db/field.commands';
 import { loadParcelFacts, loadUsage } from '../../db/field.queries';
 import type { Db, Executor } from '../../db/client';
@@ -16,7 +17,23 @@ import { measureOf, type Measure } from '../../lib/units';
  * moment are checked one after the other, and stores the counting facts on the entry.
  */
 
-export const keyInUse = () => new AppError(409, 'key-in-use', 'That idempotency key belongs to another entry; send a new key.', 'idempotencyKey');
+export const keyInUse = () => new AppError(409, 'key-in-use', 'Another request with this idempotency key is being saved at this moment; send this one again in a moment.', 'idempotencyKey');
+
+const keyReused = () =>
+  new AppError(
+    422,
+    'key-reused',
+    'You already used this idempotency key for a different entry, so this one was not saved. Send a new key for a new entry; send exactly the same request to repeat one.',
+    'idempotencyKey',
+  );
+
+/**
+ * What was asked with an idempotency key, as a SHA-256 of the parsed request without the key: the
+ * same key sent with anything else is refused rather than answered with the first entry.
+ */
+export function requestHashOf(kind: 'harvest' | 'correction', { idempotencyKey: _key, ...asked }: { idempotencyKey: string } & Record<string, unknown>, about: Record<string, string> = {}) {
+  return createHash('sha256').update(JSON.stringify({ kind, ...about, ...asked })).digest('hex');
+}
 
 async function assess(db: Executor, { forager, input, now }: { forager: Forager; input: HarvestInput; now: Date }) {
   const visit = await findVisit(db, { visitId: input.visitId, foragerId: forager.id });
@@ -65,10 +82,10 @@ export function storedQuantities(quantities: HarvestInput['quantities'], bases: 
   });
 }
 
-/** A key sent again answers with its first entry; someone else's key is refused. */
-export function replayOf(entry: StoredEntry | null, forager: Forager): RecordResult | null {
+/** A key sent again with the same request answers with its first entry; with another request it is refused (422). */
+export function replayOf(entry: StoredEntry | null, requestHash: string): RecordResult | null {
   if (!entry) return null;
-  if (entry.foragerId !== forager.id) throw keyInUse();
+  if (entry.requestHash !== null && entry.requestHash !== requestHash) throw keyReused();
   return { entry, replayed: true, tallies: null };
 }
 
@@ -84,7 +101,8 @@ export async function recordHarvest(db: Db, { forager, input, now = new Date() }
       if (!(await lockAllowance(tx, { parcelId: visit.parcelId, speciesId: input.speciesId }))) {
         throw invalidInput('speciesId', 'That species is not allowed on this parcel; choose one from the list.');
       }
-      const replay = replayOf(await findEntryByKey(tx, input.idempotencyKey), forager);
+      const requestHash = requestHashOf('harvest', input);
+      const replay = replayOf(await findEntryByKey(tx, { foragerId: forager.id, key: input.idempotencyKey }), requestHash);
       if (replay) return replay;
       const { parcel, localDate, projection, facts, before } = await assess(tx, { forager, input, now });
       const breach = projection.wouldBreach;
@@ -100,6 +118,7 @@ export async function recordHarvest(db: Db, { forager, input, now = new Date() }
       }
       const entry = await insertEntry(tx, {
         idempotencyKey: input.idempotencyKey,
+        requestHash,
         forager,
         parcelId: parcel.id,
         speciesId: input.speciesId,
@@ -119,7 +138,7 @@ export async function recordHarvest(db: Db, { forager, input, now = new Date() }
       // The same key sent at the same moment for another species took another lock: the later
       // insert waits for the first, then finds the key taken, and answers with the first entry.
       if (!entry) {
-        const first = replayOf(await findEntryByKey(tx, input.idempotencyKey), forager);
+        const first = replayOf(await findEntryByKey(tx, { foragerId: forager.id, key: input.idempotencyKey }), requestHash);
         if (!first) throw keyInUse();
         return first;
       }

@@ -1,17 +1,20 @@
 import { Auth } from '@auth/core';
 import type { APIRoute } from 'astro';
-import { authConfig } from '../../../server/auth';
+import { authConfig, authRoutesOpenToBrowsers } from '../../../server/auth';
 import { json } from '../../../server/http';
 
 export const prerender = false;
 
-/** Auth.js handles the e-mailed link, CSRF and session routes. */
-export const GET: APIRoute = ({ request }) => Auth(request, authConfig);
+const notHere = () => json({ error: { code: 'not-found', message: 'There is nothing here. Ask for a sign-in link at /sign-in.' } }, 404);
 
-/** Sign-in links are asked for through /api/sign-in, which validates and rate-limits first. */
-export const POST: APIRoute = ({ request }) => {
-  if (new URL(request.url).pathname.startsWith('/api/auth/signin')) {
-    return json({ error: { code: 'not-found', message: 'Ask for a sign-in link at /api/sign-in.' } }, 404);
-  }
-  return Auth(request, authConfig);
+/**
+ * Only the e-mailed sign-in link reaches Auth.js from outside, matched on the exact path the
+ * request names (`authRoutesOpenToBrowsers`); every other spelling or action is a 404.
+ */
+const open: APIRoute = ({ request }) => {
+  const path = new URL(request.url).pathname;
+  return authRoutesOpenToBrowsers.has(`${request.method} ${path}`) ? Auth(request, authConfig) : notHere();
 };
+
+export const GET = open;
+export const POST = open;

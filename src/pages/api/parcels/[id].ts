@@ -3,7 +3,7 @@ import { findParcelForOwner, updateParcel } from '../../../db/parcels.queries';
 import { notFound } from '../../../lib/errors';
 import { parcelUpdateSchema } from '../../../lib/land.schemas';
 import { acceptBoundary } from '../../../server/boundaries';
-import { endpoint, guard, idParam, json, readJson } from '../../../server/http';
+import { endpoint, geometryBodyBytes, guard, idParam, json, readJson } from '../../../server/http';
 
 /** One of the landowner's parcels; another owner's parcel is answered as not found. */
 export const GET = endpoint(async ({ locals, params }) => {
@@ -21,7 +21,7 @@ export const PATCH = endpoint(async ({ locals, params, request }) => {
   const existing = await findParcelForOwner(db, { parcelId, ownerId: actor.id });
   if (!existing) throw notFound('Parcel');
   guard(actor, 'parcel:edit', { ownerId: existing.ownerId });
-  const patch = await readJson(request, parcelUpdateSchema);
+  const patch = await readJson(request, parcelUpdateSchema, { maxBytes: geometryBodyBytes });
   if (patch.status === 'listed') guard(actor, 'parcel:list-publicly', { ownerId: existing.ownerId });
   const checked = patch.boundary ? await acceptBoundary(patch.boundary, { ownerId: actor.id, excludeParcelId: parcelId }) : null;
   const parcel = await updateParcel(db, { parcelId, ownerId: actor.id, listed: actor.landownerVerified, patch: { ...patch, ...(checked ? { boundary: checked.boundary } : {}) } });

@@ -2,7 +2,7 @@ import { db } from '../../../db';
 import { createParcel, listParcelsForOwner } from '../../../db/parcels.queries';
 import { newParcelSchema } from '../../../lib/land.schemas';
 import { acceptBoundary } from '../../../server/boundaries';
-import { endpoint, guard, json, readJson } from '../../../server/http';
+import { endpoint, geometryBodyBytes, guard, json, readJson } from '../../../server/http';
 
 /** The signed-in landowner's parcels. */
 export const GET = endpoint(async ({ locals }) => {
@@ -13,7 +13,7 @@ export const GET = endpoint(async ({ locals }) => {
 /** A new parcel: listed at once for a verified landowner, a draft otherwise. Overlaps are warnings. */
 export const POST = endpoint(async ({ locals, request }) => {
   const actor = guard(locals.actor, 'parcel:draft');
-  const input = await readJson(request, newParcelSchema);
+  const input = await readJson(request, newParcelSchema, { maxBytes: geometryBodyBytes });
   const { warnings, boundary } = await acceptBoundary(input.boundary, { ownerId: actor.id });
   const parcel = await createParcel(db, { ownerId: actor.id, listed: actor.landownerVerified, input: { ...input, boundary } });
   return json({ parcel, warnings }, 201);

@@ -14,6 +14,7 @@ export const POST = endpoint(async ({ locals, params, request, url }) => {
   const entryId = idParam(params.id, 'The entry to correct');
   const input = await readJson(request, correctionSchema);
   const result = await correctEntry(db, { forager: { id: actor.id, clubIds: actor.memberOfClubIds }, entryId, input });
-  if (result.entry.breach && !result.replayed) await noticeBreach({ entryId: result.entry.id, origin: url.origin });
+  // Sent again on a replay too: whatever did not go the first time (a lost answer, a failed send) goes now, and nothing twice.
+  if (result.entry.breach) await noticeBreach({ entryId: result.entry.id, origin: url.origin });
   return json({ entry: result.entry, replayed: result.replayed, tallies: result.tallies }, result.replayed ? 200 : 201);
 });

@@ -7,6 +7,7 @@ import { grantPermitSchema } from '../../../../lib/permits.schemas';
 import { endpoint, json, readJson } from '../../../../server/http';
 import { noticeGranted } from '../../../../server/notices';
 import { ownedParcel } from '../../../../server/parcel-access';
+import { spend } from '../../../../server/rate-limits';
 
 /** The parcel's permits with their histories. */
 export const GET = endpoint(async ({ locals, params }) => {
@@ -20,6 +21,7 @@ export const GET = endpoint(async ({ locals, params }) => {
 export const POST = endpoint(async ({ locals, params, request, url }) => {
   const { actor, parcelId } = await ownedParcel(locals, params, 'permit:grant');
   const input = await readJson(request, grantPermitSchema);
+  await spend('mailToOthers', actor.id);
   // The invitee's account and the permit are made together, or neither is.
   const { permit, invited } = await db.transaction(async (tx) => {
     let invited = false;

@@ -1,0 +1,37 @@
+// `npm run serve`: serves the built app (dist/, or TALLYWOOD_OUT_DIR). Node built-ins only.
+//
+// Astro's Node adapter takes the client's address from X-Forwarded-For, and the scheme and host
+// from X-Forwarded-Proto/-Host, whoever sends them. Here, before a request reaches Astro, those
+// headers survive only when the request comes from a proxy listed in TRUSTED_PROXIES
+// (scripts/lib/forwarded.mjs); from anyone else they are removed, so the address the app sees is
+// the socket's own.
+import { createServer } from 'node:http';
+import { join, resolve } from 'node:path';
+import { pathToFileURL } from 'node:url';
+import { parseTrustedProxies, trustedHeaders } from './lib/forwarded.mjs';
+
+const root = resolve(import.meta.dirname, '..');
+const outDir = resolve(root, process.env.TALLYWOOD_OUT_DIR ?? 'dist');
+const host = process.env.HOST ?? '127.0.0.1';
+const port = Number(process.env.PORT ?? 4321);
+const trusted = parseTrustedProxies(process.env.TRUSTED_PROXIES);
+
+// The adapter's own server must not start: this one serves its handler (static files and the app).
+// Importing the entry runs the deployment check (src/server/startup.ts), which exits when something is missing.
+process.env.ASTRO_NODE_AUTOSTART = 'disabled';
+const { handler } = await import(pathToFileURL(join(outDir, 'server', 'entry.mjs')).href);
+
+const server = createServer((req, res) => {
+  trustedHeaders(req.headers, req.socket.remoteAddress, trusted);
+  handler(req, res);
+});
+server.listen(port, host, () => {
+  const proxies = trusted.size > 0 ? `forwarded headers only from ${[...trusted].join(', ')}` : 'no forwarded headers';
+  console.log(`Tallywood is serving http://${host}:${port} (trusting ${proxies})`);
+});
+for (const signal of ['SIGINT', 'SIGTERM']) {
+  process.on(signal, () => {
+    server.close(() => process.exit(0));
+    server.closeAllConnections();
+  });
+}

@@ -1,0 +1,212 @@
+import { spawn, type ChildProcess } from 'node:child_process';
+import { randomBytes, randomUUID } from 'node:crypto';
+import { readFileSync } from 'node:fs';
+import { request as httpRequest } from 'node:http';
+import { createServer, type AddressInfo } from 'node:net';
+import { join } from 'node:path';
+import { expect, test } from '@playwright/test';
+import { baseURL, sessionFile } from './support';
+
+/**
+ * The built app as a deployment starts it (`npm run serve`, scripts/serve.mjs), with the settings of
+ * a public deployment or of local mode, and requests made the way an attacker would: raw headers a
+ * client chose, not the ones a browser would send.
+ */
+const root = join(import.meta.dirname, '..', '..');
+
+test.describe.configure({ mode: 'serial' });
+
+async function freePort(): Promise<number> {
+  const probe = createServer();
+  await new Promise<void>((resolve) => probe.listen(0, '127.0.0.1', resolve));
+  const { port } = probe.address() as AddressInfo;
+  await new Promise((resolve) => probe.close(resolve));
+  return port;
+}
+
+type Served = { url: string; child: ChildProcess; output: () => string; exited: Promise<number | null>; stop: () => Promise<void> };
+
+/** Starts scripts/serve.mjs with the test run's environment changed by `env` (undefined removes a variable). */
+async function serve(env: Record<string, string | undefined>, { waitForReady = true } = {}): Promise<Served> {
+  const port = await freePort();
+  const merged: Record<string, string> = {};
+  for (const [key, value] of Object.entries({ ...process.env, HOST: '127.0.0.1', PORT: String(port), ...env })) if (value !== undefined) merged[key] = value;
+  const child = spawn(process.execPath, [join(root, 'scripts', 'serve.mjs')], { cwd: root, env: merged, stdio: ['ignore', 'pipe', 'pipe'] });
+  let output = '';
+  child.stdout?.on('data', (chunk) => (output += chunk));
+  child.stderr?.on('data', (chunk) => (output += chunk));
+  const exited = new Promise<number | null>((resolve) => child.once('exit', (code) => resolve(code)));
+  const url = `http://127.0.0.1:${port}`;
+  if (waitForReady) {
+    await expect.poll(() => output.includes('Tallywood is serving') || child.exitCode !== null, { timeout: 20_000, message: 'the server to start' }).toBe(true);
+    expect(child.exitCode, output).toBeNull();
+  }
+  return {
+    url,
+    child,
+    output: () => output,
+    exited,
+    stop: async () => {
+      if (child.exitCode === null) {
+        child.kill('SIGTERM');
+        await exited;
+      }
+    },
+  };
+}
+
+/** A raw GET or POST: every header as given, Host included. */
+function raw(url: string, { method = 'GET', headers = {}, body }: { method?: string; headers?: Record<string, string>; body?: string } = {}): Promise<{ status: number; body: string }> {
+  return new Promise((resolve, reject) => {
+    const req = httpRequest(url, { method, headers: { ...headers, ...(body ? { 'content-length': String(Buffer.byteLength(body)) } : {}) } }, (res) => {
+      let text = '';
+      res.on('data', (chunk) => (text += chunk));
+      res.on('end', () => resolve({ status: res.statusCode ?? 0, body: text }));
+    });
+    req.on('error', reject);
+    req.end(body);
+  });
+}
+
+/** What a public deployment sets, with nothing of this repository's local secrets. */
+const publicSettings = () => ({
+  TALLYWOOD_LOCAL_MODE: 'false',
+  PUBLIC_HOSTNAME: 'tallywood.example.org',
+  SMTP_URL: `smtp://127.0.0.1:${process.env.MAIL_CATCHER_SMTP_PORT ?? 2535}`,
+  AUTH_SECRET: randomBytes(32).toString('base64url'),
+  STRIPE_API_URL: 'https://api.stripe.example',
+  STRIPE_SECRET_KEY: `sk_live_${randomBytes(12).toString('hex')}`,
+  STRIPE_WEBHOOK_SECRET: `whsec_${randomBytes(12).toString('hex')}`,
+});
+
+test('given a public deployment that sets no SMTP_URL or provider settings, it refuses to start and says what to set', async () => {
+  const server = await serve(
+    { TALLYWOOD_LOCAL_MODE: 'false', PUBLIC_HOSTNAME: 'tallywood.example.org', SMTP_URL: undefined, STRIPE_API_URL: undefined, STRIPE_SECRET_KEY: undefined, STRIPE_WEBHOOK_SECRET: undefined },
+    { waitForReady: false },
+  );
+  expect(await server.exited).toBe(1);
+  const said = server.output();
+  expect(said).toContain('Tallywood will not start until this is set');
+  for (const variable of ['SMTP_URL', 'AUTH_SECRET', 'STRIPE_API_URL', 'STRIPE_SECRET_KEY', 'STRIPE_WEBHOOK_SECRET']) expect(said).toContain(variable);
+  expect(said).not.toContain('Tallywood is serving');
+});
+
+test('given local mode together with a public host name, it refuses to start', async () => {
+  const server = await serve({ TALLYWOOD_LOCAL_MODE: 'true', PUBLIC_HOSTNAME: 'tallywood.example.org' }, { waitForReady: false });
+  expect(await server.exited).toBe(1);
+  expect(server.output()).toContain('TALLYWOOD_LOCAL_MODE is for this machine only');
+});
+
+test('given the built entry started directly, not through the launcher, it refuses to start', async () => {
+  const entry = join(process.env.TALLYWOOD_OUT_DIR ?? join(root, '.local', 'test-dist'), 'server', 'entry.mjs');
+  const child = spawn(process.execPath, [entry], { cwd: root, env: { ...process.env, HOST: '127.0.0.1', PORT: String(await freePort()) }, stdio: ['ignore', 'pipe', 'pipe'] });
+  let output = '';
+  child.stderr?.on('data', (chunk) => (output += chunk));
+  expect(await new Promise((resolve) => child.once('exit', resolve))).toBe(1);
+  expect(output).toContain('npm run serve');
+});
+
+test('given a public deployment with its settings, it serves, and the mailbox and its API do not exist, even asked from this machine', async () => {
+  const server = await serve(publicSettings());
+  try {
+    expect((await raw(`${server.url}/api/health`)).status).toBe(200);
+    expect((await raw(`${server.url}/api/mailbox`)).status).toBe(404);
+    const page = await raw(`${server.url}/mailbox`);
+    expect(page.status).toBe(404);
+    expect(page.body).not.toContain('sign-in link');
+  } finally {
+    await server.stop();
+  }
+});
+
+test('given local mode, the mailbox refuses any request that a proxy relayed, whatever address it names', async () => {
+  // The test server is in local mode, with no trusted proxy: forwarding headers are removed, and the request is marked as relayed.
+  expect((await raw(`${baseURL}/api/mailbox`)).status).toBe(200);
+  const relayedBy: Record<string, string>[] = [
+    { 'x-forwarded-for': '127.0.0.1' },
+    { forwarded: 'for=127.0.0.1' },
+    { 'x-real-ip': '127.0.0.1' },
+    { 'x-forwarded-host': '127.0.0.1' },
+    { 'x-forwarded-proto': 'http' },
+  ];
+  for (const headers of relayedBy) {
+    expect((await raw(`${baseURL}/api/mailbox`, { headers })).status, JSON.stringify(headers)).toBe(404);
+    expect((await raw(`${baseURL}/mailbox`, { headers })).status, JSON.stringify(headers)).toBe(404);
+  }
+  // A proxy on this machine that is trusted still relays strangers: refused too.
+  const server = await serve({ TRUSTED_PROXIES: '127.0.0.1' });
+  try {
+    expect((await raw(`${server.url}/api/mailbox`)).status).toBe(200);
+    expect((await raw(`${server.url}/api/mailbox`, { headers: { 'x-forwarded-for': '127.0.0.1' } })).status).toBe(404);
+  } finally {
+    await server.stop();
+  }
+});
+
+test('given sign-in requests naming other client addresses in X-Forwarded-For, only a trusted proxy is believed', async () => {
+  const ip = () => `198.51.100.${1 + Math.floor(Math.random() * 250)}`;
+  const limits = { SIGN_IN_LIMIT_PER_CLIENT_PER_HOUR: '2', SIGN_IN_LIMIT_PER_HOUR: '1000' };
+  const signUp = (url: string, client: string) =>
+    raw(`${url}/api/sign-up`, { method: 'POST', headers: { 'content-type': 'application/json', 'x-forwarded-for': client }, body: JSON.stringify({ email: `proxy-${randomUUID().slice(0, 8)}@example.org`, name: 'Proxy Test', managesLand: false }) });
+
+  const behindProxy = await serve({ ...limits, TRUSTED_PROXIES: '127.0.0.1' });
+  try {
+    const first = ip();
+    let second = ip();
+    while (second === first) second = ip();
+    expect((await signUp(behindProxy.url, first)).status).toBe(201);
+    expect((await signUp(behindProxy.url, first)).status).toBe(201);
+    const third = await signUp(behindProxy.url, first);
+    expect(third.status, 'the third from one client address in the hour').toBe(429);
+    expect(third.body).toContain('from your network');
+    expect((await signUp(behindProxy.url, second)).status, 'another client behind the proxy').toBe(201);
+  } finally {
+    await behindProxy.stop();
+  }
+
+  // With no trusted proxy, every request counts against the socket's own address (127.0.0.1, already
+  // past 2 in this hour from the sign-ins above and the run's set-up), whatever address it names.
+  const direct = await serve(limits);
+  try {
+    for (let n = 0; n < 3; n++) {
+      const answer = await signUp(direct.url, ip());
+      expect(answer.status).toBe(429);
+    }
+  } finally {
+    await direct.stop();
+  }
+});
+
+test('given the session cookie, HTTPS takes only the __Secure- one and HTTP only the plain one; the scheme is believed from a trusted proxy only', async () => {
+  const state = JSON.parse(readFileSync(sessionFile('forager@example.org'), 'utf8')) as { cookies: { name: string; value: string }[] };
+  const token = state.cookies.find((c) => c.name.endsWith('authjs.session-token'))?.value ?? '';
+  expect(token).not.toBe('');
+  const me = (url: string, cookie: string, headers: Record<string, string> = {}) => raw(`${url}/api/me`, { headers: { cookie, ...headers } }).then((r) => r.status);
+  const secure = `__Secure-authjs.session-token=${token}`;
+  const plain = `authjs.session-token=${token}`;
+
+  const proxied = await serve({ TRUSTED_PROXIES: '127.0.0.1' });
+  try {
+    expect(await me(proxied.url, secure, { 'x-forwarded-proto': 'https' })).toBe(200);
+    expect(await me(proxied.url, plain, { 'x-forwarded-proto': 'https' })).toBe(401);
+    expect(await me(proxied.url, plain)).toBe(200);
+    expect(await me(proxied.url, secure)).toBe(401);
+  } finally {
+    await proxied.stop();
+  }
+  // Without a trusted proxy a client's X-Forwarded-Proto is dropped: the request is plain HTTP.
+  expect(await me(baseURL, secure, { 'x-forwarded-proto': 'https' })).toBe(401);
+  expect(await me(baseURL, plain, { 'x-forwarded-proto': 'https' })).toBe(200);
+});
+
+test('given a database that does not answer, health says so in one word and keeps the error for the log', async () => {
+  const server = await serve({ DATABASE_URL: `postgres://app@127.0.0.1:${await freePort()}/nowhere` });
+  try {
+    const health = await raw(`${server.url}/api/health`);
+    expect(health.status).toBe(503);
+    expect(JSON.parse(health.body)).toEqual({ ok: false, status: 'database-unreachable' });
+    await expect.poll(() => server.output()).toContain('health: the database did not answer');
+  } finally {
+    await server.stop();
+  }
+});
