@@ -21,7 +21,7 @@ import { benchPositions, regionAreaKm2 } from './bench/parcels';
 import { auditTargets, report, type AuditResults, type BenchResults } from './bench/report';
 import { describeParcels, prepareMembers, prewarm, seedBench } from './bench/seed';
 import { coveringCounts, measureSql } from './bench/sql-lookup';
-import { ensureDatabase, ensurePostgres, localDir, root, say, startCluster } from './lib/setup.mjs';
+import { databaseUrls, ensureAppRole, ensureDatabase, ensurePostgres, localDir, localSecret, root, say, startCluster } from './lib/setup.mjs';
 
 const setting = (name: string, fallback: number) => {
   const value = Number(process.env[name] ?? fallback);
@@ -44,7 +44,11 @@ ensurePostgres();
 const sharedBuffersMb = Math.min(4096, Math.floor(totalmem() / 2 ** 20 / 4));
 const stopDatabase = startCluster({ dir: join(localDir, 'pg-bench'), port: pgPort, settings: [`shared_buffers=${sharedBuffersMb}MB`] });
 ensureDatabase({ port: pgPort, name: 'tallywood_bench' });
-const databaseUrl = `postgres://app@127.0.0.1:${pgPort}/tallywood_bench`;
+const password = localSecret('database-password');
+ensureAppRole({ port: pgPort, password });
+// The bench migrates, seeds and measures its statements as the tables' owner (the cluster's
+// superuser); the app it starts signs in as the app's role, as `npm start`'s does.
+const { owner: databaseUrl, app: appDatabaseUrl } = databaseUrls({ port: pgPort, name: 'tallywood_bench', password });
 
 let server: ChildProcess | null = null;
 const sql = postgres(databaseUrl, { max: concurrency, onnotice: () => {} });
@@ -81,7 +85,7 @@ try {
   try {
     entry = findOrBuildServer(say).entry;
     say(`starting ${entry.replace(`${root}/`, '')} on 127.0.0.1:4341 against the bench database…`);
-    server = await startServer(entry, databaseUrl);
+    server = await startServer(entry, appDatabaseUrl);
     say(`check-ins over HTTP: ${requests} from ${concurrency} clients…`);
     http = { ...(await measureCheckIns(server.pid, tokens, benchPositions(3, requests + 1000, parcelTarget), { concurrency, count: requests, maxMs })), entry };
   } catch (error) {

@@ -2,7 +2,7 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import {
-  bin, ensureDatabase, ensureDependencies, ensurePostgres, fail, localDir, localSecret, root, run, say,
+  bin, databaseUrls, ensureAppRole, ensureDatabase, ensureDependencies, ensurePostgres, fail, localDir, localSecret, root, run, say,
   startChild, startCluster, waitForHttp,
 } from './lib/setup.mjs';
 
@@ -19,16 +19,23 @@ const started = Date.now();
 ensureDependencies();
 
 let stopDatabase = () => {};
+/** The app signs in as a role that owns nothing; migrations and the demo run as the tables' owner. */
 let databaseUrl = process.env.DATABASE_URL;
+let ownerUrl = process.env.DATABASE_OWNER_URL ?? databaseUrl;
 if (!databaseUrl) {
   ensurePostgres();
   try {
     stopDatabase = startCluster({ dir: join(localDir, 'pg'), port: pgPort });
     ensureDatabase({ port: pgPort, name: 'tallywood' });
+    const password = localSecret('database-password');
+    ensureAppRole({ port: pgPort, password });
+    const urls = databaseUrls({ port: pgPort, name: 'tallywood', password });
+    databaseUrl = urls.app;
+    ownerUrl = urls.owner;
   } catch (error) {
+    stopDatabase();
     fail(error instanceof Error ? error.message : String(error));
   }
-  databaseUrl = `postgres://app@127.0.0.1:${pgPort}/tallywood`;
 }
 
 const useCatcher = localMode && !process.env.SMTP_URL;
@@ -62,8 +69,8 @@ process.on('SIGINT', () => stop(0));
 process.on('SIGTERM', () => stop(0));
 
 try {
-  run(bin('tsx'), ['scripts/migrate.ts'], { env: { ...process.env, ...env } });
-  run(bin('tsx'), ['scripts/seed.ts'], { env: { ...process.env, ...env } });
+  run(bin('tsx'), ['scripts/migrate.ts'], { env: { ...process.env, ...env, DATABASE_OWNER_URL: ownerUrl } });
+  run(bin('tsx'), ['scripts/seed.ts'], { env: { ...process.env, ...env, DATABASE_OWNER_URL: ownerUrl } });
   if (useCatcher) {
     children.push(
       startChild('mail', bin('tsx'), ['scripts/mail-catcher.ts'], {

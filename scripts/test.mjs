@@ -8,8 +8,8 @@ import { randomBytes } from 'node:crypto';
 import { rmSync } from 'node:fs';
 import { join } from 'node:path';
 import {
-  answers, bin, ensureChromium, ensureDatabase, ensureDependencies, ensureFaketime, ensurePostgres, fakeClockEnv, localDir, run, say, startChild, startCluster,
-  stopCluster, waitForHttp,
+  answers, bin, databaseUrls, ensureAppRole, ensureChromium, ensureDatabase, ensureDependencies, ensureFaketime, ensurePostgres, fakeClockEnv, localDir, run, say,
+  startChild, startCluster, stopCluster, waitForHttp,
 } from './lib/setup.mjs';
 
 const pgPort = Number(process.env.TALLYWOOD_TEST_PG_PORT ?? 54339);
@@ -74,11 +74,20 @@ const common = {
   STRIPE_WEBHOOK_SECRET: 'whsec_tallywood_test',
 };
 
-const databaseEnv = (port) => ({
-  DATABASE_URL: `postgres://app@127.0.0.1:${port}/tallywood_test`,
-  /** A superuser connection to the test cluster, for tests that make throwaway databases. */
-  TEST_ADMIN_DATABASE_URL: `postgres://app@127.0.0.1:${port}/postgres`,
-});
+/** The app role's password on the test clusters, each made fresh and listening on loopback only. */
+const testDatabasePassword = 'test-database-password-not-for-production';
+
+const databaseEnv = (port) => {
+  const urls = databaseUrls({ port, name: 'tallywood_test', password: testDatabasePassword });
+  return {
+    /** The app's role, as in production: the tests and the server run with only its grants. */
+    DATABASE_URL: urls.app,
+    /** The tables' owner, for the migrations and the demo. */
+    DATABASE_OWNER_URL: urls.owner,
+    /** A superuser connection to the test cluster, for tests that make throwaway databases. */
+    TEST_ADMIN_DATABASE_URL: `postgres://app@127.0.0.1:${port}/postgres`,
+  };
+};
 
 /**
  * The local fakes of the mail and payment services, empty and on a run's clock: each run starts from
@@ -119,10 +128,11 @@ const step = (label, command, args, env) => {
   }
 };
 
-/** A fresh cluster, migrated and seeded (the demo is moved to that clock's today). */
+/** A fresh cluster with the app's role, migrated and seeded as the owner (the demo is moved to that clock's today). */
 function prepareDatabase({ dir, port, clock = {} }) {
   const stop = startCluster({ dir, port, fresh: true, env: clock });
   ensureDatabase({ port, name: 'tallywood_test' });
+  ensureAppRole({ port, password: testDatabasePassword });
   const env = { ...common, ...databaseEnv(port), ...clock };
   run(bin('tsx'), ['scripts/migrate.ts'], { env });
   run(bin('tsx'), ['scripts/seed.ts'], { env });
