@@ -1,6 +1,8 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { validateBoundaryForSave } from '../../src/db/boundaries.queries';
 import { applyMigrations } from '../../src/db/migrations';
 import { clubs, parcels, permits } from '../../src/db/schema';
+import type { BoundaryGeometry } from '../../src/lib/boundaries/types';
 import type { Forager, LonLat } from '../../src/lib/field/types';
 import { checkIn } from '../../src/server/field/check-in';
 import { createThrowawayDatabase, insertUser, migrationsFolder, one, type ThrowawayDatabase } from './throwaway-database';
@@ -9,7 +11,8 @@ import { createThrowawayDatabase, insertUser, migrationsFolder, one, type Throwa
  * What a landowner's boundary check and a forager's check-in may tell about other people's parcels.
  * A check-in answers only with parcels the forager may know of: listed and open to requests (what
  * My permits shows everyone), their own listed parcels, and listed parcels on which they or one of
- * their clubs hold a permit. Drafts and archived parcels take no check-ins.
+ * their clubs hold a permit. Drafts and archived parcels take no check-ins. An overlap with another
+ * owner's listed parcel is a warning that names nothing; another owner's draft is not counted.
  *
  * Every parcel is a square of 0.004° (about 315 m east–west and 445 m north–south at 45°N), each
  * 0.04° (about 3 km) from the next, so a 5 m fix sees one parcel at a time. The remote pair, a
@@ -22,11 +25,13 @@ const db = () => {
 };
 
 const size = 0.004;
-const square = (west: number, south: number, side = size) => ({
+const square = (west: number, south: number, side = size): BoundaryGeometry => ({
   type: 'MultiPolygon' as const,
   coordinates: [[[[west, south], [west + side, south], [west + side, south + side], [west, south + side], [west, south]]]],
 });
 const middle = (west: number, south: number): LonLat => [west + size / 2, south + size / 2];
+/** A probing square of 0.0004° (about 30 m × 45 m) in the middle of the parcel whose south-west corner is given. */
+const probe = (west: number, south: number) => square(west + size / 2 - 0.0002, south + size / 2 - 0.0002, 0.0004);
 
 const at = {
   adasWood: [-75.0, 45.0], neighbourPrivate: [-74.96, 45.0], neighbourOpen: [-74.92, 45.0], calsDraft: [-74.88, 45.0],
@@ -156,5 +161,56 @@ describe('check-ins answer only with parcels the forager may know of', () => {
     const answer = await checkInAs(fay(), middle(...at.archived));
     expect(answer).toMatchObject({ verdict: 'outside', parcel: null });
     expect(mentions(answer, ['archived'])).toEqual([]);
+  });
+});
+
+describe('overlap warnings name only the landowner’s own parcels', () => {
+  const check = (ownerId: string, geometry: BoundaryGeometry, excludeParcelId?: string) =>
+    validateBoundaryForSave(db(), geometry, { ownerId, ...(excludeParcelId ? { excludeParcelId } : {}) }).then((verdict) => {
+      if (!verdict.ok) throw new Error(JSON.stringify(verdict.problems));
+      return verdict;
+    });
+
+  it("given a probing square inside another owner's listed parcel, it warns of land registered by someone else with no name, id or area", async () => {
+    const verdict = await check(ids.ada, probe(...at.neighbourPrivate));
+    expect(verdict.warnings).toEqual([{ code: 'overlap', message: expect.stringContaining('overlaps land registered by someone else') }]);
+    expect(verdict.warnings[0]?.message).not.toMatch(/\d/);
+    expect(mentions(verdict.warnings, ['neighbourPrivate'])).toEqual([]);
+  });
+
+  it("given a probing square inside another owner's draft, there is no warning at all", async () => {
+    const verdict = await check(ids.ada, probe(...at.calsDraft));
+    expect(verdict.warnings).toEqual([]);
+  });
+
+  it("given a probing square inside another owner's archived parcel, there is no warning", async () => {
+    expect((await check(ids.ada, probe(...at.archived))).warnings).toEqual([]);
+  });
+
+  it('given a square over the landowner’s own parcel, the warning names that parcel and the area shared', async () => {
+    const verdict = await check(ids.ada, probe(...at.adasWood));
+    expect(verdict.warnings).toEqual([{
+      code: 'overlap-own',
+      message: expect.stringContaining(`your parcel “${names.adasWood}” by`),
+      parcels: [{ parcelId: parcelIds.adasWood, name: names.adasWood, overlapM2: expect.any(Number) }],
+    }]);
+    const [warning] = verdict.warnings;
+    const shared = warning && 'parcels' in warning ? warning.parcels[0]?.overlapM2 : 0;
+    // 0.0004° × 0.0004° at 45°N: about 31.5 m × 44.5 m.
+    expect(shared).toBeGreaterThan(1_300);
+    expect(shared).toBeLessThan(1_500);
+  });
+
+  it("given a square across one of the landowner's parcels and another owner's, it names only their own", async () => {
+    // From Ada's Wood's east half to Ben's Private Lot's west half: Ben's own lot and Ada's land.
+    const verdict = await check(ids.ben, square(at.adasWood[0] + size / 2, 45.0, 0.04));
+    expect(verdict.warnings.map((w) => w.code).sort()).toEqual(['overlap', 'overlap-own']);
+    expect(mentions(verdict.warnings, ['adasWood'])).toEqual([]);
+    expect(mentions(verdict.warnings, ['neighbourPrivate'])).toEqual(['neighbourPrivate']);
+  });
+
+  it("given a parcel's own new boundary, the parcel being edited is not counted against itself", async () => {
+    const [west, south] = at.adasWood;
+    expect((await check(ids.ada, square(west, south, size * 1.1), parcelIds.adasWood)).warnings).toEqual([]);
   });
 });
