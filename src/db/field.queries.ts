@@ -148,12 +148,15 @@ export function usageQuery({ forager, windows }: { forager: Forager; windows: Us
     from w`;
 }
 
-/** The boundaries of parcels the forager holds a live permit on (personally or through a club), for the Field map. */
+/**
+ * The boundaries of listed parcels the forager holds a live permit on (personally or through a club),
+ * for the Field map: the parcels a check-in can answer with, never a draft or an archived parcel.
+ */
 export async function listPermittedBoundaries(db: Executor, { foragerId, clubIds }: { foragerId: string; clubIds: string[] }) {
   const rows = await db.execute<{ id: string; name: string; boundary: ParcelFacts['boundary'] }>(sql`
     select p.id, p.name, ST_AsGeoJSON(p.boundary, 6)::json as boundary
     from parcels p
-    where p.id in (select pm.parcel_id from permits pm
+    where p.status = 'listed' and p.id in (select pm.parcel_id from permits pm
       where pm.state in ('approved', 'active') and (pm.holder_user_id = ${foragerId} or pm.holder_club_id = any(${uuidArray(clubIds)})))
     order by p.name`);
   return rows.map((r) => ({ id: r.id, name: r.name, boundary: r.boundary }));

@@ -1,5 +1,6 @@
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { validateBoundaryForSave } from '../../src/db/boundaries.queries';
+import { listPermittedBoundaries } from '../../src/db/field.queries';
 import { applyMigrations } from '../../src/db/migrations';
 import { clubs, parcels, permits } from '../../src/db/schema';
 import type { BoundaryGeometry } from '../../src/lib/boundaries/types';
@@ -161,6 +162,13 @@ describe('check-ins answer only with parcels the forager may know of', () => {
     const answer = await checkInAs(fay(), middle(...at.archived));
     expect(answer).toMatchObject({ verdict: 'outside', parcel: null });
     expect(mentions(answer, ['archived'])).toEqual([]);
+  });
+});
+
+describe("the Field map's parcels", () => {
+  it('given permits on listed parcels and on a draft, it draws only the listed ones', async () => {
+    const drawn = await listPermittedBoundaries(db(), { foragerId: ids.fay, clubIds: [ids.club] });
+    expect(drawn.map((parcel) => parcel.name)).toEqual([names.clubLot, names.permitted]);
   });
 });
 
