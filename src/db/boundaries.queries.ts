@@ -69,12 +69,12 @@ export type OverlappingParcel = { parcelId: string; name: string; overlapM2: num
 export type Overlaps = { own: OverlappingParcel[]; othersLand: boolean };
 
 /**
- * What `geometry` shares, by more than 1 m², with registered land: ST_Intersects through the GiST
+ * What `geometry` shares, by more than 1 m², with other parcels: ST_Intersects through the GiST
  * index, then the geodesic area of the intersection; parcels that only share an edge or a corner do
  * not count. `own` lists the owner's own parcels (drafts too, not archived) with the area shared.
  * `othersLand` only says whether another owner's listed parcel is under it: their name, id, area and
- * boundary never leave the database, so that probing squares cannot trace a neighbour's land, and
- * other owners' drafts do not count (they are not registered until a verified landowner lists them).
+ * boundary never leave the database, so a probing square learns at most that someone's land is there,
+ * and other owners' drafts do not count (they are not registered until a verified landowner lists them).
  * `geometry` should be valid (inspectBoundary); an invalid one is repaired with ST_MakeValid for this test only.
  */
 export async function findOverlaps(
