@@ -66,32 +66,40 @@ export async function inspectBoundary(db: Executor, geometry: unknown): Promise<
 }
 
 export type OverlappingParcel = { parcelId: string; name: string; overlapM2: number };
+export type Overlaps = { own: OverlappingParcel[]; othersLand: boolean };
 
 /**
- * Other owners' parcels (not archived) that share more than 1 m² with `geometry`: ST_Intersects through
- * the GiST index, then the geodesic area of the intersection. Parcels that only share an edge or a
- * corner are not returned. Only the id, name and overlap leave this function — never another owner's
- * boundary or contact details. `geometry` should be valid (inspectBoundary); an invalid one is repaired
- * with ST_MakeValid for this test only.
+ * What `geometry` shares, by more than 1 m², with other parcels: ST_Intersects through the GiST
+ * index, then the geodesic area of the intersection; parcels that only share an edge or a corner do
+ * not count. `own` lists the owner's own parcels (drafts too, not archived) with the area shared.
+ * `othersLand` only says whether another owner's listed parcel is under it: their name, id, area and
+ * boundary never leave the database, so a probing square learns at most that someone's land is there,
+ * and other owners' drafts do not count (they are not registered until a verified landowner lists them).
+ * `geometry` should be valid (inspectBoundary); an invalid one is repaired with ST_MakeValid for this test only.
  */
-export async function findOverlappingParcels(
+export async function findOverlaps(
   db: Executor,
   { geometry, ownerId, excludeParcelId }: { geometry: unknown; ownerId: string; excludeParcelId?: string },
-): Promise<OverlappingParcel[]> {
+): Promise<Overlaps> {
   const exclude = excludeParcelId && isUuid(excludeParcelId) ? sql`and ${parcels.id} <> ${excludeParcelId}` : sql``;
-  const rows = await db.execute<OverlappingParcel>(sql`
+  const rows = await db.execute<{ own: OverlappingParcel[]; others_land: boolean }>(sql`
     with input as (select ${asBoundary(geometry)} as g0),
-         candidate as (select case when ST_IsValid(g0) then g0 else ST_MakeValid(g0) end as g from input)
-    select id as "parcelId", name, overlap as "overlapM2" from (
-      select ${parcels.id} as id, ${parcels.name} as name,
-             ST_Area(ST_CollectionExtract(ST_Intersection(${parcels.boundary}, candidate.g), 3)::geography) as overlap
-      from ${parcels}, candidate
-      where ST_Intersects(${parcels.boundary}, candidate.g)
-        and ${parcels.ownerId} <> ${ownerId} and ${parcels.status} <> 'archived' ${exclude}
-    ) as shared
-    where overlap > 1
-    order by overlap desc, name`);
-  return [...rows].map((row) => ({ parcelId: row.parcelId, name: row.name, overlapM2: Number(row.overlapM2) }));
+         candidate as (select case when ST_IsValid(g0) then g0 else ST_MakeValid(g0) end as g from input),
+         shared as (
+           select ${parcels.id} as id, ${parcels.name} as name, ${parcels.ownerId} = ${ownerId} as own,
+                  ST_Area(ST_CollectionExtract(ST_Intersection(${parcels.boundary}, candidate.g), 3)::geography) as overlap
+           from ${parcels}, candidate
+           where ST_Intersects(${parcels.boundary}, candidate.g) and ${parcels.status} <> 'archived'
+             and (${parcels.ownerId} = ${ownerId} or ${parcels.status} = 'listed') ${exclude})
+    select coalesce(json_agg(json_build_object('parcelId', id, 'name', name, 'overlapM2', overlap) order by overlap desc, name) filter (where own), '[]') as own,
+           coalesce(bool_or(not own), false) as others_land
+    from shared
+    where overlap > 1`);
+  const [row] = [...rows];
+  return {
+    own: (row?.own ?? []).map((parcel) => ({ parcelId: parcel.parcelId, name: parcel.name, overlapM2: Number(parcel.overlapM2) })),
+    othersLand: row?.others_land === true,
+  };
 }
 
 /**
@@ -109,7 +117,10 @@ export async function zoneWithinParcel(db: Executor, { zone, parcelId }: { zone:
   return result.ok && result.value;
 }
 
-export type OverlapWarning = { code: 'overlap'; message: string; parcels: OverlappingParcel[] };
+/** An overlap with the owner's own parcels names them; one with anyone else's land names nothing. */
+export type OverlapWarning =
+  | { code: 'overlap-own'; message: string; parcels: OverlappingParcel[] }
+  | { code: 'overlap'; message: string };
 export type BoundaryVerdict =
   | { ok: true; areaM2: number; boundary: MultiPolygonGeometry; warnings: OverlapWarning[] }
   | { ok: false; problems: BoundaryProblem[] };
@@ -118,7 +129,8 @@ export type BoundaryVerdict =
  * The pure checks, then PostGIS: the verdict an endpoint gives before a parcel's boundary is saved.
  * On success `boundary` is the geometry to store (a MultiPolygon, altitude dropped, exteriors
  * counter-clockwise per RFC 7946 §3.1.6) and `areaM2` PostGIS's spheroidal area for `parcels.area_m2`.
- * Overlap with other owners' parcels is a warning, not a refusal: boundaries on the ground are disputed.
+ * Overlap is a warning, not a refusal: boundaries on the ground are disputed. Only the owner's own
+ * parcels are named; another owner's listed land is only said to be there (findOverlaps).
  */
 export async function validateBoundaryForSave(
   db: Executor,
@@ -127,14 +139,23 @@ export async function validateBoundaryForSave(
 ): Promise<BoundaryVerdict> {
   const checked = await checkForSave(db, geometry, limits);
   if (!checked.ok) return checked;
-  const overlaps = await findOverlappingParcels(db, { geometry: checked.boundary, ownerId, ...(excludeParcelId ? { excludeParcelId } : {}) });
-  const warnings: OverlapWarning[] = overlaps.length === 0 ? [] : [{
-    code: 'overlap',
-    parcels: overlaps,
-    message: `This boundary overlaps ${overlaps.length === 1 ? 'a parcel' : `${overlaps.length} parcels`} another landowner has registered: ${overlaps
-      .map((parcel) => `“${parcel.name}” by ${formatArea(parcel.overlapM2)}`)
-      .join(', ')}. Check your corners against the deed or survey; you can still save, and the overlap stays on record.`,
-  }];
+  const { own, othersLand } = await findOverlaps(db, { geometry: checked.boundary, ownerId, ...(excludeParcelId ? { excludeParcelId } : {}) });
+  const warnings: OverlapWarning[] = [];
+  if (own.length > 0) {
+    warnings.push({
+      code: 'overlap-own',
+      parcels: own,
+      message: `This boundary overlaps ${own.length === 1 ? 'your parcel' : 'your parcels'} ${own
+        .map((parcel) => `“${parcel.name}” by ${formatArea(parcel.overlapM2)}`)
+        .join(', ')}. Check the edge they share; you can still save.`,
+    });
+  }
+  if (othersLand) {
+    warnings.push({
+      code: 'overlap',
+      message: 'This boundary overlaps land registered by someone else. Check your corners against the deed or survey; you can still save, and the overlap stays on record.',
+    });
+  }
   return { ok: true, areaM2: checked.areaM2, boundary: checked.boundary, warnings };
 }
 

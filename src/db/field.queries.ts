@@ -42,12 +42,25 @@ function parcelFactsQuery(forager: Forager, where: SQL) {
 type FactsNear = { longitude: number; latitude: number; radiusM: number; forager: Forager };
 
 /**
+ * The parcels a check-in may answer with: those the forager may know of. A listed parcel open to
+ * requests (anyone sees it on My permits), one of their own, or one on which they or one of their
+ * clubs hold a permit in any state (they asked for it or were granted it). Drafts and archived
+ * parcels never, whoever owns them or holds a permit there: a draft is not in force yet, and
+ * naming another owner's parcel or its distance would trace its boundary for whoever asks.
+ */
+function knownToForager(forager: Forager) {
+  return sql`p.status = 'listed' and (p.open_to_requests or p.owner_id = ${forager.id}::text
+      or exists (select 1 from permits k where k.parcel_id = p.id
+        and (k.holder_user_id = ${forager.id}::text or k.holder_club_id = any(${uuidArray(forager.clubIds)}))))`;
+}
+
+/**
  * The statement behind loadParcelFactsNear: the candidates come through the GiST index on the
- * boundary's geography (ST_DWithin on geography uses it; no scan of every parcel). Its generic plan
- * is checked in tests/integration/check-in-plans.test.ts.
+ * boundary's geography (ST_DWithin on geography uses it; no scan of every parcel), and only those
+ * the forager may know of count. Its generic plan is checked in tests/integration/check-in-plans.test.ts.
  */
 export function parcelFactsNearQuery({ longitude, latitude, radiusM, forager }: FactsNear) {
-  return parcelFactsQuery(forager, sql`p.status <> 'archived'
+  return parcelFactsQuery(forager, sql`${knownToForager(forager)}
       and ST_DWithin(p.boundary::geography, ST_SetSRID(ST_MakePoint(${longitude}::float8, ${latitude}::float8), 4326)::geography, ${radiusM}::float8)`);
 }
 
@@ -67,7 +80,7 @@ function toFacts(p: Row): ParcelFacts {
   };
 }
 
-/** The parcels within `radiusM` of a position, with everything the engine needs, in one statement. */
+/** The parcels within `radiusM` of a position that the forager may know of, with everything the engine needs, in one statement. */
 export async function loadParcelFactsNear(db: Executor, near: FactsNear): Promise<ParcelFacts[]> {
   return (await executePrepared<Row>(db, parcelFactsNearQuery(near))).map(toFacts);
 }
@@ -135,12 +148,15 @@ export function usageQuery({ forager, windows }: { forager: Forager; windows: Us
     from w`;
 }
 
-/** The boundaries of parcels the forager holds a live permit on (personally or through a club), for the Field map. */
+/**
+ * The boundaries of listed parcels the forager holds a live permit on (personally or through a club),
+ * for the Field map: the parcels a check-in can answer with, never a draft or an archived parcel.
+ */
 export async function listPermittedBoundaries(db: Executor, { foragerId, clubIds }: { foragerId: string; clubIds: string[] }) {
   const rows = await db.execute<{ id: string; name: string; boundary: ParcelFacts['boundary'] }>(sql`
     select p.id, p.name, ST_AsGeoJSON(p.boundary, 6)::json as boundary
     from parcels p
-    where p.id in (select pm.parcel_id from permits pm
+    where p.status = 'listed' and p.id in (select pm.parcel_id from permits pm
       where pm.state in ('approved', 'active') and (pm.holder_user_id = ${foragerId} or pm.holder_club_id = any(${uuidArray(clubIds)})))
     order by p.name`);
   return rows.map((r) => ({ id: r.id, name: r.name, boundary: r.boundary }));

@@ -5,7 +5,13 @@ import { allowanceSchema, closureSchema, hazardSchema, newParcelSchema, parcelUp
 import { accessRequestSchema, decisionSchema, grantPermitSchema, permitLimitSchema, revokeSchema } from '../lib/permits.schemas';
 import { checkInSchema, correctionSchema, harvestSchema } from '../lib/field.schemas';
 
-type Route = { method: 'get' | 'post' | 'put' | 'patch' | 'delete'; path: string; summary: string; body?: z.ZodType; auth?: boolean; tag: string };
+type Route = { method: 'get' | 'post' | 'put' | 'patch' | 'delete'; path: string; summary: string; description?: string; body?: z.ZodType; auth?: boolean; tag: string };
+
+/** What a boundary's overlap warnings say, for the endpoints that check one. */
+const overlapWarnings =
+  'Overlaps are warnings, never refusals. `overlap-own` names your own parcels (drafts too) with `parcels: [{ parcelId, name, overlapM2 }]`; ' +
+  "`overlap` only says that the boundary overlaps land registered by someone else (another owner's listed parcel), with no name, id, area or " +
+  "boundary. Other owners' drafts and archived parcels are not counted.";
 
 /** Every JSON endpoint; request bodies are the zod schemas the endpoints validate with. */
 const routes: Route[] = [
@@ -14,10 +20,10 @@ const routes: Route[] = [
   { method: 'get', path: '/api/me', summary: 'The signed-in person and their roles', tag: 'accounts' },
   { method: 'get', path: '/api/health', summary: 'Database, PostGIS and migrations', auth: false, tag: 'system' },
   { method: 'get', path: '/api/parcels', summary: "The landowner's parcels", tag: 'parcels' },
-  { method: 'post', path: '/api/parcels', summary: 'Create a parcel (boundary checked; overlaps are warnings)', body: newParcelSchema, tag: 'parcels' },
+  { method: 'post', path: '/api/parcels', summary: 'Create a parcel (boundary checked; overlaps are warnings)', description: overlapWarnings, body: newParcelSchema, tag: 'parcels' },
   { method: 'get', path: '/api/parcels/{id}', summary: 'One of your parcels', tag: 'parcels' },
-  { method: 'patch', path: '/api/parcels/{id}', summary: 'Change settings or boundary', body: parcelUpdateSchema, tag: 'parcels' },
-  { method: 'post', path: '/api/boundaries/check', summary: 'Check an uploaded file (multipart `file`: GeoJSON, KML, GPX) or a drawn geometry; saves nothing', tag: 'parcels' },
+  { method: 'patch', path: '/api/parcels/{id}', summary: 'Change settings or boundary', description: overlapWarnings, body: parcelUpdateSchema, tag: 'parcels' },
+  { method: 'post', path: '/api/boundaries/check', summary: 'Check an uploaded file (multipart `file`: GeoJSON, KML, GPX) or a drawn geometry; saves nothing', description: overlapWarnings, tag: 'parcels' },
   { method: 'post', path: '/api/parcels/{id}/zones', summary: 'Add a no-harvest zone inside the parcel', body: zoneSchema, tag: 'parcel rules' },
   { method: 'delete', path: '/api/parcels/{id}/zones/{zoneId}', summary: 'Remove a zone', tag: 'parcel rules' },
   { method: 'post', path: '/api/parcels/{id}/closures', summary: 'Add a closure', body: closureSchema, tag: 'parcel rules' },
@@ -36,7 +42,11 @@ const routes: Route[] = [
   { method: 'post', path: '/api/permits/{id}/accept-terms', summary: "Accept the parcel's current terms", tag: 'permits' },
   { method: 'post', path: '/api/permits/{id}/checkout', summary: 'Start paying the fee; answers the hosted checkout URL', tag: 'payments' },
   { method: 'post', path: '/api/payments/webhook', summary: "The payment provider's signed events (idempotent)", auth: false, tag: 'payments' },
-  { method: 'post', path: '/api/check-ins', summary: 'Check in: position and accuracy radius; answers the verdict, hazards and remaining quantities', body: checkInSchema, tag: 'field' },
+  {
+    method: 'post', path: '/api/check-ins', summary: 'Check in: position and accuracy radius; answers the verdict, hazards and remaining quantities', body: checkInSchema, tag: 'field',
+    description: 'Answers only with parcels you may know of: listed parcels open to requests, your own listed parcels, and listed parcels on which you or one of your clubs hold a permit. ' +
+      'Drafts and archived parcels never take part. When no such parcel is near, `parcel` and `distanceToEdgeM` are null and nothing is named.',
+  },
   { method: 'post', path: '/api/harvest-entries', summary: 'Record a harvest entry: one quantity per measure its limits count (idempotent by key; over a limit needs acknowledgeOver)', body: harvestSchema, tag: 'field' },
   { method: 'post', path: '/api/harvest-entries/{id}/corrections', summary: "Correct one of your entries: signed quantities and a reason, counted on the day, visit and permit of the entry's chain (no check-in needed)", body: correctionSchema, tag: 'field' },
   { method: 'post', path: '/api/harvest-entries/preview', summary: 'The tallies as they would be after this entry; saves nothing', body: harvestSchema, tag: 'field' },
@@ -80,6 +90,7 @@ export function openApiDocument(origin: string) {
       ...paths[route.path],
       [route.method]: {
         summary: route.summary,
+        ...(route.description ? { description: route.description } : {}),
         tags: [route.tag],
         ...(parameters.length ? { parameters } : {}),
         ...(route.auth === false ? { security: [] } : {}),

@@ -77,8 +77,14 @@ describe('outside and edge', () => {
     expect(answer).toMatchObject({ verdict: 'outside', parcel: null, permitId: null, species: [] });
     expect(answer.reasons[1]).toMatch(/^The nearest is Birch Hollow, about [\d.]+ km away\.$/);
   });
-  it('given no candidate parcels, it is outside with no distance', () => {
-    expect(check({ parcels: [] })).toMatchObject({ verdict: 'outside', distanceToEdgeM: null, localDate: '2026-10-01' });
+  it('given no candidate parcels, it is outside with no distance, says none is near and that the land may still be someone\'s', () => {
+    const answer = check({ parcels: [] });
+    expect(answer).toMatchObject({ verdict: 'outside', distanceToEdgeM: null, localDate: '2026-10-01' });
+    expect(answer.reasons).toEqual([
+      'You are not on any parcel open to you in Tallywood, so nothing here is covered by a permit.',
+      'None is near here.',
+      'The land may still belong to someone: ask before you pick.',
+    ]);
   });
   it('given 4.4 m inside the west edge with a 10 m radius, it is edge, 4.4 m from the edge, and asks to move about 6 m in', () => {
     const position = direct([-72.852, 43.9485], 90, 4.4);

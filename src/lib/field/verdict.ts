@@ -144,11 +144,13 @@ export function decideCheckIn(input: CheckIn): CheckInAnswer {
     };
   }
 
+  // The candidates are the parcels this forager may know of (src/db/field.queries.ts), so land here may still be someone's.
   return {
     verdict: 'outside',
     reasons: [
-      'You are not on any parcel registered in Tallywood, so nothing here is covered by a permit.',
-      ...(nearest ? [`The nearest is ${nearest.parcel.name}, ${formatDistance(nearest.placement.distanceToEdgeM)} away.`] : []),
+      'You are not on any parcel open to you in Tallywood, so nothing here is covered by a permit.',
+      nearest ? `The nearest is ${nearest.parcel.name}, ${formatDistance(nearest.placement.distanceToEdgeM)} away.` : 'None is near here.',
+      'The land may still belong to someone: ask before you pick.',
     ],
     parcel: null,
     permitId: null,
