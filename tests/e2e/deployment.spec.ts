@@ -56,12 +56,12 @@ async function serve(env: Record<string, string | undefined>, { waitForReady = t
 }
 
 /** A raw GET or POST: every header as given, Host included. */
-function raw(url: string, { method = 'GET', headers = {}, body }: { method?: string; headers?: Record<string, string>; body?: string } = {}): Promise<{ status: number; body: string }> {
+function raw(url: string, { method = 'GET', headers = {}, body }: { method?: string; headers?: Record<string, string>; body?: string } = {}): Promise<{ status: number; body: string; location?: string }> {
   return new Promise((resolve, reject) => {
     const req = httpRequest(url, { method, headers: { ...headers, ...(body ? { 'content-length': String(Buffer.byteLength(body)) } : {}) } }, (res) => {
       let text = '';
       res.on('data', (chunk) => (text += chunk));
-      res.on('end', () => resolve({ status: res.statusCode ?? 0, body: text }));
+      res.on('end', () => resolve({ status: res.statusCode ?? 0, body: text, location: res.headers.location }));
     });
     req.on('error', reject);
     req.end(body);
@@ -206,6 +206,35 @@ test('given a database that does not answer, health says so in one word and keep
     expect(health.status).toBe(503);
     expect(JSON.parse(health.body)).toEqual({ ok: false, status: 'database-unreachable' });
     await expect.poll(() => server.output()).toContain('health: the database did not answer');
+  } finally {
+    await server.stop();
+  }
+});
+
+test('given a sign-in link opened a second time, the visitor is told it was used, and the log has one line for it, not a stack trace', async () => {
+  const server = await serve({});
+  try {
+    const email = `used-link-${randomUUID().slice(0, 8)}@example.org`;
+    const signUp = await raw(`${server.url}/api/sign-up`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, name: 'Used Link', managesLand: false }) });
+    expect(signUp.status, signUp.body).toBe(201);
+    let link = '';
+    await expect
+      .poll(async () => {
+        const { messages } = JSON.parse((await raw(`${server.url}/api/mailbox?to=${encodeURIComponent(email)}`)).body) as { messages: { text: string }[] };
+        link = messages[0]?.text.match(/https?:\/\/\S+\/api\/auth\/callback\/\S+/)?.[0] ?? '';
+        return link;
+      })
+      .not.toBe('');
+    const path = new URL(link).pathname + new URL(link).search;
+    const first = await raw(`${server.url}${path}`);
+    expect(first.status).toBe(302);
+    expect(first.location).not.toContain('error=');
+    const again = await raw(`${server.url}${path}`);
+    expect(again.status).toBe(302);
+    expect(again.location).toContain('/sign-in/problem?error=Verification');
+    await expect.poll(() => server.output()).toContain('sign-in link refused (Verification)');
+    const logged = server.output().split('\n').filter((line) => /Verification|^\s+at /.test(line));
+    expect(logged).toHaveLength(1);
   } finally {
     await server.stop();
   }

@@ -60,8 +60,12 @@ test("given a probing square inside another owner's listed parcel, the warning n
 test("given the same square, its owner's check names Alder Bottom and the area shared", async () => {
   const { body } = await checkBoundary(walter, probe(inAlder));
   const [feature] = body.features;
-  expect(feature?.warnings).toEqual([{ code: 'overlap-own', message: expect.stringContaining('your parcel “Alder Bottom” by'), parcels: [{ parcelId: alderId, name: 'Alder Bottom', overlapM2: expect.any(Number) }] }]);
-  expect(feature?.warnings[0]?.parcels?.[0]?.overlapM2).toBeGreaterThan(1_000);
+  // Other specs may have drawn Walter's own test lots here too: Alder Bottom must be among the parcels named.
+  expect(feature?.warnings).toEqual([
+    { code: 'overlap-own', message: expect.stringMatching(/your parcels? .*“Alder Bottom” by/), parcels: expect.arrayContaining([{ parcelId: alderId, name: 'Alder Bottom', overlapM2: expect.any(Number) }]) },
+  ]);
+  const alder = feature?.warnings[0]?.parcels?.find((p: { parcelId: string }) => p.parcelId === alderId);
+  expect(alder?.overlapM2).toBeGreaterThan(1_000);
 });
 
 type Answer = { verdict: string; reasons: string[]; parcel: { id: string; name: string } | null; distanceToEdgeM: number | null; visitId: string | null };
