@@ -6,7 +6,7 @@ const looks: Record<Verdict, { title: string; symbol: string; tone: string }> = 
   edge: { title: 'Too close to the edge to call', symbol: '↔', tone: 'border-loam-500 bg-lichen-100 text-loam-900' },
   outside: { title: 'Outside every parcel open to you', symbol: '○', tone: 'border-loam-400 bg-white text-loam-900' },
   'no-permit': { title: 'No permit for you here', symbol: '✕', tone: 'border-ember-500 bg-ember-50 text-ember-700' },
-  closed: { title: 'Closed: take nothing here', symbol: '⛔', tone: 'border-ember-600 bg-ember-50 text-ember-700' },
+  closed: { title: 'Closed: take nothing here', symbol: '⊘', tone: 'border-ember-600 bg-ember-50 text-ember-700' },
 };
 
 export default function VerdictPanel({ answer }: { answer: CheckInAnswer }) {
