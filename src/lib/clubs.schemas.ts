@@ -1,11 +1,8 @@
 import { z } from 'zod';
+import { isoDate } from './schema-parts';
 
 /** The API's and the forms' rules for club memberships, audits, flags and season reports. */
 
-const isoDate = z
-  .string()
-  .regex(/^\d{4}-\d{2}-\d{2}$/, 'Use a date like 2026-11-14.')
-  .refine((s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)) && new Date(`${s}T00:00:00Z`).toISOString().startsWith(s), 'That date does not exist.');
 const uuid = z.string().uuid('That is not a valid id.');
 
 export const inviteMemberSchema = z.object({

@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import { isTimeZone } from './local-time';
+import { isoDate, wholeNumber } from './schema-parts';
 import { unitCodes, units, type Unit } from './units';
 
 /** One set of schemas for the land forms and the API that receives them (see /api/openapi.json). */
@@ -15,7 +16,6 @@ export const boundaryGeometry = z.discriminatedUnion('type', [
 ], { error: 'The boundary must be a GeoJSON Polygon or MultiPolygon.' });
 export type BoundaryGeometry = z.infer<typeof boundaryGeometry>;
 
-const isoDate = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use a date like 2026-11-14.').refine((s) => !Number.isNaN(Date.parse(`${s}T00:00:00Z`)), 'That date does not exist.');
 
 const daysInMonth = [31, 29, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31];
 export const monthDay = z
@@ -30,7 +30,7 @@ const settingsFields = {
   name: z.string().trim().min(1, 'Give the parcel a name.').max(120, 'Keep the name to 120 characters or fewer.'),
   description: z.string().trim().max(2000, 'Keep the description to 2 000 characters or fewer.'),
   timeZone: z.string().trim().refine(isTimeZone, 'That is not an IANA time zone (for example America/New_York).'),
-  nearingThresholdPercent: z.coerce.number().int('Use a whole percentage.').min(1, 'Use a percentage from 1 to 100.').max(100, 'Use a percentage from 1 to 100.'),
+  nearingThresholdPercent: wholeNumber(z.number({ error: 'Use a whole percentage.' }).int('Use a whole percentage.').min(1, 'Use a percentage from 1 to 100.').max(100, 'Use a percentage from 1 to 100.')),
   openToRequests: z.boolean(),
 };
 

@@ -1,8 +1,8 @@
 import { z } from 'zod';
 import { emailAddress } from './accounts.schemas';
 import { limitSchema } from './land.schemas';
+import { isoDate, wholeNumber } from './schema-parts';
 
-const isoDate = z.string().regex(/^\d{4}-\d{2}-\d{2}$/, 'Use a date like 2027-03-31.');
 
 /** A permit's own, tighter limit on one species, or (club permits) a club-wide season cap. */
 export const permitLimitSchema = z.object({
@@ -23,7 +23,7 @@ export const grantPermitSchema = z
     ]),
     ...dateRange,
     /** Integer minor units (cents); 0 or absent is no fee. */
-    feeMinor: z.coerce.number().int('Give the fee in whole cents.').min(0, 'A fee cannot be negative.').max(10_000_000).default(0),
+    feeMinor: wholeNumber(z.number({ error: 'Give the fee in whole cents.' }).int('Give the fee in whole cents.').min(0, 'A fee cannot be negative.').max(10_000_000)).default(0),
     currency: z.string().regex(/^[a-z]{3}$/, 'Use a three-letter currency code like usd.').default('usd'),
     limits: z.array(permitLimitSchema).max(50).default([]),
     note: z.string().trim().max(1000).default(''),
@@ -44,7 +44,7 @@ export const decisionSchema = z.object({
   decision: z.enum(['approve', 'decline'], 'Choose approve or decline.'),
   message: z.string().trim().max(1000).default(''),
   /** Approving may set or change the fee (cents). */
-  feeMinor: z.coerce.number().int().min(0).max(10_000_000).optional(),
+  feeMinor: wholeNumber(z.number({ error: 'Give the fee in whole cents.' }).int('Give the fee in whole cents.').min(0, 'A fee cannot be negative.').max(10_000_000)).optional(),
 });
 
 export const revokeSchema = z.object({ reason: z.string().trim().min(1, 'Say why the permit is revoked; the holder is told.').max(1000) });
