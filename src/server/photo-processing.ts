@@ -63,7 +63,7 @@ const maxBodyBytes = maxPhotoBytes + multipartOverheadBytes;
  */
 export async function readPhotoPart(request: Request): Promise<Uint8Array> {
   const type = request.headers.get('content-type') ?? '';
-  if (!type.startsWith('multipart/form-data')) throw invalidInput('photo', 'Send the photo as multipart/form-data in a field named "photo".');
+  if (!type.startsWith('multipart/form-data')) throw new AppError(415, 'unsupported-media-type', 'Send the photo as multipart/form-data in a field named "photo".', 'photo');
   const body = await readCapped(request, maxBodyBytes, photoTooLarge);
   const form = await new Response(body, { headers: { 'content-type': type } }).formData().catch(() => null);
   const file = form?.get('photo');

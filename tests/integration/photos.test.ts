@@ -133,7 +133,7 @@ describe('readPhotoPart', () => {
     expect(read.bytes).toBeLessThanOrEqual(maxPhotoBytes + 2 * 1024 * 1024);
   });
 
-  it('given a form with the photo, it answers its bytes; without one, or not multipart, a 400 naming the field', async () => {
+  it('given a form with the photo, it answers its bytes; without one a 400, and not multipart a 415, each naming the field', async () => {
     const jpeg = await canvas(4, 4).jpeg().toBuffer();
     const form = new FormData();
     form.set('photo', new File([new Uint8Array(jpeg)], 'ramps.jpg', { type: 'image/jpeg' }));
@@ -143,7 +143,7 @@ describe('readPhotoPart', () => {
     const empty = new FormData();
     empty.set('note', 'no photo');
     await expect(readPhotoPart(new Request('http://127.0.0.1/api/photos', { method: 'POST', body: empty }))).rejects.toMatchObject({ status: 400, field: 'photo' });
-    await expect(readPhotoPart(post('{}', { 'content-type': 'application/json' }))).rejects.toMatchObject({ status: 400, field: 'photo' });
+    await expect(readPhotoPart(post('{}', { 'content-type': 'application/json' }))).rejects.toMatchObject({ status: 415, code: 'unsupported-media-type', field: 'photo' });
   });
 });
 
