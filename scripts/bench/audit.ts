@@ -117,8 +117,8 @@ export type AuditFigures = {
   /** EXPLAIN (ANALYZE, BUFFERS) of each of the audit's statements over the kept totals, run with the parameters the app sent. */
   plans: { plan: string; executionMs: number | null }[];
   indexesUsed: string[];
-  /** Whether every one of those statements reads harvest_totals through an index-only scan of its key. */
-  indexUsed: boolean;
+  /** Every statement over the kept totals grouped them in memory: no sort or hash spilled to disk. */
+  inMemory: boolean;
 };
 
 /** A warm-up call, then up to `runs` timed calls, fewer once `maxMs` has passed since the warm-up began (at least one). */
@@ -140,8 +140,8 @@ async function time<T>(runs: number, maxMs: number, task: () => Promise<T>): Pro
 const indexesIn = (plan: string) => [...new Set([...plan.matchAll(/(?:Index Scan|Index Only Scan|Bitmap Index Scan) (?:Backward )?(?:using|on) (\w+)/g)].map((m) => m[1] as string))];
 
 const labelOf = (text: string) =>
-  /\bharvest_totals h\b/.test(text)
-    ? 'kept totals of one half of the windows (auditSumsQuery)'
+  /\bfrom harvest_totals where parcel_id = any\b/.test(text)
+    ? 'kept totals of every season window (auditSumsQuery)'
     : /from parcels p\s+where/.test(text)
       ? 'parcels in view with allowances, limits, permits (loadAuditParcels)'
       : text.replace(/\s+/g, ' ').trim().slice(0, 60);
@@ -180,36 +180,58 @@ export async function measureAudit(
       foragers: r?.foragers ?? 0,
     });
 
-    // One more audit, with every statement timed and kept.
-    const original = client.unsafe;
-    const captured: { text: string; params: unknown[]; ms: number; rows: number }[] = [];
-    client.unsafe = ((text: string, params?: unknown[], options?: object) => {
-      const query = original.call(client, text, params as never, options);
-      const entry = { text, params: params ?? [], ms: Number.NaN, rows: 0 };
-      captured.push(entry);
-      const t0 = performance.now();
-      // A postgres.js query starts when first awaited; Drizzle awaits this same promise next.
-      query.then(
-        (result) => {
-          entry.ms = performance.now() - t0;
-          entry.rows = result.length;
-        },
-        () => {},
-      );
-      return query;
-    }) as typeof client.unsafe;
+    // One more audit, with every statement timed and kept, on the pool and inside any transaction
+    // the audit opens (Drizzle's transaction runs its statements on postgres.js's `begin` handle).
+    type Captured = { text: string; params: unknown[]; ms: number; rows: number; setup: string[] };
+    const captured: Captured[] = [];
+    const wrap = (target: typeof client, setup: string[] | null) => {
+      const original = target.unsafe;
+      target.unsafe = ((text: string, params?: unknown[], options?: object) => {
+        const query = original.call(target, text, params as never, options);
+        const entry = { text, params: params ?? [], ms: Number.NaN, rows: 0, setup: setup ? [...setup] : [] };
+        captured.push(entry);
+        if (setup && /^\s*set local\b/i.test(text)) setup.push(text);
+        const t0 = performance.now();
+        // A postgres.js query starts when first awaited; Drizzle awaits this same promise next.
+        query.then(
+          (result) => {
+            entry.ms = performance.now() - t0;
+            entry.rows = result.length;
+          },
+          () => {},
+        );
+        return query;
+      }) as typeof client.unsafe;
+      return () => {
+        target.unsafe = original;
+      };
+    };
+    const unwrap = wrap(client, null);
+    const begin = client.begin;
+    client.begin = ((...args: unknown[]) => {
+      const body = args.at(-1) as (tx: typeof client) => unknown;
+      args[args.length - 1] = (tx: typeof client) => {
+        wrap(tx, []);
+        return body(tx);
+      };
+      return (begin as (...a: unknown[]) => unknown).apply(client, args);
+    }) as typeof client.begin;
     try {
       await auditTallies(db, { clubId }, { asOf: auditAsOf });
     } finally {
-      client.unsafe = original;
+      unwrap();
+      client.begin = begin;
     }
-    const sums = captured.filter((c) => /\bjoin harvest_totals h\b/.test(c.text));
+    const sums = captured.filter((c) => /\bfrom harvest_totals where parcel_id = any\b/.test(c.text));
     if (sums.length === 0) throw new Error('the audit ran no statement over harvest_totals');
     const plans = [];
     for (const statement of sums) {
-      const plan = (await client.unsafe(`explain (analyze, buffers, costs off) ${statement.text}`, statement.params as never[]))
-        .map((r) => String((r as Record<string, unknown>)['QUERY PLAN']))
-        .join('\n');
+      // Explained with the same transaction-local settings the audit ran it with.
+      const rows = await client.begin(async (tx) => {
+        for (const setting of statement.setup) await tx.unsafe(setting);
+        return tx.unsafe(`explain (analyze, buffers, costs off) ${statement.text}`, statement.params as never[]);
+      });
+      const plan = (rows as unknown as Record<string, unknown>[]).map((r) => String(r['QUERY PLAN'])).join('\n');
       const execution = /Execution Time: ([\d.]+) ms/.exec(plan);
       plans.push({ plan, executionMs: execution ? Number(execution[1]) : null });
     }
@@ -226,7 +248,7 @@ export async function measureAudit(
       ownerReport: { runs: ownerReport.runs, minMs: ownerReport.minMs, medianMs: ownerReport.medianMs, maxMs: ownerReport.maxMs, ...reportFigures(ownerReport.last), ownerId },
       plans,
       indexesUsed,
-      indexUsed: plans.every((p) => /Index Only Scan using harvest_totals_key on harvest_totals h/.test(p.plan)),
+      inMemory: plans.every((p) => !/\btemp (?:read|written)=|\bDisk: /.test(p.plan)),
     };
   } finally {
     await closeDb(db);

@@ -2,7 +2,7 @@ import { sql } from 'drizzle-orm';
 import { localDateAt, seasonAsOf, talliesFor, worstState } from '../lib/field';
 import type { AllowanceFacts, LimitScope, PermitFacts, ScopeUsage, Tally, TallyState, Usage } from '../lib/field/types';
 import { measures, type Measure, type Unit } from '../lib/units';
-import { isPool, type Executor } from './client';
+import type { Executor } from './client';
 
 /**
  * Whose view an audit is. A steward sees a club's entries: those made under the club's permits, on
@@ -111,35 +111,55 @@ type SumRow = {
 };
 
 /**
- * Per window and measure, each forager's kept totals of the season (harvest_totals, read from its
- * index alone): the season's sum, the busiest day and visit (each row carries its day's and its
- * visit's whole total), entries and breaches; with the parcel's and each club's season totals.
- * A forager's per-forager limits count everything they took on the parcel under any permit; in a
- * club's view only the club's share is shown (`*_seen`), and only members with entries under it.
+ * Per window and measure, each forager's kept totals of the season (harvest_totals): the season's
+ * sum, the busiest day and visit (each row carries its day's and its visit's whole total), entries
+ * and breaches; with the parcel's and each club's season totals. A forager's per-forager limits
+ * count everything they took on the parcel under any permit; in a club's view only the club's share
+ * is shown (`*_seen`), and only members with entries under it.
+ *
+ * The kept totals are read once and grouped at once by forager and permit (`g`: a few rows per
+ * forager, whatever the number of days and visits); every later sum works on those groups. A permit
+ * belongs to one holder, so its club is constant within a group, and so is whether the club's view
+ * sees it.
  */
 export function auditSumsQuery(windows: AuditWindow[], scope: AuditScope) {
   const club = isClubScope(scope);
-  const seen = club ? sql`h.club_id is not distinct from ${scope.clubId}::uuid` : sql`true`;
+  const seen = club ? sql`club_id is not distinct from ${scope.clubId}::uuid` : sql`true`;
   return sql`
     with w as (${windowsTable(windows)}),
-    t as (
-      select w.parcel_id, w.species_id, h.measure, h.forager_id, h.permit_id, h.club_id, h.visit_id,
-        h.total, h.day_total, h.permit_day_total, h.visit_total, h.entries, h.breaches, ${seen} as seen
-      from w join harvest_totals h on h.parcel_id = w.parcel_id and h.species_id = w.species_id
-        and h.season_start <= w.season_end and h.season_end >= w.season_start),
+    -- The kept totals of the parcels in view, grouped by season, forager and permit first: a few rows
+    -- per forager whatever the number of days and visits. PostgreSQL sizes this grouping by the
+    -- extended statistics of migration 0014 and groups in a hash table; only then are the groups
+    -- matched to the windows (one per parcel and species), whose row count it cannot foresee.
+    k as (
+      select parcel_id, species_id, measure, season_start, season_end, forager_id, permit_id, club_id,
+        sum(total) as total, max(day_total) as day, max(permit_day_total) as permit_day, max(visit_total) as visit,
+        max(total) filter (where visit_id is not null) as busiest_visit_row, bool_or(visit_id is not null) as has_visit,
+        sum(entries) as entries, sum(breaches) as breaches
+      from harvest_totals where parcel_id = any(${uuidArray([...new Set(windows.map((w) => w.parcel.id))])})
+      group by 1, 2, 3, 4, 5, 6, 7, 8),
+    g as (
+      select k.parcel_id, k.species_id, k.measure, k.forager_id, k.permit_id, k.club_id,
+        sum(k.total) as total, max(k.day) as day, max(k.permit_day) as permit_day, max(k.visit) as visit,
+        max(k.busiest_visit_row) as busiest_visit_row, bool_or(k.has_visit) as has_visit,
+        sum(k.entries) as entries, sum(k.breaches) as breaches
+      from w join k on k.parcel_id = w.parcel_id and k.species_id = w.species_id
+        and k.season_start <= w.season_end and k.season_end >= w.season_start
+      group by 1, 2, 3, 4, 5, 6),
+    s as (select g.*, ${seen} as seen from g),
     member as (
       select parcel_id, species_id, measure, forager_id,
-        sum(total) as season, max(day_total) as day, max(visit_total) as visit,
+        sum(total) as season, max(day) as day, max(visit) as visit,
         sum(total) filter (where seen) as season_seen,
-        max(${club ? sql`permit_day_total` : sql`day_total`}) filter (where seen) as day_seen,
-        max(${club ? sql`total` : sql`visit_total`}) filter (where seen and visit_id is not null) as visit_seen,
+        max(${club ? sql`permit_day` : sql`day`}) filter (where seen) as day_seen,
+        max(${club ? sql`busiest_visit_row` : sql`visit`}) filter (where seen and has_visit) as visit_seen,
         coalesce(sum(entries) filter (where seen), 0)::int as entries, coalesce(sum(breaches) filter (where seen), 0)::int as breaches,
         coalesce(array_agg(distinct permit_id) filter (where seen and permit_id is not null), '{}') as permits
-      from t group by 1, 2, 3, 4),
-    parcel as (select parcel_id, species_id, measure, sum(total) as total from t group by 1, 2, 3),
+      from s group by 1, 2, 3, 4),
+    parcel as (select parcel_id, species_id, measure, sum(total) as total from g group by 1, 2, 3),
     clubs as (
       select parcel_id, species_id, measure, json_object_agg(club_id, total) as clubs
-      from (select parcel_id, species_id, measure, club_id, trim_scale(sum(total))::text as total from t where club_id is not null group by 1, 2, 3, 4) c
+      from (select parcel_id, species_id, measure, club_id, trim_scale(sum(total))::text as total from g where club_id is not null group by 1, 2, 3, 4) c
       group by 1, 2, 3)
     select m.parcel_id, m.species_id, m.measure, m.forager_id, coalesce(u.name, u.email) as forager_name,
       trim_scale(m.season)::text as season, trim_scale(m.day)::text as day, trim_scale(m.visit)::text as visit,
@@ -200,10 +220,9 @@ export async function auditTallies(db: Executor, scope: AuditScope, { asOf, now 
   const day = asOf ?? auditDay(parcels, now);
   const windows = windowsOf(parcels, { asOf, now });
   if (windows.length === 0) return { asOf: day, rows: [], chart: [] };
-  // The windows in two halves on two connections at once when there is a pool (PostgreSQL runs one
-  // statement on one core). A window is one parcel and species, and no sum crosses windows.
-  const halves = windows.length > 1 && isPool(db) ? [windows.slice(0, windows.length >> 1), windows.slice(windows.length >> 1)] : [windows];
-  const sums = (await Promise.all(halves.map((part) => db.execute<SumRow>(auditSumsQuery(part, scope))))).flat();
+  // One statement: PostgreSQL reads the totals with parallel workers and groups them in a hash table
+  // (the extended statistics of migration 0014 tell it how few groups there are).
+  const sums = (await db.execute<SumRow>(auditSumsQuery(windows, scope))) as unknown as SumRow[];
 
   const windowOf = new Map(windows.map((w) => [`${w.parcel.id}|${w.allowance.speciesId}`, w]));
   const byForager = new Map<string, SumRow[]>();
