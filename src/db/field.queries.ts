@@ -64,6 +64,16 @@ export function parcelFactsNearQuery({ longitude, latitude, radiusM, forager }: 
       and ST_DWithin(p.boundary::geography, ST_SetSRID(ST_MakePoint(${longitude}::float8, ${latitude}::float8), 4326)::geography, ${radiusM}::float8)`);
 }
 
+/**
+ * The parcels the forager may know of whose bounding box holds the position (the GiST index on the
+ * boundary): asked only when no parcel is near, so one standing in a parcel's cut-out hears of it.
+ */
+export async function loadParcelFactsAround(db: Executor, { longitude, latitude, forager }: Omit<FactsNear, 'radiusM'>): Promise<ParcelFacts[]> {
+  const rows = await db.execute<Row>(parcelFactsQuery(forager, sql`${knownToForager(forager)}
+      and p.boundary && ST_SetSRID(ST_MakePoint(${longitude}::float8, ${latitude}::float8), 4326)`));
+  return rows.map(toFacts);
+}
+
 function toFacts(p: Row): ParcelFacts {
   return {
     id: String(p.id),

@@ -90,6 +90,19 @@ export function boundaryContains(boundary: MultiPolygon, position: LonLat): bool
   return prepare(boundary).some((part) => ringContains(part.exterior, position) && !part.holes.some((hole) => ringContains(hole, position)));
 }
 
+/** Whether a position lies inside some part's exterior ring, holes or not: on the parcel, or in one of its cut-outs. */
+export function exteriorContains(boundary: MultiPolygon, position: LonLat): boolean {
+  return prepare(boundary).some((part) => ringContains(part.exterior, position));
+}
+
+/** Whether a position lies in the boundary's bounding box: west, south, east and north of all its parts, as PostGIS's `&&` tests. */
+export function boundingBoxContains(boundary: MultiPolygon, [lon, lat]: LonLat): boolean {
+  const corners = boundary.coordinates.flatMap((polygon) => polygon[0] ?? []);
+  const lons = corners.map((c) => c[0] as number);
+  const lats = corners.map((c) => c[1] as number);
+  return lon >= Math.min(...lons) && lon <= Math.max(...lons) && lat >= Math.min(...lats) && lat <= Math.max(...lats);
+}
+
 /**
  * Geodesic metres from a position to the nearest edge of any ring (exterior or hole) of any part.
  * As PostGIS geography does, the nearest point is found on the sphere and the distance to it is

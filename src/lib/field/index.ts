@@ -6,6 +6,6 @@ export { addDays, addYears, closuresOn, currentSeason, endOfLocalDay, seasonAsOf
 export { entryBases, limitsInForce, measuresLimited, MissingQuantity, projectEntry, scopeOrder, talliesFor, tallyState, worstState, type Projection, type TallyContext } from './tallies';
 export { countingFactsFor, flagFor, measuresOf, usageWindows, type CountingFacts, type FlagDecision, type UsageWindow } from './counting';
 export { checkPermit, permitCovers, type PermitCheck } from './permit-check';
-export { decideCheckIn, methodAllowed, type CheckIn } from './verdict';
+export { candidatesNear, decideCheckIn, methodAllowed, type CheckIn } from './verdict';
 export { formatDay, formatDistance } from './words';
 export { convert, fromBase, toBase, UnitMismatch, unitsOfMeasure } from '../units';

@@ -1,4 +1,4 @@
-import { placePosition } from './geometry';
+import { boundingBoxContains, exteriorContains, placePosition } from './geometry';
 import { checkPermit } from './permit-check';
 import { talliesFor, worstState } from './tallies';
 import { closuresOn, currentSeason, localDateAt } from './time';
@@ -104,6 +104,17 @@ function decideOnParcel(input: CheckIn, parcel: ParcelFacts, placement: Placemen
   };
 }
 
+/**
+ * The parcels a check-in is decided among: those within the accuracy radius (at least a metre) of
+ * the position, and those whose bounding box holds it (so one standing in a parcel's cut-out hears
+ * of it). The server finds the same set with its indexes (src/server/field/check-in.ts); the phone
+ * filters its field pack with this, so both decide among the same parcels.
+ */
+export function candidatesNear<P extends Pick<ParcelFacts, 'boundary'>>(parcels: P[], position: LonLat, accuracyM: number): P[] {
+  const radius = Math.max(accuracyM, 1);
+  return parcels.filter((p) => boundingBoxContains(p.boundary, position) || placePosition(position, radius, p.boundary).placement !== 'outside');
+}
+
 /** The verdict for a check-in: where the forager is, whether they may harvest, and what remains. */
 export function decideCheckIn(input: CheckIn): CheckInAnswer {
   const { position, accuracyM, at, parcels } = input;
@@ -144,11 +155,15 @@ export function decideCheckIn(input: CheckIn): CheckInAnswer {
     };
   }
 
+  // Standing in a hole of a parcel (a cut-out its owner left out) is outside it, and is said so.
+  const cutOut = placed.find((p) => exteriorContains(p.parcel.boundary, position));
   // The candidates are the parcels this forager may know of (src/db/field.queries.ts), so land here may still be someone's.
   return {
     verdict: 'outside',
     reasons: [
-      'You are not on any parcel open to you in Tallywood, so nothing here is covered by a permit.',
+      cutOut
+        ? `You are in a part of ${cutOut.parcel.name} that is not included: the parcel leaves this piece out, so nothing here is covered by a permit.`
+        : 'You are not on any parcel open to you in Tallywood, so nothing here is covered by a permit.',
       nearest ? `The nearest is ${nearest.parcel.name}, ${formatDistance(nearest.placement.distanceToEdgeM)} away.` : 'None is near here.',
       'The land may still belong to someone: ask before you pick.',
     ],
