@@ -39,6 +39,12 @@ function parcelFactsQuery(forager: Forager, where: SQL) {
     where ${where}`;
 }
 
+/** Listed parcels where the forager or one of their clubs holds an approved or active permit. */
+function usableBy(forager: Forager) {
+  return sql`p.status = 'listed' and p.id in (select pm.parcel_id from permits pm
+      where pm.state in ('approved', 'active') and (pm.holder_user_id = ${forager.id}::text or pm.holder_club_id = any(${uuidArray(forager.clubIds)})))`;
+}
+
 type FactsNear = { longitude: number; latitude: number; radiusM: number; forager: Forager };
 
 /**
@@ -99,6 +105,27 @@ export async function loadParcelFactsNear(db: Executor, near: FactsNear): Promis
 export async function loadParcelFacts(db: Executor, { parcelId, forager }: { parcelId: string; forager: Forager }): Promise<ParcelFacts | null> {
   const [row] = await db.execute<Row>(parcelFactsQuery(forager, sql`p.id = ${parcelId}::uuid`));
   return row ? toFacts(row) : null;
+}
+
+/**
+ * The parcels a forager may harvest on under a permit of theirs or of one of their clubs (approved or
+ * active; the engine then checks its dates and fee), with everything the engine needs: the field pack.
+ */
+export async function loadUsableParcelFacts(db: Executor, { forager, limit }: { forager: Forager; limit: number }): Promise<{ parcels: ParcelFacts[]; usable: number }> {
+  const [rows, [count]] = await Promise.all([
+    db.execute<Row>(parcelFactsQuery(forager, sql`${usableBy(forager)} order by p.name, p.id limit ${limit}`)),
+    db.execute<{ usable: number }>(sql`select count(*)::int as usable from parcels p where ${usableBy(forager)}`),
+  ]);
+  return { parcels: rows.map(toFacts), usable: count?.usable ?? rows.length };
+}
+
+/** The current terms of each parcel, by parcel id. */
+export async function loadCurrentTerms(db: Executor, { parcelIds }: { parcelIds: string[] }): Promise<Map<string, { version: number; body: string }>> {
+  if (parcelIds.length === 0) return new Map();
+  const rows = await db.execute<{ parcel_id: string; version: number; body: string }>(sql`
+    select distinct on (t.parcel_id) t.parcel_id, t.version, t.body from terms t
+    where t.parcel_id = any(${uuidArray(parcelIds)}) order by t.parcel_id, t.version desc`);
+  return new Map(rows.map((r) => [r.parcel_id, { version: r.version, body: r.body }]));
 }
 
 type UsageRow = { parcel_id: string; species_id: string; measure: Measure; visit_id: string | null; visit: string; day: string; season: string; parcel_season: string; clubs: Record<string, string> };
@@ -162,12 +189,11 @@ export function usageQuery({ forager, windows }: { forager: Forager; windows: Us
  * The boundaries of listed parcels the forager holds a live permit on (personally or through a club),
  * for the Field map: the parcels a check-in can answer with, never a draft or an archived parcel.
  */
-export async function listPermittedBoundaries(db: Executor, { foragerId, clubIds }: { foragerId: string; clubIds: string[] }) {
+export async function listPermittedBoundaries(db: Executor, { foragerId, clubIds, limit }: { foragerId: string; clubIds: string[]; limit: number }) {
   const rows = await db.execute<{ id: string; name: string; boundary: ParcelFacts['boundary'] }>(sql`
     select p.id, p.name, ST_AsGeoJSON(p.boundary, 6)::json as boundary
     from parcels p
-    where p.status = 'listed' and p.id in (select pm.parcel_id from permits pm
-      where pm.state in ('approved', 'active') and (pm.holder_user_id = ${foragerId} or pm.holder_club_id = any(${uuidArray(clubIds)})))
-    order by p.name`);
+    where ${usableBy({ id: foragerId, clubIds })}
+    order by p.name, p.id limit ${limit}`);
   return rows.map((r) => ({ id: r.id, name: r.name, boundary: r.boundary }));
 }

@@ -51,6 +51,10 @@ const routes: Route[] = [
   { method: 'post', path: '/api/harvest-entries/{id}/corrections', summary: "Correct one of your entries: signed quantities and a reason, counted on the day, visit and permit of the entry's chain (no check-in needed)", body: correctionSchema, tag: 'field' },
   { method: 'post', path: '/api/harvest-entries/preview', summary: 'The tallies as they would be after this entry; saves nothing', body: harvestSchema, tag: 'field' },
   { method: 'post', path: '/api/visits/{id}/check-out', summary: 'End a visit', tag: 'field' },
+  {
+    method: 'get', path: '/api/field/pack', summary: 'Your field pack: every parcel you may use under your own or a club permit, with what the verdict needs, your tallies as of now and the terms', tag: 'field',
+    description: 'The phone keeps it (IndexedDB) and decides check-ins from it with no signal, by the same engine as the server. Private: answered with Cache-Control: private, no-store.',
+  },
   { method: 'post', path: '/api/photos', summary: 'Upload a harvest photo (multipart `photo`, images only, 10 MB); answers its GPS position if it has one', tag: 'field' },
   { method: 'get', path: '/api/photos/{id}', summary: 'A photo: the original for its owner, a copy without location metadata for the landowner', tag: 'field' },
   { method: 'get', path: '/api/ledger', summary: 'Your own entries and totals', tag: 'ledger' },

@@ -167,7 +167,7 @@ describe('check-ins answer only with parcels the forager may know of', () => {
 
 describe("the Field map's parcels", () => {
   it('given permits on listed parcels and on a draft, it draws only the listed ones', async () => {
-    const drawn = await listPermittedBoundaries(db(), { foragerId: ids.fay, clubIds: [ids.club] });
+    const drawn = await listPermittedBoundaries(db(), { foragerId: ids.fay, clubIds: [ids.club], limit: 500 });
     expect(drawn.map((parcel) => parcel.name)).toEqual([names.clubLot, names.permitted]);
   });
 });
