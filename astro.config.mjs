@@ -3,6 +3,7 @@ import { defineConfig, envField } from 'astro/config';
 import node from '@astrojs/node';
 import react from '@astrojs/react';
 import tailwind from '@astrojs/tailwind';
+import AstroPWA from '@vite-pwa/astro';
 import { fileURLToPath } from 'node:url';
 
 /**
@@ -35,10 +36,56 @@ function startupCheck() {
   };
 }
 
+/**
+ * The installable app and its service worker (vite-plugin-pwa, Workbox's generateSW). The built
+ * scripts, styles, fonts and icons are precached; the pages a forager opens in the field (Field,
+ * My permits, My ledger) are kept from their last visit and served from there only when the network
+ * does not answer; map tiles are kept as they are loaded (the Field's "Get ready" loads the pack's).
+ * Everything else, and every API call, always goes to the network. The field pack and the entries
+ * made offline live in IndexedDB (src/components/field/offline-store.ts), not here.
+ */
+const pwa = AstroPWA({
+  registerType: 'autoUpdate',
+  injectRegister: false,
+  includeAssets: ['favicon.svg', 'icons/apple-touch-icon.png'],
+  manifest: {
+    name: 'Tallywood',
+    short_name: 'Tallywood',
+    description: 'Land-access permissions and harvest limits for wild foraging, in the field with or without signal.',
+    start_url: '/field',
+    scope: '/',
+    display: 'standalone',
+    background_color: '#f7f5ef',
+    theme_color: '#314f2e',
+    icons: [
+      { src: '/icons/tallywood-192.png', sizes: '192x192', type: 'image/png' },
+      { src: '/icons/tallywood-512.png', sizes: '512x512', type: 'image/png' },
+      { src: '/icons/tallywood-maskable-512.png', sizes: '512x512', type: 'image/png', purpose: 'maskable' },
+    ],
+  },
+  workbox: {
+    globPatterns: ['**/*.{js,css,woff2,svg,png,webmanifest}'],
+    // Server-rendered pages have no HTML in the build to fall back to.
+    navigateFallback: null,
+    runtimeCaching: [
+      {
+        urlPattern: ({ request, url }) => request.mode === 'navigate' && ['/field', '/my-permits', '/ledger'].includes(url.pathname),
+        handler: 'NetworkFirst',
+        options: { cacheName: 'tallywood-pages', networkTimeoutSeconds: 6, cacheableResponse: { statuses: [200] } },
+      },
+      {
+        urlPattern: ({ url }) => url.pathname.startsWith('/tiles/') || /\/\d+\/\d+\/\d+\.(png|jpg|jpeg|webp|pbf)$/.test(url.pathname),
+        handler: 'CacheFirst',
+        options: { cacheName: 'tallywood-tiles', expiration: { maxEntries: 6000, maxAgeSeconds: 60 * 24 * 60 * 60 }, cacheableResponse: { statuses: [0, 200] } },
+      },
+    ],
+  },
+});
+
 export default defineConfig({
   output: 'server',
   adapter: node({ mode: 'standalone' }),
-  integrations: [react(), tailwind({ applyBaseStyles: false }), startupCheck()],
+  integrations: [react(), tailwind({ applyBaseStyles: false }), startupCheck(), pwa],
   /** The test run builds beside a running `npm start`, so it needs its own output folder. */
   outDir: process.env.TALLYWOOD_OUT_DIR ?? './dist',
   server: { host: '127.0.0.1', port: 4321 },

@@ -7,11 +7,20 @@ export function postJson(url: string, body: unknown): Promise<ApiResult> {
   return sendJson('POST', url, body);
 }
 
-/** Sends JSON and reads the answer; a network failure reads like any other error. */
-export async function sendJson(method: string, url: string, body?: unknown): Promise<ApiResult> {
+/**
+ * Sends JSON and reads the answer; a network failure reads like any other error (code `offline`).
+ * With `timeoutMs`, a request still unanswered then counts as no connection (a phone with one bar
+ * can hang for minutes).
+ */
+export async function sendJson(method: string, url: string, body?: unknown, { timeoutMs }: { timeoutMs?: number } = {}): Promise<ApiResult> {
   let response: Response;
   try {
-    response = await fetch(url, { method, headers: body === undefined ? {} : { 'content-type': 'application/json' }, body: body === undefined ? undefined : JSON.stringify(body) });
+    response = await fetch(url, {
+      method,
+      headers: body === undefined ? {} : { 'content-type': 'application/json' },
+      body: body === undefined ? undefined : JSON.stringify(body),
+      signal: timeoutMs ? AbortSignal.timeout(timeoutMs) : undefined,
+    });
   } catch {
     return { ok: false, status: 0, error: { code: 'offline', message: 'No connection to Tallywood. Check your signal and try again.' } };
   }

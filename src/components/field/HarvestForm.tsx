@@ -1,10 +1,25 @@
 import { useEffect, useRef, useState } from 'react';
-import type { SpeciesAnswer, Tally } from '../../lib/field/types';
+import { doubtfulQuantity, type Doubt } from '../../lib/field/plausibility';
+import type { EntryQuantity, Method, SpeciesAnswer, Tally } from '../../lib/field/types';
+import { formatQuantity } from '../../lib/tally-words';
 import { measures, unitCodes, units, type Measure, type Unit } from '../../lib/units';
-import { sendJson } from '../api-client';
+import type { ApiResult } from '../api-client';
 import { TallyBars } from './SpeciesTallies';
 
 type Projection = { tallies: Tally[]; wouldBreach: boolean };
+
+/** What the form asks to preview or save. */
+export type HarvestDraft = { idempotencyKey: string; speciesId: string; method: Method; quantities: EntryQuantity[]; acknowledgeOver: boolean; photo: File | null };
+
+/**
+ * Where entries go: to the server (online, in a visit), or onto the phone's queue (offline, decided
+ * from the field pack). `preview` answers the tallies as they would be; `save` records the entry.
+ */
+export type Recorder = {
+  offline: boolean;
+  preview: (draft: HarvestDraft) => Promise<ApiResult>;
+  save: (draft: HarvestDraft) => Promise<ApiResult>;
+};
 
 /** One quantity per kind its limits count ("200 g or 50 plants": both); a species with no limit takes any one unit. */
 type Amount = { measure: Measure | null; quantity: string; unit: Unit };
@@ -21,7 +36,7 @@ const unitsOf = (measure: Measure | null) => unitCodes.filter((u) => measure ===
  * Records what was taken. Before saving it shows the tallies as they would be; an entry that would
  * go over needs the forager's explicit acknowledgement. One key per entry makes a retry safe.
  */
-export default function HarvestForm({ visitId, species, onSaved }: { visitId: string; species: SpeciesAnswer[]; onSaved: () => void }) {
+export default function HarvestForm({ recorder, species, onSaved }: { recorder: Recorder; species: SpeciesAnswer[]; onSaved: (words: string) => void }) {
   const open = species.filter((s) => s.inSeason && s.state !== 'out-of-season');
   const [speciesId, setSpeciesId] = useState(open[0]?.speciesId ?? '');
   const chosen = open.find((s) => s.speciesId === speciesId);
@@ -29,6 +44,9 @@ export default function HarvestForm({ visitId, species, onSaved }: { visitId: st
   const [method, setMethod] = useState(chosen?.methods[0] ?? 'pick');
   const [acknowledge, setAcknowledge] = useState(false);
   const [photo, setPhoto] = useState<File | null>(null);
+  // A new file input after each save: the chosen photo never carries over to the next entry.
+  const [photoInput, setPhotoInput] = useState(0);
+  const [doubtSettled, setDoubtSettled] = useState<string | null>(null);
   const [projection, setProjection] = useState<Projection | null>(null);
   const [problem, setProblem] = useState<{ field?: string; message: string } | null>(null);
   const [busy, setBusy] = useState(false);
@@ -42,14 +60,17 @@ export default function HarvestForm({ visitId, species, onSaved }: { visitId: st
 
   const filled = amounts.every((a) => a.quantity.trim() !== '');
   const quantities = () => amounts.map(({ quantity, unit }) => ({ quantity, unit }));
-  const body = () => ({ idempotencyKey: key.current, visitId, speciesId, method, quantities: quantities(), acknowledgeOver: acknowledge });
+  const draft = (): HarvestDraft => ({ idempotencyKey: key.current, speciesId, method, quantities: quantities(), acknowledgeOver: acknowledge, photo });
+  const doubts = amounts.map((a) => ({ amount: a, doubt: doubtfulQuantity(a.quantity.trim(), a.unit, chosen?.tallies ?? []) })).filter((d): d is { amount: Amount; doubt: Doubt } => d.doubt !== null);
+  const doubtKey = JSON.stringify(amounts);
+  const doubtOpen = doubts.length > 0 && doubtSettled !== doubtKey;
   const setAmount = (i: number, change: Partial<Amount>) => setAmounts((all) => all.map((a, j) => (j === i ? { ...a, ...change } : a)));
 
   useEffect(() => {
     setProjection(null);
     if (!filled || !speciesId) return;
     const timer = setTimeout(async () => {
-      const result = await sendJson('POST', '/api/harvest-entries/preview', body());
+      const result = await recorder.preview(draft());
       if (result.ok) { setProjection(result.data as Projection); setProblem(null); }
       else setProblem(result.error);
     }, 300);
@@ -61,22 +82,17 @@ export default function HarvestForm({ visitId, species, onSaved }: { visitId: st
   async function save() {
     setBusy(true);
     setProblem(null);
-    let photoUploadId: string | undefined;
-    if (photo) {
-      const form = new FormData();
-      form.set('photo', photo);
-      const response = await fetch('/api/photos', { method: 'POST', body: form }).catch(() => null);
-      const data = await response?.json().catch(() => null);
-      if (!response?.ok) { setBusy(false); return setProblem({ field: 'photo', message: data?.error?.message ?? 'The photo could not be uploaded.' }); }
-      photoUploadId = data.uploadId;
-    }
-    const result = await sendJson('POST', '/api/harvest-entries', { ...body(), photoUploadId });
+    const result = await recorder.save(draft());
     setBusy(false);
     if (!result.ok) return setProblem(result.error);
+    const words = `${chosen?.commonName ?? 'Entry'}, ${amounts.map((a) => formatQuantity({ quantity: a.quantity.trim(), unit: a.unit })).join(' and ')}`;
     key.current = crypto.randomUUID();
-    setAmounts(amountsFor(chosen));
+    // The next entry starts empty in the units just used.
+    setAmounts((all) => all.map((a) => ({ ...a, quantity: '' })));
     setAcknowledge(false);
-    onSaved();
+    setPhoto(null);
+    setPhotoInput((n) => n + 1);
+    onSaved(words);
   }
 
   const fieldError = (name: string) => (problem?.field === name ? <p role="alert" className="field-error">{problem.message}</p> : null);
@@ -94,8 +110,11 @@ export default function HarvestForm({ visitId, species, onSaved }: { visitId: st
         return (
           <div key={a.measure ?? 'any'} className="grid grid-cols-2 gap-3" data-measure={a.measure ?? 'any'}>
             <div>
-              <label className="field-label" htmlFor={`harvest-quantity${suffix}`}>Quantity{amounts.length > 1 ? ` (${units[a.unit].label})` : ''}</label>
-              <input id={`harvest-quantity${suffix}`} inputMode="decimal" className="field-input" value={a.quantity} onChange={(e) => setAmount(i, { quantity: e.target.value })} aria-invalid={problem?.field === 'quantities'} />
+              <label className="field-label" htmlFor={`harvest-quantity${suffix}`}>Quantity ({units[a.unit].label})</label>
+              <div className="flex items-center gap-2">
+                <input id={`harvest-quantity${suffix}`} inputMode="decimal" className="field-input min-w-0" value={a.quantity} onChange={(e) => setAmount(i, { quantity: e.target.value })} aria-invalid={problem?.field === 'quantities'} />
+                <span className="shrink-0 text-sm font-semibold text-loam-800" data-testid="quantity-unit">{units[a.unit].label}</span>
+              </div>
             </div>
             <div>
               <label className="field-label" htmlFor={`harvest-unit${suffix}`}>Unit</label>
@@ -106,6 +125,24 @@ export default function HarvestForm({ visitId, species, onSaved }: { visitId: st
           </div>
         );
       })}
+      {doubtOpen && (
+        <div role="alert" className="rounded-md border-2 border-loam-500 bg-lichen-50 p-3 text-sm" data-testid="doubt">
+          {doubts.map(({ amount, doubt }) => (
+            <p key={amount.unit}>
+              {formatQuantity({ quantity: amount.quantity.trim(), unit: amount.unit })} is more than ten times this visit's limit of {formatQuantity(doubt.limit.limit)}.
+              {doubt.suggestion ? ` Did you mean ${formatQuantity({ quantity: amount.quantity.trim(), unit: doubt.suggestion })}?` : ' Is that right?'}
+            </p>
+          ))}
+          <div className="mt-2 flex flex-wrap gap-2">
+            {doubts.some((d) => d.doubt.suggestion) && (
+              <button type="button" className="button-quiet" onClick={() => setAmounts((all) => all.map((a) => ({ ...a, unit: doubts.find((d) => d.amount === a)?.doubt.suggestion ?? a.unit })))}>
+                Yes, use {doubts.map((d) => units[d.doubt.suggestion ?? d.amount.unit].label).join(' and ')}
+              </button>
+            )}
+            <button type="button" className="button-quiet" onClick={() => setDoubtSettled(doubtKey)}>No, the amount is right</button>
+          </div>
+        </div>
+      )}
       {fieldError('quantities')}
       {fieldError('unit')}
       <label className="field-label" htmlFor="harvest-method">Method</label>
@@ -113,9 +150,15 @@ export default function HarvestForm({ visitId, species, onSaved }: { visitId: st
         {chosen?.methods.map((m) => <option key={m} value={m}>{m}</option>)}
       </select>
       {fieldError('method')}
-      <label className="field-label" htmlFor="harvest-photo">Photo (optional)</label>
-      <input id="harvest-photo" type="file" accept="image/*" capture="environment" className="block text-sm" onChange={(e) => setPhoto(e.currentTarget.files?.[0] ?? null)} />
-      {fieldError('photo')}
+      {recorder.offline ? (
+        <p className="text-sm text-loam-700">Photos need signal: add one from My ledger later if you want it with this entry.</p>
+      ) : (
+        <>
+          <label className="field-label" htmlFor="harvest-photo">Photo (optional)</label>
+          <input key={photoInput} id="harvest-photo" type="file" accept="image/*" capture="environment" className="block max-w-full text-sm" onChange={(e) => setPhoto(e.currentTarget.files?.[0] ?? null)} />
+          {fieldError('photo')}
+        </>
+      )}
       {projection && (
         <div className="rounded-md bg-lichen-50 p-3" data-testid="projection">
           <p className="text-sm font-semibold">After this entry</p>
@@ -129,7 +172,9 @@ export default function HarvestForm({ visitId, species, onSaved }: { visitId: st
         </div>
       )}
       {problem && !['speciesId', 'quantities', 'unit', 'method', 'photo'].includes(problem.field ?? '') && <p role="alert" className="field-error">{problem.message}</p>}
-      <button type="submit" className="button w-full" disabled={busy || !filled || (projection?.wouldBreach && !acknowledge)}>{busy ? 'Saving…' : 'Save entry'}</button>
+      <button type="submit" className="button w-full" disabled={busy || !filled || doubtOpen || (projection?.wouldBreach && !acknowledge)}>
+        {busy ? 'Saving…' : recorder.offline ? 'Keep entry on this phone' : 'Save entry'}
+      </button>
     </form>
   );
 }

@@ -1,7 +1,17 @@
 import type { SpeciesAnswer, Tally } from '../../lib/field/types';
+import { compareDecimals, subtractDecimals } from '../../lib/units';
 import { fieldScopeWords, formatAmount, formatPercent, formatSeasonWindows, speciesStateWords, stateSymbols, stateWords, unitAfter } from '../../lib/tally-words';
 
 const barTone: Record<Tally['state'], string> = { within: 'bg-moss-500', nearing: 'bg-loam-500', reached: 'bg-ember-500', over: 'bg-ember-700' };
+
+/** What remains of a limit, or by how much it is over: "250 g left", "none left", "200 g over". */
+function left(t: Tally): string {
+  if (t.state === 'over') {
+    const over = subtractDecimals(t.used, t.limit.quantity);
+    return `${formatAmount(over)} ${unitAfter(over, t.limit.unit)} over`;
+  }
+  return compareDecimals(t.remaining, '0') > 0 ? `${formatAmount(t.remaining)} ${unitAfter(t.remaining, t.limit.unit)} left` : 'none left';
+}
 
 /** A bar per limit: how much remains this visit, today and this season, in each kind of quantity limited. */
 export function TallyBars({ tallies }: { tallies: Tally[] }) {
@@ -9,9 +19,9 @@ export function TallyBars({ tallies }: { tallies: Tally[] }) {
     <ul className="mt-2 space-y-2">
       {tallies.map((t) => (
         <li key={`${t.scope}|${t.measure}`} data-scope={t.scope} data-measure={t.measure} data-state={t.state}>
-          <div className="flex justify-between gap-2 text-sm">
-            <span>{fieldScopeWords[t.scope]}: {formatAmount(t.remaining)} {unitAfter(t.remaining, t.limit.unit)} left of {formatAmount(t.limit.quantity)}{t.limit.fromPermit ? ' (your permit)' : ''}</span>
-            <span className="whitespace-nowrap font-semibold"><span aria-hidden="true">{stateSymbols[t.state]} </span>{stateWords[t.state]}</span>
+          <div className="flex flex-wrap items-baseline justify-between gap-x-3 text-sm">
+            <span className="min-w-0">{fieldScopeWords[t.scope]}: {left(t)} of {formatAmount(t.limit.quantity)} {unitAfter(t.limit.quantity, t.limit.unit)}{t.limit.fromPermit ? ' (your permit)' : ''}</span>
+            <span className="ml-auto whitespace-nowrap font-semibold"><span aria-hidden="true">{stateSymbols[t.state]} </span>{stateWords[t.state]}</span>
           </div>
           <div className="mt-1 h-3 w-full overflow-hidden rounded-full bg-loam-100" role="meter" aria-label={`${fieldScopeWords[t.scope]}: ${formatPercent(t.percent)} used`} aria-valuemin={0} aria-valuemax={100} aria-valuenow={Math.min(100, t.percent)}>
             <div className={`h-full ${barTone[t.state]}`} style={{ width: `${Math.min(100, t.percent)}%` }} />
@@ -22,10 +32,12 @@ export function TallyBars({ tallies }: { tallies: Tally[] }) {
   );
 }
 
+/** The species allowed here, those in season today first. */
 export default function SpeciesTallies({ species }: { species: SpeciesAnswer[] }) {
+  const ordered = [...species].sort((a, b) => Number(b.inSeason) - Number(a.inSeason));
   return (
     <ul className="space-y-3" data-testid="species">
-      {species.map((s) => (
+      {ordered.map((s) => (
         <li key={s.speciesId} className="card" data-species={s.commonName} data-state={s.state}>
           <div className="flex flex-wrap items-baseline justify-between gap-2">
             <h3 className="text-lg font-semibold">{s.commonName} <span className="text-sm font-normal italic text-loam-600">{s.scientificName}</span></h3>
