@@ -15,10 +15,11 @@ import postgres from 'postgres';
 import { closeDb, createDb } from '../src/db/client';
 import { applyMigrations } from '../src/db/migrations';
 import { measureAudit, seedEntries } from './bench/audit';
-import { findOrBuildServer, measureCheckIns, startServer, stopServer, type HttpFigures } from './bench/http-check-ins';
+import { benchPort, findOrBuildServer, measureCheckIns, startServer, stopServer, type HttpFigures } from './bench/http-check-ins';
 import { measureNaiveScan } from './bench/naive-scan';
 import { benchPositions, regionAreaKm2 } from './bench/parcels';
-import { auditTargets, report, type AuditResults, type BenchResults } from './bench/report';
+import { measureFieldOffline } from './bench/field-offline';
+import { auditTargets, fieldTargets, report, type AuditResults, type BenchResults, type FieldResults } from './bench/report';
 import { describeParcels, prepareMembers, prewarm, seedBench } from './bench/seed';
 import { coveringCounts, measureSql } from './bench/sql-lookup';
 import { databaseUrls, ensureAppRole, ensureDatabase, ensurePostgres, localDir, localSecret, root, say, startCluster } from './lib/setup.mjs';
@@ -91,6 +92,17 @@ try {
   } catch (error) {
     http = { available: false, status: 0, reason: `the app could not be started or reached: ${error instanceof Error ? error.message : error}`, entry };
   }
+  let field: FieldResults = { available: false, reason: 'the app was not running' };
+  if (http.available && entry) {
+    say('the Field page in Chromium, and the offline verdict on a pack of 500 parcels with the CPU slowed 4×…');
+    try {
+      const clientDir = join(entry, '..', '..', 'client');
+      const centre = benchPositions(4, 1, parcelTarget)[0] as { longitude: number; latitude: number };
+      field = { available: true, ...(await measureFieldOffline(sql, { databaseUrl, baseUrl: `http://127.0.0.1:${benchPort}`, clientDir, sessionToken: tokens[0] as string, centre: [centre.longitude, centre.latitude] })) };
+    } catch (error) {
+      field = { available: false, reason: error instanceof Error ? error.message : String(error) };
+    }
+  }
   if (!http.available) {
     console.log(`\n*** The check-in endpoint was not measured: ${http.reason}. The SQL and turf figures below stand on their own. ***\n`);
     if (http.status !== 404) exitCode = 1;
@@ -128,6 +140,7 @@ try {
     naive,
     http,
     audit,
+    field,
     ratios: {
       endpointOverSqlP50,
       naiveOverEndpointP50: endpointP50 === null ? null : naive.msPerLookup / endpointP50,
@@ -138,6 +151,7 @@ try {
       { name: 'check-ins per second', value: http.available ? http.concurrent.perSecond : null, target: '≥ 1000', met: http.available ? http.concurrent.perSecond >= 1000 : null },
       { name: 'endpoint p50 / bare SQL p50', value: endpointOverSqlP50, target: '≤ 4', met: endpointOverSqlP50 === null ? null : endpointOverSqlP50 <= 4 },
       ...auditTargets(audit),
+      ...fieldTargets(field),
     ],
     totalMs: performance.now() - started,
   };

@@ -1,3 +1,4 @@
+import type { FieldOfflineFigures } from './field-offline';
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import type { AuditFigures } from './audit';
@@ -38,6 +39,7 @@ export type BenchResults = {
   naive: NaiveFigures;
   http: HttpFigures & { entry: string | null };
   audit: AuditResults;
+  field: FieldResults;
   ratios: { endpointOverSqlP50: number | null; naiveOverEndpointP50: number | null; naiveOverSqlP50: number };
   targets: Target[];
   totalMs: number;
@@ -91,7 +93,37 @@ function summaryLines(r: BenchResults): string[] {
         `app server CPU ${r.http.concurrent.serverCpuMsPerRequest === null ? '—' : r.http.concurrent.serverCpuMsPerRequest.toFixed(2)} ms per check-in; server ${r.http.entry}`
       : `endpoint: NOT MEASURED — ${r.http.reason}${r.http.entry ? ` (server ${r.http.entry})` : ''}`,
     ...auditLines(r.audit),
+    ...fieldLines(r.field),
     `ratios: endpoint p50 / bare SQL p50 = ${times(r.ratios.endpointOverSqlP50)}; naive scan / endpoint p50 = ${times(r.ratios.naiveOverEndpointP50)}; naive scan / bare SQL p50 = ${times(r.ratios.naiveOverSqlP50)}`,
+  ];
+}
+
+export type FieldResults = ({ available: true } & FieldOfflineFigures) | { available: false; reason: string };
+
+/** Issue 12's targets: the Field page's scripts, the field pack of 500 parcels, and the offline verdict on it on a slowed CPU. */
+export function fieldTargets(field: FieldResults): Target[] {
+  if (!field.available) {
+    return [
+      { name: 'Field page JavaScript KB gzipped', value: null, target: '≤ 150', met: null },
+      { name: 'field pack of 500 parcels KB gzipped', value: null, target: '≤ 1024', met: null },
+      { name: 'offline verdict p95 ms, 500 parcels, CPU 4× slower', value: null, target: '≤ 20', met: null },
+    ];
+  }
+  const kb = (bytes: number) => bytes / 1024;
+  return [
+    { name: 'Field page JavaScript KB gzipped', value: kb(field.page.gzipBytes), target: '≤ 150', met: kb(field.page.gzipBytes) <= 150 },
+    { name: `field pack of ${field.pack.parcels} parcels KB gzipped`, value: kb(field.pack.gzipBytes), target: '≤ 1024', met: kb(field.pack.gzipBytes) <= 1024 },
+    { name: `offline verdict p95 ms, ${field.pack.parcels} parcels, CPU ${field.verdict.throttle}× slower`, value: field.verdict.p95Ms, target: '≤ 20', met: field.verdict.p95Ms <= 20 },
+  ];
+}
+
+function fieldLines(field: FieldResults): string[] {
+  if (!field.available) return [`field page and pack: NOT MEASURED — ${field.reason}`];
+  const kb = (bytes: number) => `${(bytes / 1024).toFixed(1)} KB`;
+  return [
+    `Field page: ${field.page.scripts} scripts, ${kb(field.page.bytes)}, ${kb(field.page.gzipBytes)} gzipped (${field.page.files.map((f) => `${f.path.replace(/^\/_astro\//, '')} ${kb(f.gzipBytes)}`).join(', ')})`,
+    `field pack: ${field.pack.parcels} parcels, ${kb(field.pack.bytes)}, ${kb(field.pack.gzipBytes)} gzipped`,
+    `offline verdict in Chromium, CPU ${field.verdict.throttle}× slower: ${field.verdict.positions} positions, p50 ${ms(field.verdict.p50Ms)}, p95 ${ms(field.verdict.p95Ms)}, max ${ms(field.verdict.maxMs)} ms; verdicts ${JSON.stringify(field.verdict.verdicts)}`,
   ];
 }
 
