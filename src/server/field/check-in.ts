@@ -12,7 +12,10 @@ export type CheckInResult = CheckInAnswer & { visitId: string | null };
  * has taken on each, calls the engine once, then logs the check-in and, when harvest is allowed,
  * continues today's visit on that parcel or opens one.
  */
-export async function checkIn(db: Db, { forager, position, accuracyM, now = new Date() }: { forager: Forager; position: LonLat; accuracyM: number; now?: Date }): Promise<CheckInResult> {
+export async function checkIn(
+  db: Db,
+  { forager, position, accuracyM, source = 'gps', now = new Date() }: { forager: Forager; position: LonLat; accuracyM: number; source?: 'gps' | 'tap'; now?: Date },
+): Promise<CheckInResult> {
   const parcels = await loadParcelFactsNear(db, { longitude: position[0], latitude: position[1], radiusM: Math.max(accuracyM, 1), forager });
   // The visit total is the open visit's on that parcel today, if one is open: the one this check-in continues.
   const windows = parcels.flatMap((p) => usageWindows(p, localDateAt(now, p.timeZone), 'open'));
@@ -20,7 +23,7 @@ export async function checkIn(db: Db, { forager, position, accuracyM, now = new 
   const answer = decideCheckIn({ position, accuracyM, at: now, forager, parcels, usage: (parcelId) => usage.get(parcelId) ?? {} });
   const clear = answer.verdict === 'clear' && answer.parcel !== null;
   const visitId = await recordCheckIn(db, {
-    forager, position, accuracyM, now, verdict: answer.verdict, parcelId: answer.parcel?.id ?? null,
+    forager, position, accuracyM, source, now, verdict: answer.verdict, parcelId: answer.parcel?.id ?? null,
     visit: clear ? { localDate: answer.localDate, permitId: answer.permitId } : null,
   });
   return { ...answer, visitId };
