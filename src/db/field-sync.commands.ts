@@ -119,16 +119,20 @@ export async function findFlagOfEntry(db: Executor, { entryId }: { entryId: stri
 }
 
 /**
- * The state each permit was in at an instant, from its history: the state the first change after that
- * instant left (a permit made after it was not yet granted: `requested`). A permit with no change
- * after it is in its current state, which the caller already has: it is left out.
+ * The state each permit was in at an instant, from its history (permit_events): the state its latest
+ * change at or before that instant left; a permit with no change until after it was not granted yet
+ * (`requested`). Changes at one instant are read creation first (the grant, then its activation). A
+ * permit with no change after the instant is in its current state, which the caller already has: it
+ * is left out.
  */
 export async function permitStatesAt(db: Executor, { permitIds, at }: { permitIds: string[]; at: Date }): Promise<Map<string, PermitState>> {
   if (permitIds.length === 0) return new Map();
+  const instant = at.toISOString();
   const rows = await db.execute<{ permit_id: string; state: PermitState }>(sql`
-    select distinct on (pe.permit_id) pe.permit_id, coalesce(pe.from_state, 'requested'::permit_state) as state
-    from permit_events pe
-    where pe.permit_id = any(${`{${permitIds.join(',')}}`}::uuid[]) and pe.at > ${at.toISOString()}::timestamptz
-    order by pe.permit_id, pe.at, pe.id`);
+    select p.id as permit_id, coalesce((
+        select pe.to_state from permit_events pe where pe.permit_id = p.id and pe.at <= ${instant}::timestamptz
+        order by pe.at desc, (pe.from_state is null), pe.id limit 1), 'requested'::permit_state) as state
+    from unnest(${`{${permitIds.join(',')}}`}::uuid[]) as p(id)
+    where exists (select 1 from permit_events pe where pe.permit_id = p.id and pe.at > ${instant}::timestamptz)`);
   return new Map(rows.map((r) => [r.permit_id, r.state]));
 }

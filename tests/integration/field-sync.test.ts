@@ -26,13 +26,14 @@ const db = () => {
   return throwaway.db;
 };
 
-const ids = { owner: '', steward: '', ana: '', ben: '', cy: '', dee: '', eve: '', club: '', parcel: '', hidden: '', chanterelle: '', clubPermit: '', cyPermit: '', deePermit: '' };
+const ids = { owner: '', steward: '', ana: '', ben: '', cy: '', dee: '', eve: '', fay: '', club: '', parcel: '', hidden: '', chanterelle: '', clubPermit: '', cyPermit: '', deePermit: '' };
 let ana: Forager;
 let ben: Forager;
 let cy: Forager;
 let dee: Forager;
 /** A forager with a permit of her own and no limits: her entries raise no flags. */
 let eve: Forager;
+let fay: Forager;
 /** Inside the REFERENCES §2 ring (−75…−74.99, 45…45.01), far from its edges. */
 const inside = { longitude: -74.995, latitude: 45.005, accuracyM: 5, source: 'gps' as const };
 const packAsOf = '2026-07-15T12:00:00Z'; // 08:00 EDT
@@ -59,6 +60,7 @@ beforeAll(async () => {
   ids.cy = await user('cy@sync.test', 'Cy Solo');
   ids.dee = await user('dee@sync.test', 'Dee Solo');
   ids.eve = await user('eve@sync.test', 'Eve Solo');
+  ids.fay = await user('fay@sync.test', 'Fay Solo');
   ids.club = (await one(db().insert(clubs).values({ slug: 'sync-club', name: 'Sync Club' }).returning())).id;
   await db().insert(clubMemberships).values([
     { clubId: ids.club, userId: ids.steward, role: 'steward', state: 'active' },
@@ -70,6 +72,7 @@ beforeAll(async () => {
   cy = { id: ids.cy, clubIds: [] };
   dee = { id: ids.dee, clubIds: [] };
   eve = { id: ids.eve, clubIds: [] };
+  fay = { id: ids.fay, clubIds: [] };
   ids.parcel = (await one(db().insert(parcels).values({ ownerId: ids.owner, name: 'Sync Hollow', status: 'listed', boundary: referenceBoundary, areaM2: 876_163.448, timeZone: 'America/New_York' }).returning())).id;
   // A draft of the same owner, on which nobody here holds a permit: no forager may know of it.
   ids.hidden = (await one(db().insert(parcels).values({ ownerId: ids.owner, name: 'Hidden Draft', boundary: referenceBoundary, areaM2: 876_163.448, timeZone: 'America/New_York' }).returning())).id;
@@ -78,6 +81,7 @@ beforeAll(async () => {
   await db().insert(allowances).values({ parcelId: ids.hidden, speciesId: ids.chanterelle, seasons: [{ start: '01-01', end: '12-31' }], methods: ['pick'] });
   ids.clubPermit = (await one(db().insert(permits).values({ parcelId: ids.parcel, holderClubId: ids.club, state: 'active', startsOn: '2026-01-01', endsOn: '2026-12-31' }).returning())).id;
   ids.cyPermit = (await one(db().insert(permits).values({ parcelId: ids.parcel, holderUserId: ids.cy, state: 'active', startsOn: '2026-01-01', endsOn: '2026-12-31' }).returning())).id;
+  await db().insert(permits).values({ parcelId: ids.parcel, holderUserId: ids.fay, state: 'active', startsOn: '2026-01-01', endsOn: '2026-12-31' });
   await db().insert(permits).values({ parcelId: ids.parcel, holderUserId: ids.eve, state: 'active', startsOn: '2026-01-01', endsOn: '2026-12-31' });
   ids.deePermit = (await one(db().insert(permits).values({ parcelId: ids.parcel, holderUserId: ids.dee, state: 'active', startsOn: '2026-01-01', endsOn: '2026-12-31' }).returning())).id;
   // The club may take 500 g of chanterelles a season, all members together; Dee 200 g a day.
@@ -87,7 +91,12 @@ beforeAll(async () => {
   ]);
   // Cy's permit was revoked at 11:00 EDT on 15 July (15:00 UTC).
   await db().update(permits).set({ state: 'revoked' }).where(eq(permits.id, ids.cyPermit));
-  await db().insert(permitEvents).values({ permitId: ids.cyPermit, fromState: 'active', toState: 'revoked', actorId: ids.owner, reason: 'Logging starts', at: new Date('2026-07-15T15:00:00Z') });
+  // Its history, as the app writes it: granted and active at one instant in January, revoked in July.
+  await db().insert(permitEvents).values([
+    { permitId: ids.cyPermit, fromState: null, toState: 'approved', actorId: ids.owner, at: new Date('2026-01-02T15:00:00Z') },
+    { permitId: ids.cyPermit, fromState: 'approved', toState: 'active', actorId: ids.owner, at: new Date('2026-01-02T15:00:00Z') },
+    { permitId: ids.cyPermit, fromState: 'active', toState: 'revoked', actorId: ids.owner, reason: 'Logging starts', at: new Date('2026-07-15T15:00:00Z') },
+  ]);
 });
 
 afterAll(async () => {
@@ -166,6 +175,21 @@ describe('an entry taken after its permit was revoked', () => {
     expect(result).toMatchObject({ status: 'recorded', replayed: false });
     expect(result?.flag).toBeUndefined();
     expect(await entryRow(result?.entryId)).toMatchObject({ permitId: ids.cyPermit, breach: false });
+  });
+});
+
+describe('an entry taken before its permit was granted', () => {
+  it('given a permit granted at 11:00 EDT and an entry recorded at 10:00, it is recorded off permit', async () => {
+    const gus = await one(db().insert(users).values({ email: 'gus@sync.test', name: 'Gus Late' }).returning());
+    const permit = await one(db().insert(permits).values({ parcelId: ids.parcel, holderUserId: gus.id, state: 'active', startsOn: '2026-01-01', endsOn: '2026-12-31' }).returning());
+    await db().insert(permitEvents).values([
+      { permitId: permit.id, fromState: null, toState: 'approved', actorId: ids.owner, at: new Date('2026-07-15T15:00:00Z') },
+      { permitId: permit.id, fromState: 'approved', toState: 'active', actorId: ids.owner, at: new Date('2026-07-15T15:00:00Z') },
+    ]);
+    const [before] = await sync({ id: gus.id, clubIds: [] }, [entryItem('2026-07-15T14:00:00Z', '5')], '2026-07-15T21:00:00Z');
+    expect(before).toMatchObject({ status: 'flagged', flag: { kind: 'off-permit' } });
+    const [after] = await sync({ id: gus.id, clubIds: [] }, [entryItem('2026-07-15T16:00:00Z', '5')], '2026-07-15T21:00:00Z');
+    expect(after).toMatchObject({ status: 'recorded' });
   });
 });
 
@@ -274,5 +298,26 @@ describe('where a position came from', () => {
     const rows = await db().select({ source: checkIns.positionSource, device: checkIns.deviceRecordedAt }).from(checkIns)
       .where(and(eq(checkIns.foragerId, ids.dee), sql`${checkIns.at} >= '2026-07-24T00:00:00Z'`)).orderBy(checkIns.at);
     expect(rows).toEqual([{ source: 'tap', device: null }, { source: 'gps', device: null }]);
+  });
+});
+
+describe('the visit an entry synced on its own day joins', () => {
+  const visitOf = async (entryId: string | undefined) => one(db().select().from(visits).where(eq(visits.id, (await entryRow(entryId)).visitId ?? '')));
+
+  it('given a visit checked into online at 09:00 EDT and still open, an entry recorded at 10:00 joins it and leaves it open', async () => {
+    const online = await checkIn(db(), { forager: fay, position: [inside.longitude, inside.latitude], accuracyM: 5, now: new Date('2026-07-25T13:00:00Z') });
+    expect(online.verdict).toBe('clear');
+    const [result] = await sync(fay, [entryItem('2026-07-25T14:00:00Z', '5')], '2026-07-25T15:00:00Z', '2026-07-25T11:00:00Z');
+    const visit = await visitOf(result?.entryId);
+    expect(visit).toMatchObject({ id: online.visitId, endedAt: null });
+  });
+
+  it('given an entry recorded at 08:00 EDT, before that visit began, it opens a visit of its own, ended where the next began, and the open one stays open', async () => {
+    const [result] = await sync(fay, [entryItem('2026-07-25T12:00:00Z', '5')], '2026-07-25T15:05:00Z', '2026-07-25T11:00:00Z');
+    const visit = await visitOf(result?.entryId);
+    expect(visit).toMatchObject({ localDate: '2026-07-25', startedAt: new Date('2026-07-25T12:00:00Z'), endedAt: new Date('2026-07-25T13:00:00Z'), endedBy: 'check-out' });
+    const open = await db().select({ id: visits.id }).from(visits).where(and(eq(visits.foragerId, ids.fay), sql`${visits.endedAt} is null`));
+    expect(open).toHaveLength(1);
+    expect(open[0]?.id).not.toBe(visit.id);
   });
 });
