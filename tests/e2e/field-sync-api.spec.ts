@@ -1,6 +1,6 @@
 import { randomUUID } from 'node:crypto';
 import { expect, test, type APIRequestContext } from '@playwright/test';
-import { apiAs } from './support';
+import { apiAs, mailFor } from './support';
 
 /**
  * POST /api/field/sync against the built server and its database: a batch recorded offline goes in
@@ -16,6 +16,8 @@ let walter: APIRequestContext;
 let forager: APIRequestContext;
 let parcelId = '';
 let oysterId = '';
+/** When the permit was granted: a field pack downloaded before it could not hold it, so packs here are downloaded after. */
+let grantedAt = 0;
 
 test.describe.configure({ mode: 'serial' });
 
@@ -31,17 +33,20 @@ test.beforeAll(async () => {
   expect(allowed.status(), await allowed.text()).toBe(200);
   const granted = await walter.post(`/api/parcels/${parcelId}/permits`, { data: { holder: { kind: 'forager', email: 'forager@example.org' }, startsOn: '2020-01-01', endsOn: '2099-12-31' } });
   expect(granted.status(), await granted.text()).toBe(201);
+  grantedAt = Date.now();
 });
 
 test.afterAll(async () => Promise.all([walter, forager].map((c) => c?.dispose())));
 
 const minutesAgo = (n: number) => new Date(Date.now() - n * 60_000).toISOString();
+/** An instant after `from`, and before now. */
+const after = (from: number, ms: number) => new Date(Math.min(from + ms, Date.now())).toISOString();
 const batch = (grams: string) => ({
-  packAsOf: minutesAgo(60),
+  packAsOf: after(grantedAt, 1),
   items: [
-    { kind: 'check-in', idempotencyKey: randomUUID(), recordedAt: minutesAgo(10), position: { ...centre, source: 'tap' } },
+    { kind: 'check-in', idempotencyKey: randomUUID(), recordedAt: after(grantedAt, 2), position: { ...centre, source: 'tap' } },
     {
-      kind: 'entry', idempotencyKey: randomUUID(), recordedAt: minutesAgo(9), position: { ...centre, source: 'gps' }, parcelId, speciesId: oysterId, method: 'pick',
+      kind: 'entry', idempotencyKey: randomUUID(), recordedAt: after(grantedAt, 3), position: { ...centre, source: 'gps' }, parcelId, speciesId: oysterId, method: 'pick',
       quantities: [{ quantity: grams, unit: 'g' }], acknowledgeOver: false,
     },
   ],
@@ -89,6 +94,7 @@ test('given a send whose answer never arrives, then the same batch again, there 
 
 test('given an item recorded ahead of the server by an hour, it is refused with what to do, and the rest of the batch is recorded', async () => {
   const body = batch('31.5');
+  // An hour ahead of the server: a phone whose clock is set wrong.
   const ahead = { ...body.items[1], idempotencyKey: randomUUID(), recordedAt: new Date(Date.now() + 60 * 60_000).toISOString(), quantities: [{ quantity: '41.5', unit: 'g' }] };
   const results = await send({ ...body, items: [...body.items, ahead] });
   expect(results.map((r) => r.status)).toEqual(['recorded', 'recorded', 'refused']);
@@ -100,4 +106,65 @@ test('given a body that is not a batch, it is a 400 naming the field, like every
   const response = await forager.post('/api/field/sync', { data: { packAsOf: minutesAgo(60), items: [] } });
   expect(response.status()).toBe(400);
   expect((await response.json()).error).toMatchObject({ code: 'invalid-input', field: 'items', message: 'Send at least one item.' });
+});
+
+/**
+ * Two members of the demo club (data/demo/clubs.json: Beth Lindqvist, and Marisol Kent, steward@, who
+ * stewards it and forages in it too) each record 300 g offline under a club permit capped at 500 g for the club's
+ * season: each fits on the phone, together they do not.
+ */
+test.describe('two members over the club season once both are counted', () => {
+  const clubWest = -72.95;
+  const clubSouth = 43.85;
+  const spot = { longitude: clubWest + size / 2, latitude: clubSouth + size / 2, accuracyM: 5, source: 'gps' };
+  let beth: APIRequestContext;
+  let steward: APIRequestContext;
+  let clubGrantedAt = 0;
+  let clubParcel = '';
+  let clubParcelName = '';
+  let clubId = '';
+
+  test.beforeAll(async () => {
+    [beth, steward] = await Promise.all([apiAs('beth.lindqvist@example.org'), apiAs('steward@example.org')]);
+    clubId = ((await (await steward.get('/api/me')).json()) as { stewardOfClubIds: string[] }).stewardOfClubIds[0] ?? '';
+    clubParcelName = `Sync club lot ${Date.now()}`;
+    const ring = [[clubWest, clubSouth], [clubWest + size, clubSouth], [clubWest + size, clubSouth + size], [clubWest, clubSouth + size], [clubWest, clubSouth]];
+    const created = await walter.post('/api/parcels', { data: { name: clubParcelName, timeZone: 'America/New_York', nearingThresholdPercent: 80, openToRequests: false, description: '', boundary: { type: 'Polygon', coordinates: [ring] } } });
+    expect(created.status(), await created.text()).toBe(201);
+    clubParcel = (await created.json()).parcel.id as string;
+    const allowed = await walter.put(`/api/parcels/${clubParcel}/allowances`, { data: { speciesId: oysterId, seasons: [{ start: '01-01', end: '12-31' }], methods: ['pick'], limits: [{ scope: 'day', quantity: '5', unit: 'kg' }] } });
+    expect(allowed.status(), await allowed.text()).toBe(200);
+    const granted = await walter.post(`/api/parcels/${clubParcel}/permits`, {
+      data: { holder: { kind: 'club', clubId }, startsOn: '2020-01-01', endsOn: '2099-12-31', limits: [{ speciesId: oysterId, scope: 'club-season', quantity: '500', unit: 'g' }] },
+    });
+    expect(granted.status(), await granted.text()).toBe(201);
+    clubGrantedAt = Date.now();
+  });
+
+  test.afterAll(async () => Promise.all([beth, steward].map((c) => c?.dispose())));
+
+  const entry = () => ({
+    packAsOf: after(clubGrantedAt, 1),
+    items: [{ kind: 'entry', idempotencyKey: randomUUID(), recordedAt: after(clubGrantedAt, 2), position: spot, parcelId: clubParcel, speciesId: oysterId, method: 'pick', quantities: [{ quantity: '300', unit: 'g' }], acknowledgeOver: false }],
+  });
+  const syncAs = async (client: APIRequestContext, body: unknown) => {
+    const response = await client.post('/api/field/sync', { data: body });
+    expect(response.status(), await response.text()).toBe(200);
+    return ((await response.json()) as { results: (Result & { flag?: { kind: string; message: string } })[] }).results;
+  };
+
+  test('given the second to sync, it is recorded and flagged over on sync, and the landowner and the steward are told by e-mail', async () => {
+    const [first] = await syncAs(beth, entry());
+    expect(first).toMatchObject({ status: 'recorded', replayed: false });
+    const [second] = await syncAs(steward, entry());
+    expect(second).toMatchObject({ status: 'flagged', replayed: false, flag: { kind: 'over-on-sync' } });
+    expect(second?.flag?.message).toMatch(/^Over on sync: recorded offline within the device's tallies, over once others' entries were counted/);
+    for (const email of ['landowner@example.org', 'steward@example.org']) {
+      await expect
+        .poll(async () => (await mailFor(walter, email)).filter((m) => m.subject === `Limit went over on sync on ${clubParcelName}`).length, { message: `the mail to ${email}` })
+        .toBe(1);
+    }
+    const { flags } = (await (await steward.get(`/api/clubs/${clubId}/flags`)).json()) as { flags: { kind: string; entry: { id: string } }[] };
+    expect(flags.find((f) => f.entry.id === second?.entryId)?.kind).toBe('over-on-sync');
+  });
 });
