@@ -84,20 +84,46 @@ const syncEntry = z.object({
   acknowledgeOver: z.boolean('Say whether going over was confirmed on the device (true or false).'),
 });
 
-/**
- * What a device recorded offline, sent when the connection returns: up to 50 check-ins and entries
- * in the order they were recorded, with the instant its field pack was downloaded.
- */
-export const fieldSyncSchema = z.object({
-  packAsOf: instant('when the field pack was downloaded'),
-  items: z
-    .array(z.discriminatedUnion('kind', [syncCheckIn, syncEntry], { error: "Each item is a 'check-in' or an 'entry'." }), 'Send the items as a list.')
+export const syncItemSchema = z.discriminatedUnion('kind', [syncCheckIn, syncEntry], { error: "Each item is a 'check-in' or an 'entry'." });
+
+const itemList = <T extends z.ZodType<{ idempotencyKey: string }>>(item: T) =>
+  z
+    .array(item, 'Send the items as a list.')
     .min(1, 'Send at least one item.')
     .max(50, 'Send at most 50 items at a time; send the rest in another request.')
-    .refine((items) => new Set(items.map((i) => i.idempotencyKey)).size === items.length, 'Each item needs its own idempotency key; two items here share one.'),
+    .refine((items) => new Set(items.map((i) => i.idempotencyKey)).size === items.length, 'Each item needs its own idempotency key; two items here share one.');
+
+/**
+ * What a device recorded offline, sent when the connection returns: up to 50 check-ins and entries
+ * in the order they were recorded, with the instant its field pack was downloaded. (The API document
+ * shows this; the endpoint reads the list with `fieldSyncEnvelopeSchema` and each item on its own.)
+ */
+export const fieldSyncSchema = z.object({ packAsOf: instant('when the field pack was downloaded'), items: itemList(syncItemSchema) });
+
+/**
+ * The batch as the endpoint reads it first: a wrong list is a 400 for the whole body, but an item
+ * that names its kind and key and is malformed otherwise is refused on its own (`parseSyncItems`), so
+ * one bad item in a device's queue does not hold back the rest.
+ */
+export const fieldSyncEnvelopeSchema = z.object({
+  packAsOf: instant('when the field pack was downloaded'),
+  items: itemList(z.looseObject({ kind: z.enum(['check-in', 'entry'], "Each item is a 'check-in' or an 'entry'."), idempotencyKey })),
 });
+
+export type SyncItemRead = { ok: true; item: SyncItem } | { ok: false; idempotencyKey: string; kind: SyncItem['kind']; message: string };
+
+/** Each item of a read batch, parsed on its own: a malformed one carries the sentence that says what is wrong. */
+export function parseSyncItems(items: z.infer<typeof fieldSyncEnvelopeSchema>['items']): SyncItemRead[] {
+  return items.map((raw) => {
+    const parsed = syncItemSchema.safeParse(raw);
+    if (parsed.success) return { ok: true, item: parsed.data };
+    const issue = parsed.error.issues[0];
+    const where = issue?.path.length ? ` (${issue.path.join('.')})` : '';
+    return { ok: false, idempotencyKey: raw.idempotencyKey, kind: raw.kind, message: `This was not saved${where}: ${issue?.message ?? 'it could not be read.'}` };
+  });
+}
 
 export type HarvestInput = z.infer<typeof harvestSchema>;
 export type FieldSyncInput = z.infer<typeof fieldSyncSchema>;
-export type SyncItem = FieldSyncInput['items'][number];
+export type SyncItem = z.infer<typeof syncItemSchema>;
 export type CorrectionInput = z.infer<typeof correctionSchema>;

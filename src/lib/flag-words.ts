@@ -63,7 +63,7 @@ export function noticeMail(f: NoticeFacts, origin: string): NoticeMail | null {
     return {
       purpose: 'off-permit', url, dedupeKey: (to) => `off-permit:${f.entryId}:${to}`,
       heading: `Harvest recorded off permit on ${f.parcelName}`,
-      paragraphs: [`${took} with no signal, where or when harvest was not allowed. It is recorded and flagged "off permit".`, ...(why ? [why] : []), follow],
+      paragraphs: [`${took} with no signal, where or when harvest was not allowed. It is recorded and flagged "off permit".`, ...(why ? [`What their phone was told: "${why}"`] : []), follow],
     };
   }
   const what = f.correction

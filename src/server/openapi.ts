@@ -55,7 +55,7 @@ const routes: Route[] = [
     description: 'Each item is idempotent by its key (per forager): sent again, it answers its first result with `replayed: true` and records nothing twice. ' +
       'Each item is saved in its own transaction. `status` is `recorded`, `flagged` (recorded, with `flag: { kind, message }`: `breach` when going over was confirmed on the device, ' +
       '`over-on-sync` when it was over only once others\' entries were counted, `off-permit` when harvest was not clear where and when it was recorded) or `refused` ' +
-      '(recorded nowhere, with `message`: a device clock ahead of ours by more than 2 minutes, before `packAsOf` or more than 30 days old; a parcel or species not open to you; a malformed item). ' +
+      '(recorded nowhere, with `message`: a device clock ahead of ours by more than 2 minutes, before `packAsOf` or more than 30 days old; a parcel or species not open to you; an item with its `kind` and `idempotencyKey` but malformed otherwise). A body that is not such a list is a 400. ' +
       'An entry counts on the parcel-local day of `recordedAt`. Answer: `{ results: [{ idempotencyKey, kind, status, entryId?, checkInId?, flag?, message?, replayed }] }`.',
   },
   { method: 'post', path: '/api/visits/{id}/check-out', summary: 'End a visit', tag: 'field' },

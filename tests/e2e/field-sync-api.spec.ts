@@ -102,6 +102,15 @@ test('given an item recorded ahead of the server by an hour, it is refused with 
   expect(await entriesOf('41.5')).toEqual([]);
 });
 
+test('given a malformed item among good ones, it alone is refused with what is wrong, and the others are recorded', async () => {
+  const body = batch('12.75');
+  const malformed = { ...body.items[1], idempotencyKey: randomUUID(), quantities: [{ quantity: '-3', unit: 'g' }] };
+  const results = await send({ ...body, items: [malformed, ...body.items] });
+  expect(results.map((r) => r.status)).toEqual(['refused', 'recorded', 'recorded']);
+  expect((results[0] as Result & { message?: string }).message).toBe('This was not saved (quantities.0.quantity): A quantity cannot be negative; to reverse an entry, correct it from My ledger.');
+  expect(await entriesOf('12.75')).toEqual([results[2]?.entryId]);
+});
+
 test('given a body that is not a batch, it is a 400 naming the field, like every endpoint', async () => {
   const response = await forager.post('/api/field/sync', { data: { packAsOf: minutesAgo(60), items: [] } });
   expect(response.status()).toBe(400);

@@ -7,7 +7,7 @@ import {
   allowances, checkIns, clubMemberships, clubs, flags, harvestEntries, harvestTotals, limits, parcels, permitEvents, permits, species, users, visits,
 } from '../../src/db/schema';
 import type { FieldSyncInput } from '../../src/lib/field.schemas';
-import { fieldSyncSchema } from '../../src/lib/field.schemas';
+import { fieldSyncEnvelopeSchema, fieldSyncSchema, parseSyncItems } from '../../src/lib/field.schemas';
 import type { Forager } from '../../src/lib/field/types';
 import { noticeMail } from '../../src/lib/flag-words';
 import { checkIn } from '../../src/server/field/check-in';
@@ -167,7 +167,9 @@ describe('an entry taken after its permit was revoked', () => {
     expect(row).toMatchObject({ permitId: ids.cyPermit, breach: false, countedOn: '2026-07-15' });
     const facts = await entryNoticeFacts(db(), { entryId: row.id });
     expect(facts?.recipients).toEqual(['owner@sync.test']);
-    expect(facts ? noticeMail(facts, 'https://tallywood.example') : null).toMatchObject({ purpose: 'off-permit', heading: 'Harvest recorded off permit on Sync Hollow' });
+    const mail = facts ? noticeMail(facts, 'https://tallywood.example') : null;
+    expect(mail).toMatchObject({ purpose: 'off-permit', heading: 'Harvest recorded off permit on Sync Hollow' });
+    expect(mail?.paragraphs[1]).toMatch(/^What their phone was told: ".*was revoked/);
   });
 
   it('given one recorded at 10:00 EDT, before the revocation, and sent after it, it is recorded as clear under the permit', async () => {
@@ -274,6 +276,16 @@ describe('device clocks that cannot be believed, and things the forager could ne
     expect(result).toMatchObject({ status: 'refused' });
     expect(result?.message).toMatch(/not found among those open to you/);
     expect(await count(item.idempotencyKey)).toBe(0);
+  });
+
+  it('given a malformed item among good ones, it alone is refused, saying what is wrong, and nothing of it is written', async () => {
+    const bad = entryItem('2026-07-22T14:05:00Z', '1', { method: 'scrape' });
+    const good = entryItem('2026-07-22T14:10:00Z', '1');
+    const { packAsOf: asOf, items } = fieldSyncEnvelopeSchema.parse({ packAsOf: '2026-07-22T11:00:00Z', items: [bad, good] });
+    const results = await syncFieldItems(db(), { forager: eve, input: { packAsOf: asOf, items: parseSyncItems(items) }, now: new Date(now) });
+    expect(results.map((r) => [r.idempotencyKey, r.status])).toEqual([[bad.idempotencyKey, 'refused'], [good.idempotencyKey, 'recorded']]);
+    expect(results[0]?.message).toBe('This was not saved (method): Choose how you took it.');
+    expect(await count(bad.idempotencyKey)).toBe(0);
   });
 
   it('given a refused item among good ones, the others are still recorded, in order', async () => {

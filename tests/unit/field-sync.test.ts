@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { fieldSyncSchema } from '../../src/lib/field.schemas';
+import { fieldSyncEnvelopeSchema, fieldSyncSchema, parseSyncItems } from '../../src/lib/field.schemas';
 import { clockRefusal, permitRecordedUnder, syncFlagFor, syncSeason } from '../../src/lib/field/sync';
 import type { AllowanceFacts, ParcelFacts, PermitFacts, Tally } from '../../src/lib/field/types';
 
@@ -110,5 +110,19 @@ describe('fieldSyncSchema', () => {
     expect(issue({ packAsOf: '2026-07-15T12:00:00Z', items: [entry, entry] })?.message).toMatch(/share one/);
     expect(issue({ packAsOf: '2026-07-15T12:00:00', items: [entry] })).toMatchObject({ path: 'packAsOf' });
     expect(issue({ packAsOf: '2026-07-15T12:00:00Z', items: [{ ...entry, position: { ...entry.position, source: 'guess' } }] })).toMatchObject({ path: 'items.0.position.source' });
+  });
+
+  it('given a batch whose second item is malformed, the list is read and that item alone is refused with what is wrong', () => {
+    const bad = { ...entry, idempotencyKey: 'key-00000002', quantities: [{ quantity: '0', unit: 'g' }] };
+    const { items } = fieldSyncEnvelopeSchema.parse({ packAsOf: '2026-07-15T12:00:00Z', items: [entry, bad] });
+    const read = parseSyncItems(items);
+    expect(read[0]).toMatchObject({ ok: true, item: { idempotencyKey: 'key-00000001', kind: 'entry' } });
+    expect(read[1]).toEqual({ ok: false, idempotencyKey: 'key-00000002', kind: 'entry', message: 'This was not saved (quantities.0.quantity): Enter how much you took.' });
+  });
+
+  it('given an item without a key or of an unknown kind, the whole body is refused', () => {
+    const envelope = (items: unknown[]) => fieldSyncEnvelopeSchema.safeParse({ packAsOf: '2026-07-15T12:00:00Z', items });
+    expect(envelope([{ ...entry, idempotencyKey: undefined }]).success).toBe(false);
+    expect(envelope([{ ...entry, kind: 'photo' }]).success).toBe(false);
   });
 });

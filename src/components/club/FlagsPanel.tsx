@@ -84,7 +84,7 @@ function FlagItem({ flag, onRecorded }: { flag: FlagView; onRecorded: () => Prom
       {flag.kind !== 'breach' && flag.kind !== 'nearing' && (
         <p className="mt-1 text-sm text-loam-800" data-testid="flag-meaning">{flagKindMeanings[flag.kind]}</p>
       )}
-      {flag.kind === 'off-permit' && flag.message && <p className="mt-1 text-sm" data-testid="flag-message">{flag.message.replace(/^Off permit: /, '')}</p>}
+      {flag.kind === 'off-permit' && flag.message && <p className="mt-1 text-sm" data-testid="flag-message">What the forager's phone was told: “{flag.message.replace(/^Off permit: /, '')}”</p>}
       <dl className="mt-2 grid grid-cols-[max-content_1fr] gap-x-4 gap-y-1 text-sm">
         <dt className="font-semibold">Worst state</dt>
         <dd>{worst ? <span className={`pill ${stateTones[worst]}`}><span aria-hidden="true">{stateSymbols[worst]} </span>{stateWords[worst]}</span> : flag.worstState}</dd>

@@ -7,7 +7,7 @@ import { decideCheckIn, endOfLocalDay, formatDay, localDateAt, methodAllowed, pr
 import { clockRefusal, permitRecordedUnder, syncFlagFor, syncSeason, type SyncFlag } from '../../lib/field/sync';
 import type { Forager, ParcelFacts } from '../../lib/field/types';
 import { AppError } from '../../lib/errors';
-import type { FieldSyncInput, SyncItem } from '../../lib/field.schemas';
+import type { FieldSyncInput, SyncItem, SyncItemRead } from '../../lib/field.schemas';
 import { keyInUse, replayOf, requestHashOf, storedQuantities } from './harvest';
 
 /**
@@ -41,11 +41,19 @@ type Ctx = { forager: Forager; packAsOf: Date; now: Date };
 
 const refused = (item: SyncItem, message: string): SyncResult => ({ idempotencyKey: item.idempotencyKey, kind: item.kind, status: 'refused', message, replayed: false });
 
-export async function syncFieldItems(db: Db, { forager, input, now = new Date() }: { forager: Forager; input: FieldSyncInput; now?: Date }): Promise<SyncResult[]> {
+/** A batch as the endpoint read it: each item parsed on its own (src/lib/field.schemas.ts, parseSyncItems). */
+export type SyncBatch = { packAsOf: Date; items: (SyncItem | SyncItemRead)[] };
+
+export async function syncFieldItems(db: Db, { forager, input, now = new Date() }: { forager: Forager; input: FieldSyncInput | SyncBatch; now?: Date }): Promise<SyncResult[]> {
   const results: SyncResult[] = [];
   // Visits of days that are over end at their day's end first, so an item finds them as they were.
   await closeStaleVisits(db, { now, foragerId: forager.id });
-  for (const item of input.items) {
+  for (const read of input.items) {
+    if ('ok' in read && !read.ok) {
+      results.push({ idempotencyKey: read.idempotencyKey, kind: read.kind, status: 'refused', message: read.message, replayed: false });
+      continue;
+    }
+    const item = 'ok' in read ? read.item : read;
     const ctx = { forager, packAsOf: input.packAsOf, now };
     try {
       results.push(item.kind === 'check-in' ? await syncCheckIn(db, item, ctx) : await syncEntry(db, item, ctx));
