@@ -3,7 +3,7 @@ import type { CountingFacts, FlagDecision } from '../lib/field/counting';
 import type { Forager, LonLat, Method, Tally, Verdict } from '../lib/field/types';
 import type { Measure, Unit } from '../lib/units';
 import type { Db, Executor, Tx } from './client';
-import { allowances, checkIns, flags, harvestEntries, harvestQuantities, visits } from './schema';
+import { allowances, checkIns, flags, harvestEntries, harvestQuantities, visits, type Flag } from './schema';
 
 /**
  * Writes of the field: visits and check-ins, ledger entries with their quantities, and flags.
@@ -11,7 +11,7 @@ import { allowances, checkIns, flags, harvestEntries, harvestQuantities, visits 
  */
 
 /** The instant a visit's local day ends, in SQL: the next local midnight in its parcel's zone (DST-correct). */
-const visitEnds = sql`((v.local_date + 1)::timestamp at time zone (select p.time_zone from parcels p where p.id = v.parcel_id))`;
+export const visitEnds = sql`((v.local_date + 1)::timestamp at time zone (select p.time_zone from parcels p where p.id = v.parcel_id))`;
 
 /** Visits left open close themselves at the end of their parcel-local day. Open visits are few and indexed. */
 export async function closeStaleVisits(db: Executor, { now, foragerId }: { now: Date; foragerId?: string }) {
@@ -25,6 +25,8 @@ type CheckInRecord = {
   forager: Forager;
   position: LonLat;
   accuracyM: number;
+  /** Where the position came from: the device's fix or a tap on the map. */
+  source?: 'gps' | 'tap';
   now: Date;
   verdict: Verdict;
   parcelId: string | null;
@@ -49,6 +51,8 @@ export async function recordCheckIn(db: Db, r: CheckInRecord): Promise<string | 
       parcelId: r.parcelId,
       visitId,
       at: r.now,
+      receivedAt: r.now,
+      positionSource: r.source ?? 'gps',
     });
   const { visit, parcelId } = r;
   if (!visit || !parcelId) {
@@ -160,7 +164,10 @@ export type NewEntry = {
   breach: boolean;
   acknowledgedOver: boolean;
   corrects: { entryId: string; rootId: string; reason: string } | null;
+  /** When the server received it. */
   now: Date;
+  /** The device's clock when it was recorded offline; absent for an entry recorded online. */
+  deviceRecordedAt?: Date | null;
 };
 
 /**
@@ -195,6 +202,7 @@ export async function insertEntry(tx: Tx, e: NewEntry): Promise<StoredEntry | nu
       correctionReason: e.corrects?.reason ?? null,
       recordedBy: e.forager.id,
       recordedAt: e.now,
+      deviceRecordedAt: e.deviceRecordedAt ?? null,
     })
     .onConflictDoNothing({ target: [harvestEntries.foragerId, harvestEntries.idempotencyKey] })
     .returning();
@@ -204,9 +212,13 @@ export async function insertEntry(tx: Tx, e: NewEntry): Promise<StoredEntry | nu
 }
 
 /** A flag on an entry, with the tallies as they stood after it. */
-export async function insertFlag(tx: Tx, { entry, decision, tallies, now }: { entry: StoredEntry; decision: FlagDecision; tallies: Tally[]; now: Date }) {
+export async function insertFlag(
+  tx: Tx,
+  { entry, decision, tallies, now }: { entry: StoredEntry; decision: Omit<FlagDecision, 'kind'> & { kind: Flag['kind']; message?: string }; tallies: Tally[]; now: Date },
+) {
   await tx.insert(flags).values({
     kind: decision.kind,
+    message: decision.message ?? null,
     entryId: entry.id,
     parcelId: entry.parcelId,
     speciesId: entry.speciesId,

@@ -128,6 +128,15 @@ export async function loadCurrentTerms(db: Executor, { parcelIds }: { parcelIds:
   return new Map(rows.map((r) => [r.parcel_id, { version: r.version, body: r.body }]));
 }
 
+/**
+ * One parcel's facts by id, only when the forager may know of it (as a check-in answers): an entry
+ * synced from a device names its parcel, and one the forager may not know of is not found.
+ */
+export async function loadKnownParcelFacts(db: Executor, { parcelId, forager }: { parcelId: string; forager: Forager }): Promise<ParcelFacts | null> {
+  const [row] = await db.execute<Row>(parcelFactsQuery(forager, sql`p.id = ${parcelId}::uuid and ${knownToForager(forager)}`));
+  return row ? toFacts(row) : null;
+}
+
 type UsageRow = { parcel_id: string; species_id: string; measure: Measure; visit_id: string | null; visit: string; day: string; season: string; parcel_season: string; clubs: Record<string, string> };
 
 /**

@@ -1,5 +1,6 @@
 import { sql } from 'drizzle-orm';
 import type { FlaggedTally } from './schema/flags';
+import type { FlagKind } from '../lib/flag-words';
 import type { AuditScope } from './audit.queries';
 import type { Executor } from './client';
 import { flagNotes } from './schema';
@@ -8,7 +9,9 @@ export type FlagNoteView = { id: string; note: string; handled: boolean; authorN
 
 export type FlagView = {
   id: string;
-  kind: 'breach' | 'nearing';
+  kind: FlagKind;
+  /** Why it was raised, for the kinds raised on sync (off permit: the engine's reasons); null for the others. */
+  message: string | null;
   worstState: 'within' | 'nearing' | 'reached' | 'over';
   scopes: string[];
   tallies: FlaggedTally[];
@@ -38,11 +41,11 @@ export async function listFlags(db: Executor, scope: AuditScope, { limit = 200 }
         ? sql`f.parcel_id = ${scope.parcelId}::uuid and p.owner_id = ${scope.ownerId}`
         : sql`p.owner_id = ${scope.ownerId}`;
   const rows = await db.execute<{
-    id: string; kind: FlagView['kind']; worst_state: FlagView['worstState']; scopes: string[]; tallies: FlaggedTally[]; created_at: string;
+    id: string; kind: FlagView['kind']; message: string | null; worst_state: FlagView['worstState']; scopes: string[]; tallies: FlaggedTally[]; created_at: string;
     parcel_id: string; parcel_name: string; time_zone: string; species_id: string; common_name: string; forager_id: string; forager_name: string; permit_id: string | null;
     entry_id: string; quantities: { quantity: string; unit: string }[]; counted_on: string; notes: FlagNoteView[];
   }>(sql`
-    select f.id, f.kind, f.worst_state, f.scopes::text[] as scopes, f.tallies, f.created_at::text, f.parcel_id, p.name as parcel_name, p.time_zone,
+    select f.id, f.kind, f.message, f.worst_state, f.scopes::text[] as scopes, f.tallies, f.created_at::text, f.parcel_id, p.name as parcel_name, p.time_zone,
       f.species_id, s.common_name, f.forager_id, coalesce(u.name, u.email) as forager_name, f.permit_id,
       e.id as entry_id, e.counted_on::text,
       (select json_agg(json_build_object('quantity', trim_scale(q.quantity)::text, 'unit', q.unit) order by q.measure) from harvest_quantities q where q.entry_id = e.id) as quantities,
@@ -59,6 +62,7 @@ export async function listFlags(db: Executor, scope: AuditScope, { limit = 200 }
   return rows.map((r) => ({
     id: r.id,
     kind: r.kind,
+    message: r.message,
     worstState: r.worst_state,
     scopes: r.scopes,
     tallies: r.tallies,

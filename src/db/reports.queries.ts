@@ -103,7 +103,8 @@ export async function seasonReport(db: Executor, scope: AuditScope & { parcelId:
     asOf,
     period,
     species,
-    breaches: flags.filter((f) => f.kind === 'breach'),
+    // Over on sync took a limit over too (the entry is a breach in the totals); only how it came about differs.
+    breaches: flags.filter((f) => f.kind === 'breach' || f.kind === 'over-on-sync'),
     openFlags: flags.filter((f) => !f.handled).length,
     visits: visits?.n ?? 0,
     foragers: new Set(audit.rows.map((r) => r.foragerId)).size,

@@ -11,6 +11,8 @@ export const checkInSchema = z.object({
     
     .min(0, 'The accuracy radius cannot be negative.')
     .max(5000, 'That fix is too rough to decide anything (over 5 km); wait for a better one.'),
+  /** Where the position came from: the device's fix, or a point tapped on the map. */
+  source: z.enum(['gps', 'tap'], "Say where the position came from: 'gps' for the device's fix, 'tap' for a point chosen on the map.").default('gps'),
 });
 
 const quantityText = z
@@ -55,5 +57,73 @@ export const correctionSchema = z.object({
   acknowledgeOver: z.boolean().default(false),
 });
 
+/** An instant with its offset (RFC 3339), as a device's clock gives it. */
+const instant = (what: string) =>
+  z.iso.datetime({ offset: true, error: `Send ${what} as an ISO 8601 instant with its offset, like 2026-07-15T14:30:00Z.` }).transform((v) => new Date(v));
+
+const syncPosition = checkInSchema.extend({ source: z.enum(['gps', 'tap'], "Say where the position came from: 'gps' for the device's fix, 'tap' for a point chosen on the map.") });
+
+const syncCheckIn = z.object({
+  kind: z.literal('check-in'),
+  idempotencyKey,
+  recordedAt: instant('when it was recorded'),
+  position: syncPosition,
+});
+
+const syncEntry = z.object({
+  kind: z.literal('entry'),
+  idempotencyKey,
+  recordedAt: instant('when it was recorded'),
+  /** Where it was recorded. */
+  position: syncPosition,
+  parcelId: z.uuid('Name the parcel the entry was recorded on by its id, as in the field pack.'),
+  speciesId: z.uuid('Choose a species.'),
+  method: z.enum(methods, 'Choose how you took it.'),
+  quantities: quantities(quantityText.refine((v) => !v.startsWith('-'), 'A quantity cannot be negative; to reverse an entry, correct it from My ledger.')),
+  /** Whether the forager confirmed on the device that the entry goes over a limit. */
+  acknowledgeOver: z.boolean('Say whether going over was confirmed on the device (true or false).'),
+});
+
+export const syncItemSchema = z.discriminatedUnion('kind', [syncCheckIn, syncEntry], { error: "Each item is a 'check-in' or an 'entry'." });
+
+const itemList = <T extends z.ZodType<{ idempotencyKey: string }>>(item: T) =>
+  z
+    .array(item, 'Send the items as a list.')
+    .min(1, 'Send at least one item.')
+    .max(50, 'Send at most 50 items at a time; send the rest in another request.')
+    .refine((items) => new Set(items.map((i) => i.idempotencyKey)).size === items.length, 'Each item needs its own idempotency key; two items here share one.');
+
+/**
+ * What a device recorded offline, sent when the connection returns: up to 50 check-ins and entries
+ * in the order they were recorded, with the instant its field pack was downloaded. (The API document
+ * shows this; the endpoint reads the list with `fieldSyncEnvelopeSchema` and each item on its own.)
+ */
+export const fieldSyncSchema = z.object({ packAsOf: instant('when the field pack was downloaded'), items: itemList(syncItemSchema) });
+
+/**
+ * The batch as the endpoint reads it first: a wrong list is a 400 for the whole body, but an item
+ * that names its kind and key and is malformed otherwise is refused on its own (`parseSyncItems`), so
+ * one bad item in a device's queue does not hold back the rest.
+ */
+export const fieldSyncEnvelopeSchema = z.object({
+  packAsOf: instant('when the field pack was downloaded'),
+  items: itemList(z.looseObject({ kind: z.enum(['check-in', 'entry'], "Each item is a 'check-in' or an 'entry'."), idempotencyKey })),
+});
+
+export type SyncItemRead = { ok: true; item: SyncItem } | { ok: false; idempotencyKey: string; kind: SyncItem['kind']; message: string };
+
+/** Each item of a read batch, parsed on its own: a malformed one carries the sentence that says what is wrong. */
+export function parseSyncItems(items: z.infer<typeof fieldSyncEnvelopeSchema>['items']): SyncItemRead[] {
+  return items.map((raw) => {
+    const parsed = syncItemSchema.safeParse(raw);
+    if (parsed.success) return { ok: true, item: parsed.data };
+    const issue = parsed.error.issues[0];
+    const where = issue?.path.length ? ` (${issue.path.join('.')})` : '';
+    return { ok: false, idempotencyKey: raw.idempotencyKey, kind: raw.kind, message: `This was not saved${where}: ${issue?.message ?? 'it could not be read.'}` };
+  });
+}
+
 export type HarvestInput = z.infer<typeof harvestSchema>;
+export type FieldSyncInput = z.infer<typeof fieldSyncSchema>;
+export type SyncItem = z.infer<typeof syncItemSchema>;
 export type CorrectionInput = z.infer<typeof correctionSchema>;

@@ -3,7 +3,7 @@ import { z } from 'zod';
 import { signInSchema, signUpSchema } from '../lib/accounts.schemas';
 import { allowanceSchema, closureSchema, hazardSchema, newParcelSchema, parcelUpdateSchema, termsSchema, zoneSchema } from '../lib/land.schemas';
 import { accessRequestSchema, decisionSchema, grantPermitSchema, permitLimitSchema, revokeSchema } from '../lib/permits.schemas';
-import { checkInSchema, correctionSchema, harvestSchema } from '../lib/field.schemas';
+import { checkInSchema, correctionSchema, fieldSyncSchema, harvestSchema } from '../lib/field.schemas';
 
 type Route = { method: 'get' | 'post' | 'put' | 'patch' | 'delete'; path: string; summary: string; description?: string; body?: z.ZodType; auth?: boolean; tag: string };
 
@@ -50,6 +50,14 @@ const routes: Route[] = [
   { method: 'post', path: '/api/harvest-entries', summary: 'Record a harvest entry: one quantity per measure its limits count (idempotent by key; over a limit needs acknowledgeOver)', body: harvestSchema, tag: 'field' },
   { method: 'post', path: '/api/harvest-entries/{id}/corrections', summary: "Correct one of your entries: signed quantities and a reason, counted on the day, visit and permit of the entry's chain (no check-in needed)", body: correctionSchema, tag: 'field' },
   { method: 'post', path: '/api/harvest-entries/preview', summary: 'The tallies as they would be after this entry; saves nothing', body: harvestSchema, tag: 'field' },
+  {
+    method: 'post', path: '/api/field/sync', summary: 'Send check-ins and entries recorded offline (1–50, in the order recorded); answers one result per item, in order', body: fieldSyncSchema, tag: 'field',
+    description: 'Each item is idempotent by its key (per forager): sent again, it answers its first result with `replayed: true` and records nothing twice. ' +
+      'Each item is saved in its own transaction. `status` is `recorded`, `flagged` (recorded, with `flag: { kind, message }`: `breach` when going over was confirmed on the device, ' +
+      '`over-on-sync` when it was over only once others\' entries were counted, `off-permit` when harvest was not clear where and when it was recorded) or `refused` ' +
+      '(recorded nowhere, with `message`: a device clock ahead of ours by more than 2 minutes, before `packAsOf` or more than 30 days old; a parcel or species not open to you; an item with its `kind` and `idempotencyKey` but malformed otherwise). A body that is not such a list is a 400. ' +
+      'An entry counts on the parcel-local day of `recordedAt`. Answer: `{ results: [{ idempotencyKey, kind, status, entryId?, checkInId?, flag?, message?, replayed }] }`.',
+  },
   { method: 'post', path: '/api/visits/{id}/check-out', summary: 'End a visit', tag: 'field' },
   {
     method: 'get', path: '/api/field/pack', summary: 'Your field pack: every parcel you may use under your own or a club permit, with what the verdict needs, your tallies as of now and the terms', tag: 'field',

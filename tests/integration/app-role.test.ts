@@ -111,6 +111,14 @@ describe('the records, as the app', () => {
     });
   }
 
+  it('given check_ins, a record the app only appends to (0015), it refuses the app an UPDATE and a DELETE', async () => {
+    for (const statement of ['update check_ins set accuracy_m = accuracy_m where false', 'delete from check_ins where false']) {
+      const error = await refusal(client(), statement);
+      expect(error, statement).toMatchObject({ code: insufficientPrivilege });
+      expect(error.message).toMatch(/permission denied for table check_ins/);
+    }
+  });
+
   it('given the guard triggers, it refuses the app to disable or drop any of them', async () => {
     const triggers = await client()<{ table: string; name: string }[]>`
       select c.relname as table, t.tgname as name from pg_trigger t join pg_class c on c.oid = t.tgrelid

@@ -7,6 +7,7 @@ import type { FlagNoteView, FlagView } from '../../db/flags.queries';
 import { flagNoteSchema } from '../../lib/clubs.schemas';
 import { formatDate, formatInstantIn } from '../../lib/format';
 import { formatQuantities } from '../../lib/tally-words';
+import { flagKindMeanings, flagKindWords } from '../../lib/flag-words';
 import { postJson, sendJson } from '../api-client';
 import { flagScopeLabels, formatUsage, isTallyState, stateSymbols, stateTones, stateWords } from './audit-view';
 
@@ -19,10 +20,9 @@ type Input = z.input<typeof flagNoteSchema>;
 type Output = z.output<typeof flagNoteSchema>;
 type Load = { status: 'loading' } | { status: 'error'; message: string } | { status: 'ready'; flags: FlagView[] };
 
-const kindWords: Record<FlagView['kind'], string> = { breach: 'Breach', nearing: 'Nearing' };
 const scopeLabel = (scope: string) => flagScopeLabels[scope as LimitScope] ?? scope;
 
-/** Breaches and nearing tallies, each with its follow-up notes and a form to add one. */
+/** Breaches, nearing tallies and entries flagged on sync (over on sync, off permit), each with its follow-up notes and a form to add one. */
 export default function FlagsPanel({ flagsUrl }: FlagsPanelProps) {
   const [load, setLoad] = useState<Load>({ status: 'loading' });
   const [openOnly, setOpenOnly] = useState(true);
@@ -72,15 +72,19 @@ function FlagItem({ flag, onRecorded }: { flag: FlagView; onRecorded: () => Prom
   const id = useId();
   const worst = isTallyState(flag.worstState) ? flag.worstState : null;
   return (
-    <li className={`card ${flag.kind === 'breach' && !flag.handled ? 'border-2 border-ember-600' : ''}`} data-flag={flag.id} data-kind={flag.kind} data-handled={flag.handled ? 'true' : 'false'}>
+    <li className={`card ${flag.kind !== 'nearing' && !flag.handled ? 'border-2 border-ember-600' : ''}`} data-flag={flag.id} data-kind={flag.kind} data-handled={flag.handled ? 'true' : 'false'}>
       <div className="flex flex-wrap items-baseline justify-between gap-2">
         <h3 id={`${id}-title`} className="text-base font-semibold">
-          {kindWords[flag.kind]}: {flag.commonName} on {flag.parcelName}
+          {flagKindWords[flag.kind] ?? flag.kind}: {flag.commonName} on {flag.parcelName}
         </h3>
         <span className={`pill ${flag.handled ? 'border-moss-400 text-moss-800' : 'border-2 border-ember-600 text-ember-700'}`} data-status={flag.handled ? 'handled' : 'open'}>
           <span aria-hidden="true">{flag.handled ? '✓ ' : '! '}</span>{flag.handled ? 'handled' : 'open'}
         </span>
       </div>
+      {flag.kind !== 'breach' && flag.kind !== 'nearing' && (
+        <p className="mt-1 text-sm text-loam-800" data-testid="flag-meaning">{flagKindMeanings[flag.kind]}</p>
+      )}
+      {flag.kind === 'off-permit' && flag.message && <p className="mt-1 text-sm" data-testid="flag-message">What the forager's phone was told: “{flag.message.replace(/^Off permit: /, '')}”</p>}
       <dl className="mt-2 grid grid-cols-[max-content_1fr] gap-x-4 gap-y-1 text-sm">
         <dt className="font-semibold">Worst state</dt>
         <dd>{worst ? <span className={`pill ${stateTones[worst]}`}><span aria-hidden="true">{stateSymbols[worst]} </span>{stateWords[worst]}</span> : flag.worstState}</dd>

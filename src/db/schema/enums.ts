@@ -24,4 +24,10 @@ export const uploadPurposeEnum = pgEnum('upload_purpose', ['harvest-photo', 'bou
 export const mailStateEnum = pgEnum('mail_state', ['queued', 'sent', 'failed']);
 export const paymentStateEnum = pgEnum('payment_state', ['pending', 'paid', 'cancelled', 'refunded', 'failed']);
 export const tallyStateEnum = pgEnum('tally_state', ['within', 'nearing', 'reached', 'over']);
-export const flagKindEnum = pgEnum('flag_kind', ['breach', 'nearing']);
+/**
+ * `over-on-sync`: an entry recorded offline within the device's tallies, over once others' entries were counted;
+ * `off-permit`: an entry recorded offline when harvest was not clear (permit, closure, zone, position or season).
+ */
+export const flagKindEnum = pgEnum('flag_kind', ['breach', 'nearing', 'over-on-sync', 'off-permit']);
+/** Where a check-in's position came from: the device's fix, or a point the forager tapped on the map. */
+export const positionSourceEnum = pgEnum('position_source', ['gps', 'tap']);

@@ -1,7 +1,7 @@
 import { sql } from 'drizzle-orm';
 import { boolean, check, date, doublePrecision, index, integer, numeric, pgTable, primaryKey, text, uniqueIndex, uuid, type AnyPgColumn } from 'drizzle-orm/pg-core';
 import { at, createdAt, id, point } from './columns';
-import { measureEnum, methodEnum, unitEnum, verdictEnum, visitEndEnum } from './enums';
+import { measureEnum, methodEnum, positionSourceEnum, unitEnum, verdictEnum, visitEndEnum } from './enums';
 import { clubs } from './clubs';
 import { users } from './auth';
 import { parcels } from './land';
@@ -47,9 +47,24 @@ export const checkIns = pgTable(
     verdict: verdictEnum('verdict').notNull(),
     parcelId: uuid('parcel_id').references(() => parcels.id),
     visitId: uuid('visit_id').references(() => visits.id),
+    /** When the forager was there: the server's instant online, the device's `recordedAt` for one synced from the device. */
     at: at('at').notNull().defaultNow(),
+    /** The device's clock when it was recorded offline; null for a check-in made online. */
+    deviceRecordedAt: at('device_recorded_at'),
+    /** When the server received it. */
+    receivedAt: at('received_at').notNull().defaultNow(),
+    positionSource: positionSourceEnum('position_source').notNull().default('gps'),
+    /** The device's key for a check-in synced from its queue: sending it again returns the first result. Unique per forager. */
+    idempotencyKey: text('idempotency_key'),
+    /** SHA-256 of what was sent with the key (src/server/field/harvest.ts, requestHashOf). */
+    requestHash: text('request_hash'),
   },
-  (t) => [index('check_ins_forager').on(t.foragerId, t.at), index('check_ins_visit').on(t.visitId), check('check_ins_accuracy', sql`${t.accuracyM} >= 0`)],
+  (t) => [
+    index('check_ins_forager').on(t.foragerId, t.at),
+    index('check_ins_visit').on(t.visitId),
+    uniqueIndex('check_ins_forager_key').on(t.foragerId, t.idempotencyKey),
+    check('check_ins_accuracy', sql`${t.accuracyM} >= 0`),
+  ],
 );
 
 /**
@@ -97,7 +112,10 @@ export const harvestEntries = pgTable(
     rootEntryId: uuid('root_entry_id').references((): AnyPgColumn => harvestEntries.id),
     correctionReason: text('correction_reason'),
     recordedBy: text('recorded_by').notNull().references(() => users.id),
+    /** When the server received it (for an entry synced from a device's queue, later than `deviceRecordedAt`). */
     recordedAt: createdAt(),
+    /** The device's clock when it was recorded offline; null for an entry recorded online. */
+    deviceRecordedAt: at('device_recorded_at'),
   },
   (t) => [
     index('harvest_entries_parcel_species').on(t.parcelId, t.speciesId, t.localDate),

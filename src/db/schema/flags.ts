@@ -12,7 +12,8 @@ import { species } from './species';
 export type FlaggedTally = { scope: string; measure?: string; state: string; used: string; limit: string; unit: string; percent: number };
 
 /**
- * A flag: an entry that took a tally over (a breach) or into nearing or reached. Raised in the
+ * A flag: an entry that took a tally over (a breach) or into nearing or reached; or one synced from a
+ * device's queue that was over once others' entries were counted, or not clear when it was recorded. Raised in the
  * entry's own transaction, one per entry; append-only (a trigger refuses UPDATE and DELETE).
  * Follow-up is recorded in flag notes.
  */
@@ -30,6 +31,8 @@ export const flags = pgTable(
     scopes: limitScopeEnum('scopes').array().notNull(),
     worstState: tallyStateEnum('worst_state').notNull(),
     tallies: jsonb('tallies').$type<FlaggedTally[]>().notNull(),
+    /** What the forager's device was told, for the kinds raised on sync (why it is off permit, which limits went over); null for the others. */
+    message: text('message'),
     createdAt: createdAt(),
   },
   (t) => [index('flags_parcel').on(t.parcelId, t.createdAt), index('flags_permit').on(t.permitId, t.createdAt)],

@@ -7,7 +7,7 @@ import type { CheckInAnswer, Forager, LonLat } from '../../lib/field/types';
 
 export type CheckInResult = CheckInAnswer & { visitId: string | null };
 
-type Asked = { forager: Forager; position: LonLat; accuracyM: number; now?: Date };
+type Asked = { forager: Forager; position: LonLat; accuracyM: number; source?: 'gps' | 'tap'; now?: Date };
 
 /**
  * The verdict at a position, as the engine gives it among the parcels near it (the GiST lookup)
@@ -38,7 +38,7 @@ export async function checkIn(db: Db, asked: Asked): Promise<CheckInResult> {
   const answer = await decideAt(db, { ...asked, now });
   const clear = answer.verdict === 'clear' && answer.parcel !== null;
   const visitId = await recordCheckIn(db, {
-    forager: asked.forager, position: asked.position, accuracyM: asked.accuracyM, now, verdict: answer.verdict, parcelId: answer.parcel?.id ?? null,
+    forager: asked.forager, position: asked.position, accuracyM: asked.accuracyM, source: asked.source ?? 'gps', now, verdict: answer.verdict, parcelId: answer.parcel?.id ?? null,
     visit: clear ? { localDate: answer.localDate, permitId: answer.permitId } : null,
   });
   return { ...answer, visitId };

@@ -31,7 +31,7 @@ const keyReused = () =>
  * What was asked with an idempotency key, as a SHA-256 of the parsed request without the key: the
  * same key sent with anything else is refused rather than answered with the first entry.
  */
-export function requestHashOf(kind: 'harvest' | 'correction', { idempotencyKey: _key, ...asked }: { idempotencyKey: string } & Record<string, unknown>, about: Record<string, string> = {}) {
+export function requestHashOf(kind: 'harvest' | 'correction' | 'sync-entry' | 'sync-check-in', { idempotencyKey: _key, ...asked }: { idempotencyKey: string } & Record<string, unknown>, about: Record<string, string> = {}) {
   return createHash('sha256').update(JSON.stringify({ kind, ...about, ...asked })).digest('hex');
 }
 
