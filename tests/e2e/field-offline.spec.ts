@@ -1,5 +1,5 @@
 import { expect, test, type APIRequestContext, type BrowserContext, type Page } from '@playwright/test';
-import { apiAs, sessionFile } from './support';
+import { apiAs, mailFor, sessionFile } from './support';
 
 /**
  * The Field with no signal, in Chromium with the app's service worker: the pack is fetched online,
@@ -35,15 +35,17 @@ test.beforeAll(async () => {
   const { species } = (await (await walter.get('/api/species')).json()) as { species: { id: string; commonName: string }[] };
   const oyster = species.find((s) => s.commonName === 'Oyster mushroom');
   const allowed = await walter.put(`/api/parcels/${parcelId}/allowances`, {
-    data: { speciesId: oyster?.id, seasons: [{ start: '01-01', end: '12-31' }], methods: ['cut', 'pick'], limits: [{ scope: 'visit', quantity: '2', unit: 'kg' }, { scope: 'day', quantity: '1000', unit: 'g' }] },
+    data: { speciesId: oyster?.id, seasons: [{ start: '01-01', end: '12-31' }], methods: ['cut', 'pick'], limits: [{ scope: 'visit', quantity: '2', unit: 'kg' }, { scope: 'day', quantity: '1000', unit: 'g' }, { scope: 'parcel-season', quantity: '1100', unit: 'g' }] },
   });
   expect(allowed.status(), await allowed.text()).toBe(200);
   expect((await walter.post(`/api/parcels/${parcelId}/zones`, { data: { name: 'Fern hollow', reason: 'Nesting woodcock', boundary: { type: 'Polygon', coordinates: [square(zone.west, zone.south, zone.size)] } } })).status()).toBe(201);
   const now = new Date();
-  const granted = await walter.post(`/api/parcels/${parcelId}/permits`, {
-    data: { holder: { kind: 'forager', email: 'forager@example.org' }, startsOn: parcelDate(new Date(now.getTime() - 2 * 86_400_000)), endsOn: parcelDate(new Date(now.getTime() + 200 * 86_400_000)), note: 'Offline field test' },
-  });
-  expect(granted.status(), await granted.text()).toBe(201);
+  for (const email of ['forager@example.org', 'beth.lindqvist@example.org']) {
+    const granted = await walter.post(`/api/parcels/${parcelId}/permits`, {
+      data: { holder: { kind: 'forager', email }, startsOn: parcelDate(new Date(now.getTime() - 2 * 86_400_000)), endsOn: parcelDate(new Date(now.getTime() + 200 * 86_400_000)), note: 'Offline field test' },
+    });
+    expect(granted.status(), await granted.text()).toBe(201);
+  }
 });
 
 test.afterAll(async () => walter?.dispose());
@@ -169,6 +171,42 @@ test('given entries kept offline, the connection coming back sends them once, an
   expect(grams(await ledgerOf(page))).toEqual([...before, '31 g', '37 g'].sort());
 
   await page.goto('/ledger');
-  await expect(page.getByText(name).first()).toBeVisible();
+  const rows = page.locator('[data-testid="ledger-table"][data-hydrated="true"] tbody tr').filter({ hasText: name });
+  await expect(rows.filter({ hasText: '31 g' })).toHaveCount(1);
+  await expect(rows.filter({ hasText: '37 g' })).toHaveCount(1);
+  await context.close();
+});
+
+/*
+ * Everyone on the parcel may take 1 100 g this season. Owen keeps 450 g on his phone, within its
+ * tallies (the pack counted at most the 68 g the test above sent); meanwhile Beth records 700 g
+ * online. Synced, Owen's entry takes the season over: recorded, flagged over on sync, and the
+ * landowner is told.
+ */
+test("given an entry within on the phone that is over once another forager's entry is counted, it is recorded, flagged over on sync, and the landowner hears of it", async ({ browser }) => {
+  const context = await browser.newContext({ storageState: sessionFile('forager@example.org'), geolocation: { ...centre, accuracy: 8 }, permissions: ['geolocation'] });
+  const page = await readyForTheField(context);
+  await context.setOffline(true);
+  await page.reload();
+  await page.locator('[data-hydrated]').waitFor();
+  await expect(await checkInAt(page, context, centre, 8)).toHaveAttribute('data-verdict', 'clear');
+  await keep(page, '450');
+  await expect(page.getByTestId('species').locator('[data-species="Oyster mushroom"] [data-scope="parcel-season"]')).toHaveAttribute('data-state', /within|nearing|reached/);
+
+  const beth = await apiAs('beth.lindqvist@example.org');
+  const visit = await beth.post('/api/check-ins', { data: { longitude: centre.longitude, latitude: centre.latitude, accuracyM: 5 } });
+  expect(visit.status(), await visit.text()).toBe(200);
+  const { species } = (await (await beth.get('/api/species')).json()) as { species: { id: string; commonName: string }[] };
+  const took = await beth.post('/api/harvest-entries', {
+    data: { idempotencyKey: `offline-spec-${Date.now()}`, visitId: (await visit.json()).visitId, speciesId: species.find((s) => s.commonName === 'Oyster mushroom')?.id, method: 'pick', quantities: [{ quantity: '700', unit: 'g' }] },
+  });
+  expect(took.status(), await took.text()).toBe(201);
+  await beth.dispose();
+
+  await context.setOffline(false);
+  const flagged = page.getByTestId('queue').locator('[data-state="flagged"]');
+  await expect(flagged).toHaveCount(1);
+  await expect(flagged).toContainText('Over on sync');
+  await expect.poll(async () => (await mailFor(page.request, 'landowner@example.org')).some((m) => m.subject === `Limit went over on sync on ${name}`)).toBe(true);
   await context.close();
 });
