@@ -23,10 +23,31 @@ export type FieldOfflineFigures = {
 
 const chromiumPath = '/usr/bin/chromium';
 
-/** The engine's offline check-in as one browser script (`window.offlineCheckIn`), bundled by esbuild from src/lib/field/pack.ts. */
+/**
+ * The engine's offline check-in and a timing loop over it as one browser script, bundled by esbuild
+ * from src/lib/field/pack.ts: `globalThis.timeOffline(packJson, box, positions, at)` decides
+ * `positions` seeded random positions in the box and answers each one's milliseconds and verdict.
+ */
 async function engineScript(): Promise<string> {
+  const contents = `
+    import { offlineCheckIn } from './src/lib/field/pack';
+    globalThis.timeOffline = (packJson, box, positions, at) => {
+      const pack = JSON.parse(packJson);
+      let seed = 12;
+      const random = () => ((seed = (seed * 16807) % 2147483647) - 1) / 2147483646;
+      const samples = [];
+      const verdicts = {};
+      for (let i = 0; i < positions; i += 1) {
+        const position = [box.west + random() * (box.east - box.west), box.south + random() * (box.north - box.south)];
+        const t0 = performance.now();
+        const answer = offlineCheckIn(pack, { position, accuracyM: 5 + random() * 25, at: new Date(at), counted: [] });
+        samples.push(performance.now() - t0);
+        verdicts[answer.verdict] = (verdicts[answer.verdict] ?? 0) + 1;
+      }
+      return { samples, verdicts };
+    };`;
   const out = await build({
-    stdin: { contents: "import { offlineCheckIn } from './src/lib/field/pack'; (globalThis as any).offlineCheckIn = offlineCheckIn;", resolveDir: root, loader: 'ts' },
+    stdin: { contents, resolveDir: root, loader: 'ts' },
     bundle: true, format: 'iife', platform: 'browser', target: 'es2022', write: false, minify: true, logLevel: 'silent',
   });
   return out.outputFiles[0]?.text ?? '';
@@ -91,25 +112,11 @@ export async function measureFieldOffline(
     const cdp = await context.newCDPSession(engine);
     const throttle = 4;
     await cdp.send('Emulation.setCPUThrottlingRate', { rate: throttle });
-    const timing = await engine.evaluate(
-      ({ packJson, box, positions, at }) => {
-        const run = (globalThis as unknown as { offlineCheckIn: (pack: unknown, input: unknown) => { verdict: string } }).offlineCheckIn;
-        const pack = JSON.parse(packJson);
-        let seed = 12;
-        const random = () => ((seed = (seed * 16807) % 2147483647) - 1) / 2147483646;
-        const samples: number[] = [];
-        const verdicts: Record<string, number> = {};
-        for (let i = 0; i < positions; i += 1) {
-          const position = [box.west + random() * (box.east - box.west), box.south + random() * (box.north - box.south)];
-          const t0 = performance.now();
-          const answer = run(pack, { position, accuracyM: 5 + random() * 25, at: new Date(at), counted: [] });
-          samples.push(performance.now() - t0);
-          verdicts[answer.verdict] = (verdicts[answer.verdict] ?? 0) + 1;
-        }
-        return { samples, verdicts };
-      },
-      { packJson, box, positions, at: now.toISOString() },
-    );
+    type Timing = { samples: number[]; verdicts: Record<string, number> };
+    const timing = (await engine.evaluate(
+      (args: [string, typeof box, number, string]) => (globalThis as unknown as { timeOffline: (...a: unknown[]) => Timing }).timeOffline(...args),
+      [packJson, box, positions, now.toISOString()] as [string, typeof box, number, string],
+    )) as Timing;
     const sorted = [...timing.samples].sort((a, b) => a - b);
     const at = (q: number) => sorted[Math.min(sorted.length - 1, Math.floor(q * sorted.length))] ?? Number.NaN;
     return {
