@@ -4,13 +4,14 @@ import { fieldScopeWords, formatAmount, formatPercent, formatSeasonWindows, spec
 
 const barTone: Record<Tally['state'], string> = { within: 'bg-moss-500', nearing: 'bg-loam-500', reached: 'bg-ember-500', over: 'bg-ember-700' };
 
-/** What remains of a limit, or by how much it is over: "250 g left", "none left", "200 g over". */
+/** What remains of a limit, or by how much it is over: "250 g left of 500 g", "none left of 500 g", "200 g over the 500 g limit". */
 function left(t: Tally): string {
+  const limit = `${formatAmount(t.limit.quantity)} ${unitAfter(t.limit.quantity, t.limit.unit)}`;
   if (t.state === 'over') {
     const over = subtractDecimals(t.used, t.limit.quantity);
-    return `${formatAmount(over)} ${unitAfter(over, t.limit.unit)} over`;
+    return `${formatAmount(over)} ${unitAfter(over, t.limit.unit)} over the ${limit} limit`;
   }
-  return compareDecimals(t.remaining, '0') > 0 ? `${formatAmount(t.remaining)} ${unitAfter(t.remaining, t.limit.unit)} left` : 'none left';
+  return compareDecimals(t.remaining, '0') > 0 ? `${formatAmount(t.remaining)} ${unitAfter(t.remaining, t.limit.unit)} left of ${limit}` : `none left of ${limit}`;
 }
 
 /** A bar per limit: how much remains this visit, today and this season, in each kind of quantity limited. */
@@ -20,7 +21,7 @@ export function TallyBars({ tallies }: { tallies: Tally[] }) {
       {tallies.map((t) => (
         <li key={`${t.scope}|${t.measure}`} data-scope={t.scope} data-measure={t.measure} data-state={t.state}>
           <div className="flex flex-wrap items-baseline justify-between gap-x-3 text-sm">
-            <span className="min-w-0">{fieldScopeWords[t.scope]}: {left(t)} of {formatAmount(t.limit.quantity)} {unitAfter(t.limit.quantity, t.limit.unit)}{t.limit.fromPermit ? ' (your permit)' : ''}</span>
+            <span className="min-w-0">{fieldScopeWords[t.scope]}: {left(t)}{t.limit.fromPermit ? ' (your permit)' : ''}</span>
             <span className="ml-auto whitespace-nowrap font-semibold"><span aria-hidden="true">{stateSymbols[t.state]} </span>{stateWords[t.state]}</span>
           </div>
           <div className="mt-1 h-3 w-full overflow-hidden rounded-full bg-loam-100" role="meter" aria-label={`${fieldScopeWords[t.scope]}: ${formatPercent(t.percent)} used`} aria-valuemin={0} aria-valuemax={100} aria-valuenow={Math.min(100, t.percent)}>
