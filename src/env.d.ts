@@ -1,6 +1,5 @@
 /// <reference types="astro/client" />
 /// <reference types="vite-plugin-pwa/info" />
-/// <reference types="vite-plugin-pwa/vanillajs" />
 
 declare namespace App {
   interface Locals {

@@ -255,6 +255,15 @@ describe('packTiles', () => {
     expect(tiles.map((t) => t.z)).toEqual([...Array(9).fill(13), ...Array(9).fill(14), 15, 15]);
     expect(tiles.slice(0, 9)).toEqual(expect.arrayContaining(z13));
   });
+  it('given two parcels a degree of longitude apart, it loads only the tiles around each, not the box between them', () => {
+    // By the same formulas at z 13: −71.904° and −71.896° give x 2459.79 and 2459.97, so the far
+    // parcel lies in tile x 2459 (y 2981 as above): 3 × 3 tiles around each, 18 in all, where the
+    // box between them would be 25 tiles wide.
+    const far = { ...maple(), id: 'far', boundary: polygon(box(-71.904, 43.898, -71.896, 43.902)) };
+    const tiles = packTiles(pack({}, [birch(), far]), [13]);
+    expect(tiles).toHaveLength(18);
+    expect([...new Set(tiles.map((t) => t.x))].sort()).toEqual([2436, 2437, 2438, 2458, 2459, 2460]);
+  });
   it('given a pack with no parcels, it needs no tiles', () => {
     expect(packTiles({ parcels: [] })).toEqual([]);
   });

@@ -69,7 +69,16 @@ export default function FieldApp({ tiles, parcels, userId }: { tiles: ParcelMapP
 
   /** Loads the pack's map tiles once through the service worker, which keeps them for offline use. */
   async function saveTiles(fresh: FieldPack) {
-    if (!('serviceWorker' in navigator) || !navigator.serviceWorker.controller) return;
+    if (!('serviceWorker' in navigator)) return;
+    // On the first visit the worker may still be starting: wait for it to take the page, briefly.
+    await navigator.serviceWorker.ready;
+    if (!navigator.serviceWorker.controller) {
+      await new Promise((resolve) => {
+        navigator.serviceWorker.addEventListener('controllerchange', resolve, { once: true });
+        setTimeout(resolve, 5000);
+      });
+    }
+    if (!navigator.serviceWorker.controller) return;
     const wanted = packTiles(fresh).map((t) => tiles.url.replace('{z}', String(t.z)).replace('{x}', String(t.x)).replace('{y}', String(t.y)).replace('{s}', 'a'));
     let done = 0;
     setTileProgress({ done, of: wanted.length });

@@ -165,23 +165,31 @@ export function offlineCheckIn(pack: FieldPack, { position, accuracyM, at, count
 export const packZooms = [13, 14, 15, 16, 17];
 
 /**
- * The map tiles a pack needs offline: those covering its parcels (with a margin of a tile) at each
- * of `zooms`, at most `cap` of them, coarse zooms first so a cap drops the finest detail.
+ * The map tiles a pack needs offline: those covering each parcel (with a margin of a tile) at each
+ * of `zooms`, each tile once, at most `cap` of them, coarse zooms first so a cap drops the finest
+ * detail. Parcels far apart cost only their own tiles, not the whole box between them.
  */
-export function packTiles(pack: Pick<FieldPack, 'parcels'>, zooms: number[] = packZooms, cap = 2000): Tile[] {
-  const points = pack.parcels.flatMap((p) => p.boundary.coordinates.flatMap((polygon) => polygon[0] ?? []));
-  if (points.length === 0) return [];
-  const lons = points.map((p) => p[0] as number);
-  const lats = points.map((p) => p[1] as number);
-  const [west, east, south, north] = [Math.min(...lons), Math.max(...lons), Math.min(...lats), Math.max(...lats)];
+export function packTiles(pack: Pick<FieldPack, 'parcels'>, zooms: number[] = packZooms, cap = 800): Tile[] {
+  const boxes = pack.parcels.map((p) => {
+    const corners = p.boundary.coordinates.flatMap((polygon) => polygon[0] ?? []);
+    const lons = corners.map((c) => c[0] as number);
+    const lats = corners.map((c) => c[1] as number);
+    return { west: Math.min(...lons), east: Math.max(...lons), south: Math.min(...lats), north: Math.max(...lats) };
+  });
   const tiles: Tile[] = [];
+  const seen = new Set<string>();
   for (const z of [...zooms].sort((a, b) => a - b)) {
     const last = tileCount(z) - 1;
-    const [x0, x1] = [Math.max(0, Math.floor(lonToTileX(west, z)) - 1), Math.min(last, Math.floor(lonToTileX(east, z)) + 1)];
-    const [y0, y1] = [Math.max(0, Math.floor(latToTileY(north, z)) - 1), Math.min(last, Math.floor(latToTileY(south, z)) + 1)];
-    for (let x = x0; x <= x1; x++) for (let y = y0; y <= y1; y++) {
-      if (tiles.length >= cap) return tiles;
-      tiles.push({ z, x, y });
+    for (const box of boxes) {
+      const [x0, x1] = [Math.max(0, Math.floor(lonToTileX(box.west, z)) - 1), Math.min(last, Math.floor(lonToTileX(box.east, z)) + 1)];
+      const [y0, y1] = [Math.max(0, Math.floor(latToTileY(box.north, z)) - 1), Math.min(last, Math.floor(latToTileY(box.south, z)) + 1)];
+      for (let x = x0; x <= x1; x++) for (let y = y0; y <= y1; y++) {
+        const key = `${z}/${x}/${y}`;
+        if (seen.has(key)) continue;
+        if (tiles.length >= cap) return tiles;
+        seen.add(key);
+        tiles.push({ z, x, y });
+      }
     }
   }
   return tiles;
