@@ -1,6 +1,6 @@
 /**
  * The map island: parcels, no-harvest zones and previews on our tiles, and (with `editable`) a
- * boundary to draw with Leaflet-Geoman. Leaflet touches `window` when imported, so an Astro page
+ * boundary to draw with Leaflet-Geoman, loaded only then. Leaflet touches `window` when imported, so an Astro page
  * must use `client:only="react"` (`client:load` builds, then the page answers 500):
  *
  *   ---
@@ -14,13 +14,12 @@
  * `editable.onChange` can only be passed that way, since an Astro page cannot pass functions.
  */
 import 'leaflet/dist/leaflet.css';
-import '@geoman-io/leaflet-geoman-free/dist/leaflet-geoman.css';
 import type { MultiPolygon } from 'geojson';
 import type { PointTuple } from 'leaflet';
-import { useEffect, useId, useMemo, useRef, useState } from 'react';
+import { lazy, Suspense, useEffect, useId, useMemo, useRef, useState } from 'react';
 import './leaflet-setup';
 import { MapContainer, Marker, Polygon, TileLayer, Tooltip, useMap, useMapEvents } from 'react-leaflet';
-import DrawingTools, { type DrawingOptions } from './DrawingTools';
+import type { DrawingOptions } from './DrawingTools';
 import { describeDrawing, layersToMultiPolygon, toLatLngs, type Area, type LonLatBounds } from './geometry';
 import { fitMaxZoom, viewKey, viewTargetFor, type ViewTarget } from './map-view';
 import { hatchColour, kindWords, markerIcons, pathStyleFor, toneWords, type FeatureKind, type MarkerTone } from './map-styles';
@@ -39,6 +38,9 @@ export type MapFeature = {
 };
 
 export type MapMarker = { at: [number, number] /* [lon, lat] */; label: string; tone: MarkerTone };
+
+/** Leaflet-Geoman and its CSS, in a chunk of their own: only maps that draw load them. */
+const DrawingTools = lazy(() => import('./DrawingTools'));
 
 export type ParcelMapProps = {
   /** From `mapTiles()` in src/server/map-config.ts: our grid tiles unless MAP_TILE_URL is set. */
@@ -192,7 +194,11 @@ export default function ParcelMap({ tiles, features, fitTo = 'features', editabl
               <Tooltip direction="top">{marker.label}</Tooltip>
             </Marker>
           ))}
-          {editable && <DrawingTools options={editable} onDrawing={setDrawing} />}
+          {editable && (
+            <Suspense fallback={null}>
+              <DrawingTools options={editable} onDrawing={setDrawing} />
+            </Suspense>
+          )}
           {onPick && !editable && <PickHandler onPick={onPick} />}
           <MapBehaviour target={target} label={mapLabel(features, markers, !!editable)} maxZoom={tiles.maxZoom} />
         </MapContainer>
