@@ -1,7 +1,9 @@
 /**
- * The map island: parcels, no-harvest zones and previews on our tiles, and (with `editable`) a
- * boundary to draw with Leaflet-Geoman, loaded only then. Leaflet touches `window` when imported, so an Astro page
- * must use `client:only="react"` (`client:load` builds, then the page answers 500):
+ * The map island: parcels (named on the map), no-harvest zones and previews on our tiles, the land
+ * under them (BaseLayer, when the tiles show none), where the forager is (`position`), and (with
+ * `editable`) a boundary to draw with Leaflet-Geoman, loaded only then. Leaflet touches `window`
+ * when imported, so an Astro page must use `client:only="react"` (`client:load` builds, then the
+ * page answers 500):
  *
  *   ---
  *   import ParcelMap from '../components/map/ParcelMap';
@@ -19,7 +21,10 @@ import type { PointTuple } from 'leaflet';
 import { lazy, Suspense, useEffect, useId, useMemo, useRef, useState } from 'react';
 import './leaflet-setup';
 import { MapContainer, Marker, Polygon, TileLayer, Tooltip, useMap, useMapEvents } from 'react-leaflet';
+import AreaLabels from './AreaLabels';
+import BaseLayer from './BaseLayer';
 import type { DrawingOptions } from './DrawingTools';
+import PositionMarker, { describePosition, type MapPosition } from './PositionMarker';
 import { describeDrawing, layersToMultiPolygon, toLatLngs, type Area, type LonLatBounds } from './geometry';
 import { fitMaxZoom, viewKey, viewTargetFor, type ViewTarget } from './map-view';
 import { hatchColour, kindWords, markerIcons, pathStyleFor, toneWords, type FeatureKind, type MarkerTone } from './map-styles';
@@ -38,13 +43,18 @@ export type MapFeature = {
 };
 
 export type MapMarker = { at: [number, number] /* [lon, lat] */; label: string; tone: MarkerTone };
+export type { MapPosition };
 
 /** Leaflet-Geoman and its CSS, in a chunk of their own: only maps that draw load them. */
 const DrawingTools = lazy(() => import('./DrawingTools'));
 
 export type ParcelMapProps = {
-  /** From `mapTiles()` in src/server/map-config.ts: our grid tiles unless MAP_TILE_URL is set. */
-  tiles: { url: string; attribution: string; maxZoom: number };
+  /**
+   * From `mapTiles()` in src/server/map-config.ts: our plain tiles and the demo valley's lines
+   * (`baseLayerUrl`) unless MAP_TILE_URL is set.
+   */
+  tiles: { url: string; attribution: string; maxZoom: number; baseLayerUrl?: string };
+  /** Parcels, no-harvest zones (`kind: 'zone'`, hatched), previews and others' land, drawn in this order. */
   features: MapFeature[];
   /** What to show: every feature (and the geometry being edited), or a box [[west, south], [east, north]] in [lon, lat]. */
   fitTo?: 'features' | LonLatBounds;
@@ -52,6 +62,8 @@ export type ParcelMapProps = {
   editable?: DrawingOptions;
   /** Points to call out, e.g. where a boundary crosses itself. */
   markers?: MapMarker[];
+  /** Where the forager is: a device fix (with its accuracy circle) or a tapped spot. */
+  position?: MapPosition;
   /** CSS height of the map; default 28rem. */
   height?: string;
   testId?: string;
@@ -141,15 +153,18 @@ function MapBehaviour({ target, label, maxZoom }: { target: ViewTarget; label: s
   return null;
 }
 
-function mapLabel(features: MapFeature[], markers: MapMarker[], drawing: boolean) {
+function mapLabel(features: MapFeature[], markers: MapMarker[], drawing: boolean, position: MapPosition | undefined) {
   const areas = features.length === 0 ? 'no areas' : features.length === 1 ? `1 area, ${features[0]?.name}` : `${features.length} areas`;
   const problems = markers.filter((m) => m.tone === 'problem').length;
-  const extra = problems > 0 ? `, ${problems} marked problem${problems === 1 ? '' : 's'}` : '';
+  const extra = (problems > 0 ? `, ${problems} marked problem${problems === 1 ? '' : 's'}` : '') + (position ? `, ${position.source === 'gps' ? 'your position' : 'a tapped spot'}` : '');
   const help = drawing ? 'Draw with the tools at the top left, by mouse or touch.' : 'Arrow keys pan, plus and minus zoom.';
   return `Map with ${areas}${extra}. ${help} The areas are also listed after the map.`;
 }
 
-export default function ParcelMap({ tiles, features, fitTo = 'features', editable, markers = [], height = '28rem', testId, onPick }: ParcelMapProps) {
+/** Parcels and others' land are named on the map itself; zones and previews by tooltip and list. */
+const labelledKinds = new Set<FeatureKind>(['parcel', 'other-owner']);
+
+export default function ParcelMap({ tiles, features, fitTo = 'features', editable, markers = [], position, height = '28rem', testId, onPick }: ParcelMapProps) {
   const uid = useId().replace(/[^a-zA-Z0-9_-]/g, '');
   const hatchId = `tallywood-hatch-${uid}`;
   const listId = `tallywood-map-list-${uid}`;
@@ -161,6 +176,11 @@ export default function ParcelMap({ tiles, features, fitTo = 'features', editabl
   const target = useMemo(() => viewTargetFor(fitTo, areas), [fitTo, areas]);
   const initialView = useRef(target).current;
   const fitOptions = { padding: [24, 24] as PointTuple, maxZoom: Math.min(fitMaxZoom, tiles.maxZoom) };
+  const labelled = useMemo(
+    () => features.filter((f) => labelledKinds.has(f.kind ?? 'parcel')).map((f) => ({ id: f.id, name: f.name, geometry: f.geometry, kind: f.kind ?? 'parcel' })),
+    [features],
+  );
+  const zones = useMemo(() => features.filter((f) => f.kind === 'zone').map((f) => f.geometry), [features]);
 
   return (
     <div className="relative isolate" data-testid={testId}>
@@ -179,9 +199,12 @@ export default function ParcelMap({ tiles, features, fitTo = 'features', editabl
           {...('bounds' in initialView ? { bounds: initialView.bounds, boundsOptions: fitOptions } : { center: initialView.center, zoom: initialView.zoom })}
         >
           <TileLayer url={tiles.url} attribution={tiles.attribution} maxZoom={tiles.maxZoom} />
+          {tiles.baseLayerUrl && <BaseLayer url={tiles.baseLayerUrl} />}
           {features.map((feature) => (
             <FeatureShape key={feature.id} feature={feature} hatchId={hatchId} drawing={!!editable} />
           ))}
+          <AreaLabels areas={labelled} avoid={zones} />
+          {position && <PositionMarker position={position} />}
           {markers.map((marker, i) => (
             <Marker
               key={`${i}:${marker.at.join(',')}`}
@@ -200,7 +223,7 @@ export default function ParcelMap({ tiles, features, fitTo = 'features', editabl
             </Suspense>
           )}
           {onPick && !editable && <PickHandler onPick={onPick} />}
-          <MapBehaviour target={target} label={mapLabel(features, markers, !!editable)} maxZoom={tiles.maxZoom} />
+          <MapBehaviour target={target} label={mapLabel(features, markers, !!editable, position)} maxZoom={tiles.maxZoom} />
         </MapContainer>
       </div>
 
@@ -214,6 +237,12 @@ export default function ParcelMap({ tiles, features, fitTo = 'features', editabl
               <li key={feature.id}>{feature.href && !editable ? <a href={feature.href}>{describeFeature(feature)}</a> : describeFeature(feature)}</li>
             ))}
           </ul>
+        )}
+        {position && (
+          <>
+            <p className="font-semibold">Your position</p>
+            <p>{describePosition(position)} (at {formatPoint(position.at)})</p>
+          </>
         )}
         {markers.length > 0 && (
           <>
