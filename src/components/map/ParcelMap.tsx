@@ -16,8 +16,9 @@
  * `editable.onChange` can only be passed that way, since an Astro page cannot pass functions.
  */
 import 'leaflet/dist/leaflet.css';
+import './map.css';
 import type { MultiPolygon } from 'geojson';
-import type { PointTuple } from 'leaflet';
+import type { LeafletMouseEvent, PointTuple } from 'leaflet';
 import { lazy, Suspense, useEffect, useId, useMemo, useRef, useState } from 'react';
 import './leaflet-setup';
 import { MapContainer, Marker, Polygon, TileLayer, Tooltip, useMap, useMapEvents } from 'react-leaflet';
@@ -77,12 +78,19 @@ function PickHandler({ onPick }: { onPick: (at: [number, number]) => void }) {
 }
 
 /** An area on the map; not editable, but snappable while drawing so a zone can follow a boundary. */
-function FeatureShape({ feature, hatchId, drawing }: { feature: MapFeature; hatchId: string; drawing: boolean }) {
+/**
+ * On a map that takes a tap for a position, a tap on an area closes its tooltip again: a touch
+ * opens it as a hover would, and it would cover the spot just tapped.
+ */
+function FeatureShape({ feature, hatchId, drawing, picking }: { feature: MapFeature; hatchId: string; drawing: boolean; picking: boolean }) {
   const kind = feature.kind ?? 'parcel';
   const positions = useMemo(() => toLatLngs(feature.geometry), [feature.geometry]);
   const pathOptions = useMemo(() => pathStyleFor(kind, hatchId), [kind, hatchId]);
   const href = drawing ? undefined : feature.href;
-  const eventHandlers = useMemo(() => (href ? { click: () => window.location.assign(href) } : {}), [href]);
+  const eventHandlers = useMemo(
+    () => (href ? { click: () => window.location.assign(href) } : picking ? { click: (event: LeafletMouseEvent) => event.target.closeTooltip() } : {}),
+    [href, picking],
+  );
   return (
     <Polygon positions={positions} pathOptions={pathOptions} eventHandlers={eventHandlers} pmIgnore snapIgnore={!drawing}>
       <Tooltip sticky>{describeFeature(feature)}</Tooltip>
@@ -201,7 +209,7 @@ export default function ParcelMap({ tiles, features, fitTo = 'features', editabl
           <TileLayer url={tiles.url} attribution={tiles.attribution} maxZoom={tiles.maxZoom} />
           {tiles.baseLayerUrl && <BaseLayer url={tiles.baseLayerUrl} />}
           {features.map((feature) => (
-            <FeatureShape key={feature.id} feature={feature} hatchId={hatchId} drawing={!!editable} />
+            <FeatureShape key={feature.id} feature={feature} hatchId={hatchId} drawing={!!editable} picking={!!onPick && !editable} />
           ))}
           <AreaLabels areas={labelled} avoid={zones} />
           {position && <PositionMarker position={position} />}
