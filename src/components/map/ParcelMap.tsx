@@ -169,6 +169,13 @@ function mapLabel(features: MapFeature[], markers: MapMarker[], drawing: boolean
   return `Map with ${areas}${extra}. ${help} The areas are also listed after the map.`;
 }
 
+/** A square `halfM` metres either side of a [lon, lat], near enough for keeping a name clear of it. */
+function squareAround([lon, lat]: [number, number], halfM: number): Area {
+  const dLat = halfM / 111_320;
+  const dLon = dLat / Math.max(0.01, Math.cos((lat * Math.PI) / 180));
+  return { type: 'Polygon', coordinates: [[[lon - dLon, lat - dLat], [lon + dLon, lat - dLat], [lon + dLon, lat + dLat], [lon - dLon, lat + dLat], [lon - dLon, lat - dLat]]] };
+}
+
 /** Parcels and others' land are named on the map itself; zones and previews by tooltip and list. */
 const labelledKinds = new Set<FeatureKind>(['parcel', 'other-owner']);
 
@@ -188,7 +195,11 @@ export default function ParcelMap({ tiles, features, fitTo = 'features', editabl
     () => features.filter((f) => labelledKinds.has(f.kind ?? 'parcel')).map((f) => ({ id: f.id, name: f.name, geometry: f.geometry, kind: f.kind ?? 'parcel' })),
     [features],
   );
-  const zones = useMemo(() => features.filter((f) => f.kind === 'zone').map((f) => f.geometry), [features]);
+  // Names keep clear of no-harvest zones and of where the forager is (the fix's circle, or 30 m).
+  const keepClear = useMemo(
+    () => [...features.filter((f) => f.kind === 'zone').map((f) => f.geometry), ...(position ? [squareAround(position.at, Math.max(30, position.accuracyM))] : [])],
+    [features, position],
+  );
 
   return (
     <div className="relative isolate" data-testid={testId}>
@@ -211,7 +222,7 @@ export default function ParcelMap({ tiles, features, fitTo = 'features', editabl
           {features.map((feature) => (
             <FeatureShape key={feature.id} feature={feature} hatchId={hatchId} drawing={!!editable} picking={!!onPick && !editable} />
           ))}
-          <AreaLabels areas={labelled} avoid={zones} />
+          <AreaLabels areas={labelled} avoid={keepClear} />
           {position && <PositionMarker position={position} />}
           {markers.map((marker, i) => (
             <Marker
