@@ -1,13 +1,13 @@
 /**
  * Web Mercator XYZ tiles, per the OpenStreetMap "Slippy map tilenames" convention: at zoom z the
  * world is 2^z × 2^z tiles of 256 px, x counted east from 180°W, y counted south from 85.0511°N.
- * Pure: the local grid tiles (/tiles/{z}/{x}/{y}.svg) are drawn from these numbers alone.
+ * Pure: the local plain tiles (/tiles/{z}/{x}/{y}.svg) are drawn from these numbers alone.
  */
 
 export type Tile = { z: number; x: number; y: number };
 export type TileBounds = { west: number; south: number; east: number; north: number };
 
-/** The deepest zoom the local grid answers; at 22 a tile is about 10 m across at the equator. */
+/** The deepest zoom the local tiles answer; at 22 a tile is about 10 m across at the equator. */
 export const maxLocalZoom = 22;
 export const tileSize = 256;
 
@@ -58,11 +58,12 @@ export function tileBounds({ z, x, y }: Tile): TileBounds {
 const steps = [90, 45, 30, 15, 10, 5, 2, 1, ...[-1, -2, -3, -4, -5, -6].flatMap((e) => [5, 2, 1].map((m) => Number(`${m}e${e}`)))];
 
 /**
- * Degrees between graticule lines at a zoom: the widest round step that still puts at least 2.5
- * lines across a tile (so every tile carries a label), e.g. 0.01° at zoom 13, 1° at zoom 7.
+ * Degrees between graticule lines at a zoom: the widest round step that still puts a line across
+ * every tile (one to two and a half lines a tile), e.g. 0.02° at zoom 13, 2° at zoom 7. Sparse on
+ * purpose: the lines only say the map is flat paper at a scale, they are not the thing to read.
  */
 export function graticuleStep(z: number): number {
-  const most = 360 / tileCount(z) / 2.5;
+  const most = 360 / tileCount(z);
   return steps.find((step) => step <= most * (1 + 1e-9)) ?? 1e-6;
 }
 
@@ -89,10 +90,20 @@ export const formatLatitude = (lat: number, decimals: number) => formatDegrees(l
 export const formatLongitude = (lon: number, decimals: number) =>
   Math.abs(Math.abs(lon) - 180) < 1e-9 ? '180°' : formatDegrees(lon, decimals, 'E', 'W');
 
-export type TileSource = { url: string; attribution: string; maxZoom: number };
+export type TileSource = {
+  url: string;
+  attribution: string;
+  maxZoom: number;
+  /** Named brooks, roads, trails and ridges to draw under the parcels (GeoJSON), when the tiles show no land. */
+  baseLayerUrl?: string;
+};
 
-export const localTileUrl = '/tiles/{z}/{x}/{y}.svg';
-export const localTileAttribution = 'Tallywood grid — no base map data';
+/**
+ * Our own tiles. `look` names their drawing: they are cached for a year, so a new drawing gets a new
+ * value here and browsers fetch it afresh.
+ */
+export const localTileUrl = '/tiles/{z}/{x}/{y}.svg?look=paper-1';
+export const localTileAttribution = 'Tallywood plain map';
 /** Most hosted raster tile services stop at zoom 19 (OpenStreetMap's standard layer does, from memory). */
 export const defaultRemoteMaxZoom = 19;
 
@@ -107,9 +118,9 @@ export function tileTemplateProblem(template: string): string | null {
 }
 
 /**
- * Where the map's tiles come from: a configured XYZ server, or (unset) our own grid tiles, which
+ * Where the map's tiles come from: a configured XYZ server, or (unset) our own plain tiles, which
  * need no internet. A configured server without an attribution is credited by its host name; our
- * grid always carries its own credit, which says there is no base map under it.
+ * tiles always carry their own credit, which says they are not a survey map.
  */
 export function resolveTileSource(config: { url?: string; attribution?: string; maxZoom?: number }): TileSource {
   const url = config.url?.trim();
@@ -121,19 +132,21 @@ export function resolveTileSource(config: { url?: string; attribution?: string; 
 }
 
 const palette = {
-  background: '#fbfbf4', // lichen-50
-  edge: '#eee7dd', // loam-100: a faint seam so tiles read as a grid, not a photo
-  line: '#c4aa8c', // loam-300
-  label: '#5c4431', // loam-700
-  corner: '#8d6a49', // loam-500
+  paper: '#f5f1e6', // a warm paper, a shade deeper than the page (lichen-50) so the map's edge shows
+  line: '#e3d9c7', // between loam-100 and loam-200: seen when looked for, not otherwise
+  label: '#a99779', // a faded loam
 };
 
 const px = (v: number) => Math.round(v * 10) / 10;
 
+/** Tiles between coordinate labels, across and down: one label in a few screens, not one a tile. */
+const labelEvery = 4;
+
 /**
- * Our own 256 × 256 tile: a pale ground, a graticule whose spacing follows the zoom, a label on each
- * line and the tile's z/x/y in a corner. It shows coordinates only, never places, so nobody mistakes
- * it for a base map.
+ * Our own 256 × 256 tile: plain paper and a faint graticule whose spacing follows the zoom. It shows
+ * no places (the base layer's lines or a real tile server do that) and no tile address. At most one
+ * small coordinate label, where a line meets the tile's edge: latitudes on every fourth column of
+ * tiles, at the left edge; longitudes on every fourth row, at the top edge, in the other columns.
  */
 export function renderTileSvg(tile: Tile): string {
   const { z, x, y } = tile;
@@ -141,28 +154,29 @@ export function renderTileSvg(tile: Tile): string {
   const step = graticuleStep(z);
   const decimals = stepDecimals(step);
   const lines: string[] = [];
-  const labels: string[] = [];
+  let label = '';
 
-  for (const lon of graticuleValues(west, east, step)) {
-    const at = px((lonToTileX(lon, z) - x) * tileSize);
-    lines.push(`M${at} 0V${tileSize}`);
-    if (at > 14 && at < tileSize - 2) labels.push(`<text transform="translate(${px(at - 3)} ${tileSize - 4}) rotate(-90)">${formatLongitude(lon, decimals)}</text>`);
-  }
-  for (const lat of graticuleValues(south, north, step)) {
-    const at = px((latToTileY(lat, z) - y) * tileSize);
-    lines.push(`M0 ${at}H${tileSize}`);
-    if (at > 12 && at < tileSize - 2) labels.push(`<text x="4" y="${px(at - 3)}">${formatLatitude(lat, decimals)}</text>`);
+  const longitudes = graticuleValues(west, east, step).map((lon) => ({ lon, at: px((lonToTileX(lon, z) - x) * tileSize) }));
+  const latitudes = graticuleValues(south, north, step)
+    .reverse()
+    .map((lat) => ({ lat, at: px((latToTileY(lat, z) - y) * tileSize) }));
+  for (const { at } of longitudes) lines.push(`M${at} 0V${tileSize}`);
+  for (const { at } of latitudes) lines.push(`M0 ${at}H${tileSize}`);
+
+  const roomy = (at: number) => at > 14 && at < tileSize - 14;
+  if (x % labelEvery === 0) {
+    const first = latitudes.find(({ at }) => roomy(at));
+    if (first) label = `<text x="4" y="${px(first.at - 3)}">${formatLatitude(first.lat, decimals)}</text>`;
+  } else if (y % labelEvery === 0) {
+    const first = longitudes.find(({ at }) => roomy(at) && at < tileSize - 60);
+    if (first) label = `<text x="${px(first.at + 3)}" y="11">${formatLongitude(first.lon, decimals)}</text>`;
   }
 
   return [
     `<svg xmlns="http://www.w3.org/2000/svg" width="${tileSize}" height="${tileSize}" viewBox="0 0 ${tileSize} ${tileSize}">`,
-    `<rect width="${tileSize}" height="${tileSize}" fill="${palette.background}"/>`,
-    `<path d="M0 0.5H${tileSize}M0.5 0V${tileSize}" stroke="${palette.edge}" fill="none"/>`,
+    `<rect width="${tileSize}" height="${tileSize}" fill="${palette.paper}"/>`,
     lines.length > 0 ? `<path d="${lines.join('')}" stroke="${palette.line}" stroke-width="1" fill="none"/>` : '',
-    `<g font-family="'Work Sans', system-ui, sans-serif" font-size="10" fill="${palette.label}" stroke="${palette.background}" stroke-width="3" paint-order="stroke" stroke-linejoin="round">`,
-    ...labels,
-    `<text x="${tileSize - 4}" y="12" text-anchor="end" font-size="9" fill="${palette.corner}">${z}/${x}/${y}</text>`,
-    '</g>',
+    label ? `<g font-family="'Work Sans', system-ui, sans-serif" font-size="9" fill="${palette.label}">${label}</g>` : '',
     '</svg>',
   ].join('');
 }

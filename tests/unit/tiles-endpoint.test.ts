@@ -6,11 +6,11 @@ import { GET } from '../../src/pages/tiles/[z]/[x]/[y].svg';
 const get = (params: Record<string, string>) => GET({ params } as unknown as APIContext) as Promise<Response>;
 
 describe('GET /tiles/{z}/{x}/{y}.svg', () => {
-  it('given a tile in range, it answers an SVG that caches for a day, immutable', async () => {
+  it('given a tile in range, it answers an SVG that caches for a year, immutable', async () => {
     const response = await get({ z: '13', x: '2438', y: '2980' });
     expect(response.status).toBe(200);
     expect(response.headers.get('content-type')).toBe('image/svg+xml; charset=utf-8');
-    expect(response.headers.get('cache-control')).toBe('public, max-age=86400, immutable');
+    expect(response.headers.get('cache-control')).toBe('public, max-age=31536000, immutable');
     expect(await response.text()).toMatch(/^<svg xmlns="http:\/\/www.w3.org\/2000\/svg" width="256" height="256"/);
   });
 

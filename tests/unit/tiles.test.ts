@@ -86,26 +86,26 @@ describe('parseTile', () => {
 });
 
 describe('graticuleStep', () => {
-  it('given the zooms a landowner uses, it picks round steps: 1° at 7, 0.1° at 10, 0.01° at 13, 0.001° at 17', () => {
-    // Tile width 360 / 2^z, at least 2.5 lines a tile: z7 2.8125° / 2.5 = 1.125 → 1; z10 0.3515625 / 2.5 = 0.14 → 0.1;
-    // z13 0.0439453125 / 2.5 = 0.0176 → 0.01; z17 0.00274658 / 2.5 = 0.0011 → 0.001.
-    expect(graticuleStep(7)).toBe(1);
-    expect(graticuleStep(10)).toBe(0.1);
-    expect(graticuleStep(13)).toBe(0.01);
-    expect(graticuleStep(17)).toBe(0.001);
+  it('given the zooms a landowner uses, it picks round steps: 2° at 7, 0.2° at 10, 0.02° at 13, 0.002° at 17', () => {
+    // Tile width 360 / 2^z, the widest round step not wider: z7 2.8125° → 2; z10 0.3515625° → 0.2;
+    // z13 0.0439453125° → 0.02; z17 0.00274658° → 0.002.
+    expect(graticuleStep(7)).toBe(2);
+    expect(graticuleStep(10)).toBe(0.2);
+    expect(graticuleStep(13)).toBe(0.02);
+    expect(graticuleStep(17)).toBe(0.002);
   });
 
-  it('given the whole world and the deepest zoom, it uses 90° and 0.00002°', () => {
-    // z0: 360 / 2.5 = 144 → 90; z22: 8.58e-5 / 2.5 = 3.4e-5 → 2e-5.
+  it('given the whole world and the deepest zoom, it uses 90° and 0.00005°', () => {
+    // z0: 360 → 90 (the widest step there is); z22: 8.58e-5 → 5e-5.
     expect(graticuleStep(0)).toBe(90);
-    expect(graticuleStep(22)).toBe(0.00002);
+    expect(graticuleStep(22)).toBe(0.00005);
   });
 
-  it('given any zoom 0–22, it puts between 2.5 and 6.25 lines of longitude across a tile', () => {
-    for (let z = 0; z <= 22; z += 1) {
+  it('given any zoom 1–22, it puts between 1 and 2.5 lines of longitude across a tile: faint, not a grid to read', () => {
+    for (let z = 1; z <= 22; z += 1) {
       const lines = 360 / 2 ** z / graticuleStep(z);
-      expect(lines, `zoom ${z}`).toBeGreaterThanOrEqual(2.5 - 1e-9);
-      expect(lines, `zoom ${z}`).toBeLessThanOrEqual(6.25 + 1e-9);
+      expect(lines, `zoom ${z}`).toBeGreaterThanOrEqual(1 - 1e-9);
+      expect(lines, `zoom ${z}`).toBeLessThanOrEqual(2.5 + 1e-9);
     }
   });
 
@@ -136,22 +136,46 @@ describe('coordinate labels', () => {
 
 describe('renderTileSvg', () => {
   const parse = (svg: string) => new DOMParser().parseFromString(svg, 'image/svg+xml');
+  const textsOf = (tile: { z: number; x: number; y: number }) => Array.from(parse(renderTileSvg(tile)).getElementsByTagName('text')).map((t) => t.textContent ?? '');
 
-  it('given the demo valley tile 13/2438/2980, it draws a 256 px SVG with 0.01° lines, their labels and its address', () => {
-    const svg = renderTileSvg({ z: 13, x: 2438, y: 2980 });
-    const doc = parse(svg);
-    const root = doc.documentElement!;
+  it('given the demo valley tile 13/2440/2980 (a fourth column), it draws a 256 px paper tile with one latitude label and no address', () => {
+    const svg = renderTileSvg({ z: 13, x: 2440, y: 2980 });
+    const root = parse(svg).documentElement!;
     expect(root.tagName).toBe('svg');
     expect(root.getAttribute('width')).toBe('256');
     expect(root.getAttribute('height')).toBe('256');
-    const texts = Array.from(doc.getElementsByTagName('text')).map((t) => t.textContent);
-    // The tile spans 72.8613°W–72.8174°W and 43.9295°N–43.9612°N (bounds from the worked example above).
-    expect(texts).toEqual(expect.arrayContaining(['43.95°N', '43.94°N', '72.85°W', '72.82°W', '13/2438/2980']));
+    // The tile spans 43.9295°N–43.9612°N (bounds from the worked example above); 0.02° lines: 43.94° and 43.96°.
+    // 43.96°N lies 9.6 px below the top edge (too near it for a label), so the label is 43.94°N's, 171.5 px down
+    // (the wiki's y = (1 − asinh(tan φ) / π) / 2 × 8192, less 2980, times 256).
+    expect(textsOf({ z: 13, x: 2440, y: 2980 })).toEqual(['43.94°N']);
+    expect(svg).not.toContain('2440');
   });
 
-  it('given the world tile 0/0/0, it labels the equator and the prime meridian 0°', () => {
-    const texts = Array.from(parse(renderTileSvg({ z: 0, x: 0, y: 0 })).getElementsByTagName('text')).map((t) => t.textContent);
-    expect(texts).toEqual(expect.arrayContaining(['0°', '90°W', '90°E', '0/0/0']));
+  it('given a tile in a fourth row but not a fourth column, it labels a longitude at the top edge instead', () => {
+    // 13/2438/2980: x = 2438 (not a multiple of 4), y = 2980 (a multiple of 4). West edge 72.861328125°W, 0.0439453125°
+    // wide: 72.86°W lies (0.001328125 / 0.0439453125) × 256 = 7.7 px in (too near the edge), 72.84°W at 124.4 px.
+    expect(textsOf({ z: 13, x: 2438, y: 2980 })).toEqual(['72.84°W']);
+  });
+
+  it('given any tile at zooms 0–22 around the valley and the world, it carries at most one label and never its z/x/y', () => {
+    for (let z = 0; z <= 22; z += 1) {
+      const centre = lonLatToTile([-72.85, 43.95], z);
+      for (let dx = -4; dx <= 4; dx += 1) {
+        for (let dy = -4; dy <= 4; dy += 1) {
+          const n = 2 ** z;
+          const tile = { z, x: Math.min(n - 1, Math.max(0, centre.x + dx)), y: Math.min(n - 1, Math.max(0, centre.y + dy)) };
+          const texts = textsOf(tile);
+          expect(texts.length, JSON.stringify(tile)).toBeLessThanOrEqual(1);
+          for (const text of texts) expect(text, JSON.stringify(tile)).toMatch(/^\d+(\.\d+)?°[NSEW]?$/);
+          expect(renderTileSvg(tile)).not.toContain(`${tile.z}/${tile.x}/${tile.y}`);
+        }
+      }
+    }
+  });
+
+  it('given the world tile 0/0/0, it labels the first parallel away from the edges (a fourth column and row)', () => {
+    // 90° steps: the parallels at 0° (in the middle) and ±85.05° edges; the first roomy one from the north is 0°.
+    expect(textsOf({ z: 0, x: 0, y: 0 })).toEqual(['0°']);
   });
 
   it('given the same tile twice, it draws the same bytes (a tile may be cached forever)', () => {
@@ -160,8 +184,8 @@ describe('renderTileSvg', () => {
 });
 
 describe('resolveTileSource', () => {
-  it('given no tile server, it uses our grid tiles to zoom 22 with the grid credit', () => {
-    expect(resolveTileSource({})).toEqual({ url: '/tiles/{z}/{x}/{y}.svg', attribution: 'Tallywood grid — no base map data', maxZoom: 22 });
+  it('given no tile server, it uses our plain tiles to zoom 22 with their own credit, the drawing named in the URL', () => {
+    expect(resolveTileSource({})).toEqual({ url: '/tiles/{z}/{x}/{y}.svg?look=paper-1', attribution: 'Tallywood plain map', maxZoom: 22 });
   });
 
   it('given a tile server, it uses it to zoom 19 unless told, crediting its host when no attribution is set', () => {

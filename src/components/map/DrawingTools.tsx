@@ -1,8 +1,15 @@
+/**
+ * Leaflet-Geoman patches the global `L` that Leaflet sets, so it is imported after leaflet-setup.
+ * ParcelMap loads this module lazily, only when a map is `editable`: the plugin and its CSS stay out
+ * of every other map's chunk.
+ */
+import '@geoman-io/leaflet-geoman-free/dist/leaflet-geoman.css';
 import type { MultiPolygon } from 'geojson';
 import { useEffect, useRef } from 'react';
 import { useMap } from 'react-leaflet';
 import { layersToMultiPolygon, splitParts, toLatLngs, type Area } from './geometry';
 import { L } from './leaflet-setup';
+import '@geoman-io/leaflet-geoman-free';
 import { drawingLineStyle, drawnStyle } from './map-styles';
 
 export type DrawingOptions = {
@@ -53,6 +60,8 @@ export default function DrawingTools({ options, onDrawing }: { options: DrawingO
   const allowHoles = options.allowHoles ?? false;
 
   useEffect(() => {
+    // A map made before this chunk arrived missed Geoman's init hook; give it its `pm` now.
+    if (!map.pm) L.PM.reInitLayer(map as unknown as L.Layer);
     const drawn = L.featureGroup().addTo(map);
     for (const part of splitParts(latest.current.options.initial ?? { type: 'MultiPolygon', coordinates: [] })) {
       L.polygon(toLatLngs(part), drawnStyle).addTo(drawn);

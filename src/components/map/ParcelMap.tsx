@@ -1,7 +1,9 @@
 /**
- * The map island: parcels, no-harvest zones and previews on our tiles, and (with `editable`) a
- * boundary to draw with Leaflet-Geoman. Leaflet touches `window` when imported, so an Astro page
- * must use `client:only="react"` (`client:load` builds, then the page answers 500):
+ * The map island: parcels (named on the map), no-harvest zones and previews on our tiles, the land
+ * under them (BaseLayer, when the tiles show none), where the forager is (`position`), and (with
+ * `editable`) a boundary to draw with Leaflet-Geoman, loaded only then. Leaflet touches `window`
+ * when imported, so an Astro page must use `client:only="react"` (`client:load` builds, then the
+ * page answers 500):
  *
  *   ---
  *   import ParcelMap from '../components/map/ParcelMap';
@@ -14,13 +16,16 @@
  * `editable.onChange` can only be passed that way, since an Astro page cannot pass functions.
  */
 import 'leaflet/dist/leaflet.css';
-import '@geoman-io/leaflet-geoman-free/dist/leaflet-geoman.css';
+import './map.css';
 import type { MultiPolygon } from 'geojson';
-import type { PointTuple } from 'leaflet';
-import { useEffect, useId, useMemo, useRef, useState } from 'react';
+import type { LeafletMouseEvent, PointTuple } from 'leaflet';
+import { lazy, Suspense, useEffect, useId, useMemo, useRef, useState } from 'react';
 import './leaflet-setup';
 import { MapContainer, Marker, Polygon, TileLayer, Tooltip, useMap, useMapEvents } from 'react-leaflet';
-import DrawingTools, { type DrawingOptions } from './DrawingTools';
+import AreaLabels from './AreaLabels';
+import BaseLayer from './BaseLayer';
+import type { DrawingOptions } from './DrawingTools';
+import PositionMarker, { describePosition, type MapPosition } from './PositionMarker';
 import { describeDrawing, layersToMultiPolygon, toLatLngs, type Area, type LonLatBounds } from './geometry';
 import { fitMaxZoom, viewKey, viewTargetFor, type ViewTarget } from './map-view';
 import { hatchColour, kindWords, markerIcons, pathStyleFor, toneWords, type FeatureKind, type MarkerTone } from './map-styles';
@@ -39,10 +44,18 @@ export type MapFeature = {
 };
 
 export type MapMarker = { at: [number, number] /* [lon, lat] */; label: string; tone: MarkerTone };
+export type { MapPosition };
+
+/** Leaflet-Geoman and its CSS, in a chunk of their own: only maps that draw load them. */
+const DrawingTools = lazy(() => import('./DrawingTools'));
 
 export type ParcelMapProps = {
-  /** From `mapTiles()` in src/server/map-config.ts: our grid tiles unless MAP_TILE_URL is set. */
-  tiles: { url: string; attribution: string; maxZoom: number };
+  /**
+   * From `mapTiles()` in src/server/map-config.ts: our plain tiles and the demo valley's lines
+   * (`baseLayerUrl`) unless MAP_TILE_URL is set.
+   */
+  tiles: { url: string; attribution: string; maxZoom: number; baseLayerUrl?: string };
+  /** Parcels, no-harvest zones (`kind: 'zone'`, hatched), previews and others' land, drawn in this order. */
   features: MapFeature[];
   /** What to show: every feature (and the geometry being edited), or a box [[west, south], [east, north]] in [lon, lat]. */
   fitTo?: 'features' | LonLatBounds;
@@ -50,6 +63,8 @@ export type ParcelMapProps = {
   editable?: DrawingOptions;
   /** Points to call out, e.g. where a boundary crosses itself. */
   markers?: MapMarker[];
+  /** Where the forager is: a device fix (with its accuracy circle) or a tapped spot. */
+  position?: MapPosition;
   /** CSS height of the map; default 28rem. */
   height?: string;
   testId?: string;
@@ -63,12 +78,19 @@ function PickHandler({ onPick }: { onPick: (at: [number, number]) => void }) {
 }
 
 /** An area on the map; not editable, but snappable while drawing so a zone can follow a boundary. */
-function FeatureShape({ feature, hatchId, drawing }: { feature: MapFeature; hatchId: string; drawing: boolean }) {
+/**
+ * On a map that takes a tap for a position, a tap on an area closes its tooltip again: a touch
+ * opens it as a hover would, and it would cover the spot just tapped.
+ */
+function FeatureShape({ feature, hatchId, drawing, picking }: { feature: MapFeature; hatchId: string; drawing: boolean; picking: boolean }) {
   const kind = feature.kind ?? 'parcel';
   const positions = useMemo(() => toLatLngs(feature.geometry), [feature.geometry]);
   const pathOptions = useMemo(() => pathStyleFor(kind, hatchId), [kind, hatchId]);
   const href = drawing ? undefined : feature.href;
-  const eventHandlers = useMemo(() => (href ? { click: () => window.location.assign(href) } : {}), [href]);
+  const eventHandlers = useMemo(
+    () => (href ? { click: () => window.location.assign(href) } : picking ? { click: (event: LeafletMouseEvent) => event.target.closeTooltip() } : {}),
+    [href, picking],
+  );
   return (
     <Polygon positions={positions} pathOptions={pathOptions} eventHandlers={eventHandlers} pmIgnore snapIgnore={!drawing}>
       <Tooltip sticky>{describeFeature(feature)}</Tooltip>
@@ -139,15 +161,25 @@ function MapBehaviour({ target, label, maxZoom }: { target: ViewTarget; label: s
   return null;
 }
 
-function mapLabel(features: MapFeature[], markers: MapMarker[], drawing: boolean) {
+function mapLabel(features: MapFeature[], markers: MapMarker[], drawing: boolean, position: MapPosition | undefined) {
   const areas = features.length === 0 ? 'no areas' : features.length === 1 ? `1 area, ${features[0]?.name}` : `${features.length} areas`;
   const problems = markers.filter((m) => m.tone === 'problem').length;
-  const extra = problems > 0 ? `, ${problems} marked problem${problems === 1 ? '' : 's'}` : '';
+  const extra = (problems > 0 ? `, ${problems} marked problem${problems === 1 ? '' : 's'}` : '') + (position ? `, ${position.source === 'gps' ? 'your position' : 'a tapped spot'}` : '');
   const help = drawing ? 'Draw with the tools at the top left, by mouse or touch.' : 'Arrow keys pan, plus and minus zoom.';
   return `Map with ${areas}${extra}. ${help} The areas are also listed after the map.`;
 }
 
-export default function ParcelMap({ tiles, features, fitTo = 'features', editable, markers = [], height = '28rem', testId, onPick }: ParcelMapProps) {
+/** A square `halfM` metres either side of a [lon, lat], near enough for keeping a name clear of it. */
+function squareAround([lon, lat]: [number, number], halfM: number): Area {
+  const dLat = halfM / 111_320;
+  const dLon = dLat / Math.max(0.01, Math.cos((lat * Math.PI) / 180));
+  return { type: 'Polygon', coordinates: [[[lon - dLon, lat - dLat], [lon + dLon, lat - dLat], [lon + dLon, lat + dLat], [lon - dLon, lat + dLat], [lon - dLon, lat - dLat]]] };
+}
+
+/** Parcels and others' land are named on the map itself; zones and previews by tooltip and list. */
+const labelledKinds = new Set<FeatureKind>(['parcel', 'other-owner']);
+
+export default function ParcelMap({ tiles, features, fitTo = 'features', editable, markers = [], position, height = '28rem', testId, onPick }: ParcelMapProps) {
   const uid = useId().replace(/[^a-zA-Z0-9_-]/g, '');
   const hatchId = `tallywood-hatch-${uid}`;
   const listId = `tallywood-map-list-${uid}`;
@@ -159,6 +191,15 @@ export default function ParcelMap({ tiles, features, fitTo = 'features', editabl
   const target = useMemo(() => viewTargetFor(fitTo, areas), [fitTo, areas]);
   const initialView = useRef(target).current;
   const fitOptions = { padding: [24, 24] as PointTuple, maxZoom: Math.min(fitMaxZoom, tiles.maxZoom) };
+  const labelled = useMemo(
+    () => features.filter((f) => labelledKinds.has(f.kind ?? 'parcel')).map((f) => ({ id: f.id, name: f.name, geometry: f.geometry, kind: f.kind ?? 'parcel' })),
+    [features],
+  );
+  // Names keep clear of no-harvest zones and of where the forager is (the fix's circle, or 30 m).
+  const keepClear = useMemo(
+    () => [...features.filter((f) => f.kind === 'zone').map((f) => f.geometry), ...(position ? [squareAround(position.at, Math.max(30, position.accuracyM))] : [])],
+    [features, position],
+  );
 
   return (
     <div className="relative isolate" data-testid={testId}>
@@ -177,9 +218,12 @@ export default function ParcelMap({ tiles, features, fitTo = 'features', editabl
           {...('bounds' in initialView ? { bounds: initialView.bounds, boundsOptions: fitOptions } : { center: initialView.center, zoom: initialView.zoom })}
         >
           <TileLayer url={tiles.url} attribution={tiles.attribution} maxZoom={tiles.maxZoom} />
+          {tiles.baseLayerUrl && <BaseLayer url={tiles.baseLayerUrl} />}
           {features.map((feature) => (
-            <FeatureShape key={feature.id} feature={feature} hatchId={hatchId} drawing={!!editable} />
+            <FeatureShape key={feature.id} feature={feature} hatchId={hatchId} drawing={!!editable} picking={!!onPick && !editable} />
           ))}
+          <AreaLabels areas={labelled} avoid={keepClear} />
+          {position && <PositionMarker position={position} />}
           {markers.map((marker, i) => (
             <Marker
               key={`${i}:${marker.at.join(',')}`}
@@ -192,9 +236,13 @@ export default function ParcelMap({ tiles, features, fitTo = 'features', editabl
               <Tooltip direction="top">{marker.label}</Tooltip>
             </Marker>
           ))}
-          {editable && <DrawingTools options={editable} onDrawing={setDrawing} />}
+          {editable && (
+            <Suspense fallback={null}>
+              <DrawingTools options={editable} onDrawing={setDrawing} />
+            </Suspense>
+          )}
           {onPick && !editable && <PickHandler onPick={onPick} />}
-          <MapBehaviour target={target} label={mapLabel(features, markers, !!editable)} maxZoom={tiles.maxZoom} />
+          <MapBehaviour target={target} label={mapLabel(features, markers, !!editable, position)} maxZoom={tiles.maxZoom} />
         </MapContainer>
       </div>
 
@@ -208,6 +256,12 @@ export default function ParcelMap({ tiles, features, fitTo = 'features', editabl
               <li key={feature.id}>{feature.href && !editable ? <a href={feature.href}>{describeFeature(feature)}</a> : describeFeature(feature)}</li>
             ))}
           </ul>
+        )}
+        {position && (
+          <>
+            <p className="font-semibold">Your position</p>
+            <p>{describePosition(position)} (at {formatPoint(position.at)})</p>
+          </>
         )}
         {markers.length > 0 && (
           <>

@@ -1,10 +1,9 @@
 /**
- * Leaflet with Leaflet-Geoman, ready for our islands. Geoman patches the global `L` that Leaflet
- * sets, so it must load after Leaflet: import Leaflet from this module, never on its own, in map
- * code. Both touch `window` when imported, hence `client:only="react"` for every map island.
+ * Leaflet, ready for our islands: import it from this module, never on its own, in map code. It
+ * touches `window` when imported, hence `client:only="react"` for every map island. Leaflet-Geoman
+ * is not here: DrawingTools loads it, in its own chunk, only on maps that draw.
  */
 import L from 'leaflet';
-import '@geoman-io/leaflet-geoman-free';
 import iconRetinaUrl from 'leaflet/dist/images/marker-icon-2x.png?url';
 import iconUrl from 'leaflet/dist/images/marker-icon.png?url';
 import shadowUrl from 'leaflet/dist/images/marker-shadow.png?url';

@@ -4,8 +4,9 @@ import { maxLocalZoom, parseTile, renderTileSvg } from '../../../../lib/tiles';
 import { endpoint } from '../../../../server/http';
 
 /**
- * The local grid tiles, drawn per request from z/x/y alone: no files, no database, no internet.
- * A tile never changes for its address, so browsers and proxies may keep it for a day.
+ * The local plain tiles, drawn per request from z/x/y alone: no files, no database, no internet.
+ * A tile never changes for its address (a new drawing gets a new `look` in the URL, see
+ * `localTileUrl`), so browsers and proxies may keep it for a year.
  */
 export const GET: APIRoute = endpoint(async ({ params }) => {
   const tile = parseTile(params);
@@ -15,7 +16,7 @@ export const GET: APIRoute = endpoint(async ({ params }) => {
   return new Response(renderTileSvg(tile), {
     headers: {
       'content-type': 'image/svg+xml; charset=utf-8',
-      'cache-control': 'public, max-age=86400, immutable',
+      'cache-control': 'public, max-age=31536000, immutable',
       'x-content-type-options': 'nosniff',
     },
   });
