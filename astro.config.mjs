@@ -135,7 +135,7 @@ export default defineConfig({
       SIGN_IN_LIMIT_PER_HOUR: envField.number({ context: 'server', access: 'secret', default: 5 }),
       /** Sign-in e-mails one client address may ask for in an hour (a household or office shares one). */
       SIGN_IN_LIMIT_PER_CLIENT_PER_HOUR: envField.number({ context: 'server', access: 'secret', default: 20 }),
-      /** A real base map: an XYZ template like https://tile.example.org/{z}/{x}/{y}.png. Unset: our own plain tiles, which need no internet, with the demo valley's brooks, roads, trails and ridge drawn over them. */
+      /** A real base map: an XYZ template like https://tile.example.org/{z}/{x}/{y}.png. Unset: our own plain tiles, which need no internet, with the demo valley's brooks, roads, trails and ridge drawn over them in local mode. */
       MAP_TILE_URL: envField.string({ context: 'server', access: 'public', optional: true }),
       /** The credit the tile provider asks for (HTML, shown in the map's corner); only used with MAP_TILE_URL. */
       MAP_TILE_ATTRIBUTION: envField.string({ context: 'server', access: 'public', optional: true }),

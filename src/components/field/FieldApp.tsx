@@ -79,7 +79,10 @@ export default function FieldApp({ tiles, parcels, userId }: { tiles: ParcelMapP
       });
     }
     if (!navigator.serviceWorker.controller) return;
-    const wanted = packTiles(fresh).map((t) => tiles.url.replace('{z}', String(t.z)).replace('{x}', String(t.x)).replace('{y}', String(t.y)).replace('{s}', 'a'));
+    const wanted = [
+      ...(tiles.baseLayerUrl ? [tiles.baseLayerUrl] : []),
+      ...packTiles(fresh).map((t) => tiles.url.replace('{z}', String(t.z)).replace('{x}', String(t.x)).replace('{y}', String(t.y)).replace('{s}', 'a')),
+    ];
     let done = 0;
     setTileProgress({ done, of: wanted.length });
     for (let i = 0; i < wanted.length; i += 6) {
@@ -212,10 +215,9 @@ export default function FieldApp({ tiles, parcels, userId }: { tiles: ParcelMapP
     if (!pack) return parcels;
     return [
       ...pack.parcels.map((p) => ({ id: p.id, name: p.name, geometry: p.boundary, kind: 'parcel' as const })),
-      ...pack.parcels.flatMap((p) => p.zones.map((z) => ({ id: z.id, name: z.name, geometry: z.boundary, kind: 'zone' as const, status: `on ${p.name}` }))),
+      ...pack.parcels.flatMap((p) => p.zones.map((z) => ({ id: z.id, name: `No-harvest zone: ${z.name}`, geometry: z.boundary, kind: 'zone' as const, status: `on ${p.name}` }))),
     ];
   }, [pack, parcels]);
-  const markers = fix ? [{ at: fix.at, label: fix.source === 'tap' ? 'You are here (the spot you tapped)' : `You are here, within ${Math.round(fix.accuracyM)} m`, tone: 'info' as const }] : [];
   const packParcel = answer?.parcel ? pack?.parcels.find((p) => p.id === answer.parcel?.id) : undefined;
   const waiting = queue.filter((r) => r.state === 'waiting' && r.kind === 'entry').length;
 
@@ -250,7 +252,7 @@ export default function FieldApp({ tiles, parcels, userId }: { tiles: ParcelMapP
       <ParcelMap
         tiles={tiles}
         features={features}
-        markers={markers}
+        position={fix ?? undefined}
         // Once there is a fix, the map shows the few hundred metres around it.
         fitTo={fix ? [[fix.at[0] - 0.004, fix.at[1] - 0.003], [fix.at[0] + 0.004, fix.at[1] + 0.003]] : 'features'}
         height="20rem"
