@@ -1,17 +1,19 @@
-import { useEffect, useMemo, useRef, useState } from 'react';
+import { lazy, Suspense, useEffect, useMemo, useRef, useState } from 'react';
 import ParcelMap, { type MapFeature, type ParcelMapProps } from '../map/ParcelMap';
 import type { CheckInAnswer } from '../../lib/field/types';
 import { offlineCheckIn, packMaxAgeDays, packTiles, type CountedEntry, type FieldPack, type PositionSource } from '../../lib/field/pack';
 import { sendJson } from '../api-client';
-import HarvestForm from './HarvestForm';
 import { offlineRecorder, onlineRecorder } from './recorders';
 import SpeciesTallies from './SpeciesTallies';
 import VerdictPanel, { type OfflineNote } from './VerdictPanel';
 import { enqueue, queuedRecords, savedPack, savePack, type QueuedRecord } from './offline-store';
 import { sendWaiting } from './sync';
-import ParcelNotes from './ParcelNotes';
 import QueueList from './QueueList';
 import PackStatus from './PackStatus';
+
+// Not needed for the first verdict, so loaded when a verdict shows them (the service worker keeps them for offline use).
+const HarvestForm = lazy(() => import('./HarvestForm'));
+const ParcelNotes = lazy(() => import('./ParcelNotes'));
 
 type Answer = CheckInAnswer & { visitId: string | null; offline: OfflineNote | null };
 type Fix = { at: [number, number]; accuracyM: number; source: PositionSource };
@@ -234,9 +236,13 @@ export default function FieldApp({ tiles, parcels, userId }: { tiles: ParcelMapP
       {answer && (
         <>
           <VerdictPanel ref={verdictRef} answer={answer} offline={answer.offline} />
-          {recorder && <HarvestForm key={`${answer.visitId ?? 'offline'}|${answer.parcel?.id}`} recorder={recorder} species={answer.species} onSaved={(words) => void saved(words)} />}
+          <Suspense fallback={<p className="card text-sm text-loam-700">Loading the harvest form…</p>}>
+            {recorder && <HarvestForm key={`${answer.visitId ?? 'offline'}|${answer.parcel?.id}`} recorder={recorder} species={answer.species} onSaved={(words) => void saved(words)} />}
+          </Suspense>
           {answer.verdict === 'clear' && <SpeciesTallies species={answer.species} />}
-          {packParcel && <ParcelNotes parcel={packParcel} terms={pack?.terms[packParcel.id] ?? null} localDate={answer.localDate} />}
+          <Suspense fallback={null}>
+            {packParcel && <ParcelNotes parcel={packParcel} terms={pack?.terms[packParcel.id] ?? null} localDate={answer.localDate} />}
+          </Suspense>
         </>
       )}
       {tapped && (
