@@ -224,48 +224,53 @@ export default function FieldApp({ tiles, parcels, userId }: { tiles: ParcelMapP
   const waiting = queue.filter((r) => r.state === 'waiting' && r.kind === 'entry').length;
 
   return (
-    <div className="space-y-4" data-hydrated="true">
-      <PackStatus pack={pack} now={now} busy={packBusy} tiles={tileProgress} maxAgeDays={packMaxAgeDays} onGet={() => void getPack({ told: true })} />
-      <div className="flex flex-wrap gap-3">
-        <button type="button" className="button text-lg" onClick={useMyLocation} disabled={busy}>{busy ? 'Checking…' : 'Use my location'}</button>
-        {answer?.visitId && <button type="button" className="button-quiet" onClick={checkOut}>Check out</button>}
-      </div>
-      <p className="text-sm text-loam-700">Or tap your spot on the map.</p>
-      {problem && <p role="alert" className="field-error text-base">{problem}</p>}
-      {notice && <p role="status" className="rounded-md border border-moss-600 bg-moss-50 p-3 text-moss-900" data-testid="field-notice">{notice}</p>}
-      {answer && (
-        <>
-          <VerdictPanel ref={verdictRef} answer={answer} offline={answer.offline} />
-          <Suspense fallback={<p className="card text-sm text-loam-700">Loading the harvest form…</p>}>
-            {recorder && <HarvestForm key={`${answer.visitId ?? 'offline'}|${answer.parcel?.id}`} recorder={recorder} species={answer.species} onSaved={(words) => void saved(words)} />}
-          </Suspense>
-          {answer.verdict === 'clear' && <SpeciesTallies species={answer.species} />}
-          <Suspense fallback={null}>
-            {packParcel && <ParcelNotes parcel={packParcel} terms={pack?.terms[packParcel.id] ?? null} localDate={answer.localDate} />}
-          </Suspense>
-        </>
-      )}
-      {tapped && (
-        <div role="alertdialog" aria-labelledby="tap-question" className="card border-2 border-moss-600" data-testid="tap-confirm">
-          <p id="tap-question" className="font-semibold">{fix?.source === 'gps' ? 'Check in at the spot you tapped instead of your GPS fix?' : 'Check in at the spot you tapped?'}</p>
-          <p className="mt-1 text-sm text-loam-700">It is recorded as a tapped spot, not as a position from your phone.</p>
-          <div className="mt-3 flex flex-wrap gap-2">
-            <button type="button" className="button" onClick={() => void checkIn({ at: tapped, accuracyM: tapAccuracyM, source: 'tap' })}>Check in here</button>
-            <button type="button" className="button-quiet" onClick={() => setTapped(null)}>Cancel</button>
-          </div>
+    <div className="lg:grid lg:grid-cols-[minmax(0,1fr)_26rem] lg:items-start lg:gap-6" data-hydrated="true">
+      <div className="min-w-0 space-y-4">
+        <PackStatus pack={pack} now={now} busy={packBusy} tiles={tileProgress} maxAgeDays={packMaxAgeDays} onGet={() => void getPack({ told: true })} />
+        <div className="flex flex-wrap gap-3">
+          <button type="button" className="button text-lg" onClick={useMyLocation} disabled={busy}>{busy ? 'Checking…' : 'Use my location'}</button>
+          {answer?.visitId && <button type="button" className="button-quiet" onClick={checkOut}>Check out</button>}
         </div>
-      )}
-      <ParcelMap
-        tiles={tiles}
-        features={features}
-        position={fix ?? undefined}
-        // Once there is a fix, the map shows the few hundred metres around it.
-        fitTo={fix ? [[fix.at[0] - 0.004, fix.at[1] - 0.003], [fix.at[0] + 0.004, fix.at[1] + 0.003]] : 'features'}
-        height="20rem"
-        testId="field-map"
-        onPick={(at) => setTapped(at)}
-      />
-      <QueueList queue={queue} waiting={waiting} onSend={() => void sendNow({ told: true })} />
+        <p className="text-sm text-loam-700">Or tap your spot on the map.</p>
+        {problem && <p role="alert" className="field-error text-base">{problem}</p>}
+        {notice && <p role="status" className="rounded-md border border-moss-600 bg-moss-50 p-3 text-moss-900" data-testid="field-notice">{notice}</p>}
+        {answer && (
+          <>
+            <VerdictPanel ref={verdictRef} answer={answer} offline={answer.offline} />
+            <Suspense fallback={<p className="card text-sm text-loam-700">Loading the harvest form…</p>}>
+              {recorder && <HarvestForm key={`${answer.visitId ?? 'offline'}|${answer.parcel?.id}`} recorder={recorder} species={answer.species} onSaved={(words) => void saved(words)} />}
+            </Suspense>
+            {answer.verdict === 'clear' && <SpeciesTallies species={answer.species} />}
+            <Suspense fallback={null}>
+              {packParcel && <ParcelNotes parcel={packParcel} terms={pack?.terms[packParcel.id] ?? null} localDate={answer.localDate} />}
+            </Suspense>
+          </>
+        )}
+      </div>
+      {/* On a wide screen the map stays beside the verdict; on a phone it follows it. */}
+      <div className="mt-4 space-y-4 lg:sticky lg:top-4 lg:mt-0">
+        {tapped && (
+          <div role="alertdialog" aria-labelledby="tap-question" className="card border-2 border-moss-600" data-testid="tap-confirm">
+            <p id="tap-question" className="font-semibold">{fix?.source === 'gps' ? 'Check in at the spot you tapped instead of your GPS fix?' : 'Check in at the spot you tapped?'}</p>
+            <p className="mt-1 text-sm text-loam-700">It is recorded as a tapped spot, not as a position from your phone.</p>
+            <div className="mt-3 flex flex-wrap gap-2">
+              <button type="button" className="button" onClick={() => void checkIn({ at: tapped, accuracyM: tapAccuracyM, source: 'tap' })}>Check in here</button>
+              <button type="button" className="button-quiet" onClick={() => setTapped(null)}>Cancel</button>
+            </div>
+          </div>
+        )}
+        <ParcelMap
+          tiles={tiles}
+          features={features}
+          position={fix ?? undefined}
+          // Once there is a fix, the map shows the few hundred metres around it.
+          fitTo={fix ? [[fix.at[0] - 0.004, fix.at[1] - 0.003], [fix.at[0] + 0.004, fix.at[1] + 0.003]] : 'features'}
+          height="20rem"
+          testId="field-map"
+          onPick={(at) => setTapped(at)}
+        />
+        <QueueList queue={queue} waiting={waiting} onSend={() => void sendNow({ told: true })} />
+      </div>
     </div>
   );
 }

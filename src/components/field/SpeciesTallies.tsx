@@ -45,7 +45,8 @@ export default function SpeciesTallies({ species }: { species: SpeciesAnswer[] }
             <span className="pill border-loam-400">{speciesStateWords[s.state]}</span>
           </div>
           <p className="text-xs text-loam-700">Season {formatSeasonWindows(s.seasons)} · by {s.methods.join(', ')}</p>
-          {s.tallies.length > 0 ? <TallyBars tallies={s.tallies} /> : <p className="mt-1 text-sm">No quantity limit set.</p>}
+          {/* Out of season nothing may be taken, so what would remain is not shown. */}
+          {!s.inSeason ? null : s.tallies.length > 0 ? <TallyBars tallies={s.tallies} /> : <p className="mt-1 text-sm">No quantity limit set.</p>}
           <details className="mt-2 text-sm">
             <summary className="cursor-pointer font-semibold text-ember-700">Cautions and lookalikes</summary>
             <ul className="mt-1 list-disc pl-5">{s.cautions.map((c) => <li key={c}>{c}</li>)}</ul>
