@@ -1,4 +1,4 @@
-import { expect, test, type APIRequestContext, type BrowserContext, type Page } from '@playwright/test';
+import { expect, test, type APIRequestContext, type Browser, type BrowserContext, type Page } from '@playwright/test';
 import { apiAs, mailFor, sessionFile } from './support';
 
 /**
@@ -71,12 +71,29 @@ async function checkInAt(page: Page, context: BrowserContext, at: { longitude: n
   return verdict;
 }
 
-test('given the field pack on the phone and no network, a reload still opens the Field and every verdict is decided on the phone, marked offline', async ({ browser }) => {
+/** Keeps one entry of oyster mushrooms in grams on the phone, from an offline clear check-in. */
+async function keep(page: Page, amount: string) {
+  const form = page.getByTestId('harvest-form');
+  await form.getByLabel('Species').selectOption({ label: 'Oyster mushroom' });
+  await form.getByLabel('Unit').selectOption('g');
+  await form.getByLabel('Quantity').fill(amount);
+  await expect(form.getByTestId('projection')).toBeVisible();
+  await form.getByRole('button', { name: 'Keep entry on this phone' }).click();
+  await expect(page.getByTestId('field-notice')).toContainText(`Kept on this phone: Oyster mushroom, ${amount} g`);
+}
+
+/** The Field made ready online, then the network cut and the page reloaded from the service worker. */
+async function offlineField(browser: Browser): Promise<{ context: BrowserContext; page: Page }> {
   const context = await browser.newContext({ storageState: sessionFile('forager@example.org'), geolocation: { ...centre, accuracy: 8 }, permissions: ['geolocation'] });
   const page = await readyForTheField(context);
   await context.setOffline(true);
   await page.reload();
   await page.locator('[data-hydrated]').waitFor();
+  return { context, page };
+}
+
+test('given the field pack on the phone and no network, a reload still opens the Field and every verdict is decided on the phone, marked offline', async ({ browser }) => {
+  const { context, page } = await offlineField(browser);
 
   const verdict = await checkInAt(page, context, centre, 8);
   await expect(verdict).toHaveAttribute('data-verdict', 'clear');
@@ -95,22 +112,10 @@ test('given the field pack on the phone and no network, a reload still opens the
 });
 
 test('given three entries kept offline, closing the page loses none, and the tallies on the phone count them', async ({ browser }) => {
-  const context = await browser.newContext({ storageState: sessionFile('forager@example.org'), geolocation: { ...centre, accuracy: 8 }, permissions: ['geolocation'] });
-  const page = await readyForTheField(context);
-  await context.setOffline(true);
-  await page.reload();
-  await page.locator('[data-hydrated]').waitFor();
+  const { context, page } = await offlineField(browser);
   await expect(await checkInAt(page, context, centre, 8)).toHaveAttribute('data-verdict', 'clear');
 
-  const form = page.getByTestId('harvest-form');
-  for (const grams of ['100', '150', '200']) {
-    await form.getByLabel('Species').selectOption({ label: 'Oyster mushroom' });
-    await form.getByLabel('Unit').selectOption('g');
-    await form.getByLabel('Quantity').fill(grams);
-    await expect(form.getByTestId('projection')).toBeVisible();
-    await form.getByRole('button', { name: 'Keep entry on this phone' }).click();
-    await expect(page.getByTestId('field-notice')).toContainText(`Kept on this phone: Oyster mushroom, ${grams} g`);
-  }
+  for (const amount of ['100', '150', '200']) await keep(page, amount);
   await expect(page.getByTestId('queue').locator('[data-state="waiting"]')).toHaveCount(3);
   // 100 + 150 + 200 = 450 g of the day's 1000 g.
   await expect(page.getByTestId('species').locator('[data-species="Oyster mushroom"] [data-scope="day"]')).toContainText('550 g left of 1,000 g');
@@ -128,17 +133,6 @@ test('given three entries kept offline, closing the page loses none, and the tal
 type LedgerLine = { parcelName: string; quantities: { quantity: string; unit: string }[] };
 const ledgerOf = async (page: Page) => ((await (await page.request.get('/api/ledger')).json()) as { entries: LedgerLine[] }).entries.filter((e) => e.parcelName === name);
 const grams = (lines: LedgerLine[]) => lines.map((l) => l.quantities.map((q) => `${q.quantity} ${q.unit}`).join('+')).sort();
-
-/** Keeps one entry of oyster mushrooms in grams on the phone, from an offline clear check-in. */
-async function keep(page: Page, amount: string) {
-  const form = page.getByTestId('harvest-form');
-  await form.getByLabel('Species').selectOption({ label: 'Oyster mushroom' });
-  await form.getByLabel('Unit').selectOption('g');
-  await form.getByLabel('Quantity').fill(amount);
-  await expect(form.getByTestId('projection')).toBeVisible();
-  await form.getByRole('button', { name: 'Keep entry on this phone' }).click();
-  await expect(page.getByTestId('field-notice')).toContainText(`Kept on this phone: Oyster mushroom, ${amount} g`);
-}
 
 test('given entries kept offline, the connection coming back sends them once, and a retry after an answer lost on the way records nothing twice', async ({ browser }) => {
   const context = await browser.newContext({ storageState: sessionFile('forager@example.org'), geolocation: { ...centre, accuracy: 8 }, permissions: ['geolocation'] });
@@ -184,11 +178,7 @@ test('given entries kept offline, the connection coming back sends them once, an
  * landowner is told.
  */
 test("given an entry within on the phone that is over once another forager's entry is counted, it is recorded, flagged over on sync, and the landowner hears of it", async ({ browser }) => {
-  const context = await browser.newContext({ storageState: sessionFile('forager@example.org'), geolocation: { ...centre, accuracy: 8 }, permissions: ['geolocation'] });
-  const page = await readyForTheField(context);
-  await context.setOffline(true);
-  await page.reload();
-  await page.locator('[data-hydrated]').waitFor();
+  const { context, page } = await offlineField(browser);
   await expect(await checkInAt(page, context, centre, 8)).toHaveAttribute('data-verdict', 'clear');
   await keep(page, '450');
   await expect(page.getByTestId('species').locator('[data-species="Oyster mushroom"] [data-scope="parcel-season"]')).toHaveAttribute('data-state', /within|nearing|reached/);

@@ -3,6 +3,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, createDb, type Db } from '../../src/db/client';
 import { distanceToEdgeM, placePosition } from '../../src/lib/field/geometry';
 import type { LonLat, MultiPolygon } from '../../src/lib/field/types';
+import { mulberry32 } from '../seeded-random';
 
 /*
  * Our containment and distance against PostGIS on the seeded demo parcels (read-only). PostGIS is
@@ -12,14 +13,6 @@ import type { LonLat, MultiPolygon } from '../../src/lib/field/types';
 const seed = 20_261_201; // mulberry32 seeded with the demo's "today", 2026-12-01
 const pointsPerParcel = 2_000;
 
-function mulberry32(state: number) {
-  return () => {
-    state = (state + 0x6d2b79f5) | 0;
-    let t = Math.imul(state ^ (state >>> 15), 1 | state);
-    t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 type Parcel = { id: string; name: string; boundary: MultiPolygon };
 type Sample = { parcel: Parcel; position: LonLat };

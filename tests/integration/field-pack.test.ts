@@ -10,6 +10,7 @@ import { offlineCheckIn, type FieldPack } from '../../src/lib/field/pack';
 import { decideAt } from '../../src/server/field/check-in';
 import { fieldPack } from '../../src/server/field/pack';
 import { createThrowawayDatabase, migrationsFolder, type ThrowawayDatabase } from './throwaway-database';
+import { mulberry32 } from '../seeded-random';
 
 /*
  * The field pack against the server, on the demo valley (data/demo) loaded into a throwaway
@@ -31,14 +32,6 @@ const db = () => {
   return throwaway.db;
 };
 
-function mulberry32(state: number) {
-  return () => {
-    state = (state + 0x6d2b79f5) | 0;
-    let t = Math.imul(state ^ (state >>> 15), 1 | state);
-    t = (t + Math.imul(t ^ (t >>> 7), 61 | t)) ^ t;
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /** A person of the demo as the app sees them: their id and the clubs they are an active member of (src/db/accounts.queries.ts). */
 async function foragerByEmail(email: string): Promise<Forager> {
