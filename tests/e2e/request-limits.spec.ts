@@ -28,17 +28,34 @@ type Answer = { status: number; body: string; ms: number };
 /**
  * A raw POST whose body goes out in chunks with `Transfer-Encoding: chunked` and no Content-Length
  * (or with the `content-length` given, true or not). Resolves with the answer even when the server
- * answers before it has read the whole body.
+ * answers before it has read the whole body. The server cuts a refused body's connection, and now and
+ * then the kernel's reset overtakes the answer (a known limit, noted in DEVELOPERS.md): the request
+ * is then sent once more, as a client that saw its connection reset would, and the count is printed.
  */
-function rawPost(path: string, { headers, chunks }: { headers: Record<string, string>; chunks: Iterable<Buffer> }): Promise<Answer> {
+async function rawPost(path: string, request: { headers: Record<string, string>; chunks: () => Iterable<Buffer> }): Promise<Answer> {
+  const first = await rawPostOnce(path, request.headers, request.chunks());
+  if (first.status !== 0) return first;
+  console.log(`request-limits: ${path} was reset before its answer; sent once more`);
+  return rawPostOnce(path, request.headers, request.chunks());
+}
+
+function rawPostOnce(path: string, headers: Record<string, string>, chunks: Iterable<Buffer>): Promise<Answer> {
   const started = Date.now();
   return new Promise((resolve, reject) => {
+    let answered = false;
     const req = httpRequest(`${baseURL}${path}`, { method: 'POST', headers: { origin: baseURL, ...headers } }, (res) => {
+      answered = true;
       let text = '';
       res.on('data', (c) => (text += c));
       res.on('end', () => resolve({ status: res.statusCode ?? 0, body: text, ms: Date.now() - started }));
+      res.on('error', () => resolve({ status: res.statusCode ?? 0, body: text, ms: Date.now() - started }));
     });
-    req.on('error', (error) => ((error as NodeJS.ErrnoException).code === 'EPIPE' || (error as NodeJS.ErrnoException).code === 'ECONNRESET' ? undefined : reject(error)));
+    req.on('error', (error) => {
+      const code = (error as NodeJS.ErrnoException).code;
+      if (code !== 'EPIPE' && code !== 'ECONNRESET') return reject(error);
+      // Reset while sending: the answer may still be on its way; with none by then, it was lost.
+      setTimeout(() => answered || resolve({ status: 0, body: '', ms: Date.now() - started }), 1000);
+    });
     (async () => {
       for (const chunk of chunks) {
         if (req.destroyed || req.writableEnded) return;
@@ -60,7 +77,7 @@ test('given a chunked JSON body past 64 KB with no Content-Length, it answers 41
   const before = await (await forager.get('/api/ledger')).text();
   const answer = await rawPost('/api/harvest-entries', {
     headers: { cookie: cookieOf('forager@example.org'), 'content-type': 'application/json', 'transfer-encoding': 'chunked' },
-    chunks: chunked('{"idempotencyKey":"', 'a', 16 * 1024, 64),
+    chunks: () => chunked('{"idempotencyKey":"', 'a', 16 * 1024, 64),
   });
   expect(answer.status).toBe(413);
   expect(JSON.parse(answer.body).error).toMatchObject({ code: 'body-too-large' });
@@ -72,7 +89,7 @@ test('given a declared Content-Length past the cap, it answers 413 without waiti
   // Only the first 16 KB of the 10 MB it announces is ever sent; the answer must come anyway. Node's
   // agent keeps connections alive: the previous test's refused body must not have left this one
   // queued behind it on a reused connection (a refused body's connection is closed).
-  const answer = await rawPost('/api/sign-in', { headers: { 'content-type': 'application/json', 'content-length': String(10 * 1024 * 1024) }, chunks: chunked('{"email":"', 'a', 16 * 1024, 1) });
+  const answer = await rawPost('/api/sign-in', { headers: { 'content-type': 'application/json', 'content-length': String(10 * 1024 * 1024) }, chunks: () => chunked('{"email":"', 'a', 16 * 1024, 1) });
   expect(answer.status).toBe(413);
 });
 
@@ -113,13 +130,13 @@ test('given a chunked multipart upload past the boundary file cap, it answers 41
   const boundary = 'tallywoodlimits';
   const answer = await rawPost('/api/boundaries/check', {
     headers: { cookie: cookieOf('landowner@example.org'), 'content-type': `multipart/form-data; boundary=${boundary}`, 'transfer-encoding': 'chunked' },
-    chunks: chunked(`--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="big.geojson"\r\nContent-Type: application/geo+json\r\n\r\n`, ' ', 256 * 1024, 24),
+    chunks: () => chunked(`--${boundary}\r\nContent-Disposition: form-data; name="file"; filename="big.geojson"\r\nContent-Type: application/geo+json\r\n\r\n`, ' ', 256 * 1024, 24),
   });
   expect(answer.status).toBe(413);
 });
 
 test('given a webhook body past 256 KB, it answers 413 before checking any signature', async () => {
-  const answer = await rawPost('/api/payments/webhook', { headers: { 'content-type': 'application/json', 'transfer-encoding': 'chunked' }, chunks: chunked('{"id":"', 'x', 64 * 1024, 8) });
+  const answer = await rawPost('/api/payments/webhook', { headers: { 'content-type': 'application/json', 'transfer-encoding': 'chunked' }, chunks: () => chunked('{"id":"', 'x', 64 * 1024, 8) });
   expect(answer.status).toBe(413);
 });
 

@@ -110,7 +110,7 @@ export default function HarvestForm({ recorder, species, onSaved }: { recorder: 
         return (
           <div key={a.measure ?? 'any'} className="grid grid-cols-2 gap-3" data-measure={a.measure ?? 'any'}>
             <div>
-              <label className="field-label" htmlFor={`harvest-quantity${suffix}`}>Quantity ({units[a.unit].label})</label>
+              <label className="field-label" htmlFor={`harvest-quantity${suffix}`}>Quantity{amounts.length > 1 ? ` (${units[a.unit].label})` : ''}</label>
               <div className="flex items-center gap-2">
                 <input id={`harvest-quantity${suffix}`} inputMode="decimal" className="field-input min-w-0" value={a.quantity} onChange={(e) => setAmount(i, { quantity: e.target.value })} aria-invalid={problem?.field === 'quantities'} />
                 <span className="shrink-0 text-sm font-semibold text-loam-800" data-testid="quantity-unit">{units[a.unit].label}</span>
