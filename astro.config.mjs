@@ -37,14 +37,15 @@ function startupCheck() {
 }
 
 /**
- * The installable app and its service worker (vite-plugin-pwa, Workbox's generateSW). The built
- * scripts, styles, fonts and icons are precached; the pages a forager opens in the field (Field,
- * My permits, My ledger) are kept from their last visit and served from there only when the network
- * does not answer; map tiles are kept as they are loaded (the Field's "Get ready" loads the pack's).
- * Everything else, and every API call, always goes to the network. The field pack and the entries
- * made offline live in IndexedDB (src/components/field/offline-store.ts), not here.
+ * The installable app and its service worker (vite-plugin-pwa with Workbox, injectManifest): the
+ * worker is src/sw.ts, which says what it keeps for offline use and how it sends what the Field
+ * recorded offline when the connection returns (Background Sync). The field pack and the entries
+ * made offline live in IndexedDB (src/components/field/offline-store.ts), not in its caches.
  */
 const pwa = AstroPWA({
+  strategies: 'injectManifest',
+  srcDir: 'src',
+  filename: 'sw.ts',
   registerType: 'autoUpdate',
   injectRegister: false,
   includeAssets: ['favicon.svg', 'icons/apple-touch-icon.png'],
@@ -63,22 +64,8 @@ const pwa = AstroPWA({
       { src: '/icons/tallywood-maskable-512.png', sizes: '512x512', type: 'image/png', purpose: 'maskable' },
     ],
   },
-  workbox: {
+  injectManifest: {
     globPatterns: ['**/*.{js,css,woff2,svg,png,webmanifest}'],
-    // Server-rendered pages have no HTML in the build to fall back to.
-    navigateFallback: null,
-    runtimeCaching: [
-      {
-        urlPattern: ({ request, url }) => request.mode === 'navigate' && ['/field', '/my-permits', '/ledger'].includes(url.pathname),
-        handler: 'NetworkFirst',
-        options: { cacheName: 'tallywood-pages', networkTimeoutSeconds: 6, cacheableResponse: { statuses: [200] } },
-      },
-      {
-        urlPattern: ({ url }) => url.pathname.startsWith('/tiles/') || /\/\d+\/\d+\/\d+\.(png|jpg|jpeg|webp|pbf)$/.test(url.pathname),
-        handler: 'CacheFirst',
-        options: { cacheName: 'tallywood-tiles', expiration: { maxEntries: 6000, maxAgeSeconds: 60 * 24 * 60 * 60 }, cacheableResponse: { statuses: [0, 200] } },
-      },
-    ],
   },
 });
 

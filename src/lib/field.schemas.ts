@@ -34,6 +34,9 @@ const quantities = (quantity: z.ZodType<string, unknown>) =>
 
 const idempotencyKey = z.string().min(8, 'Send an idempotency key of at least 8 characters.').max(100);
 
+/** Whose records a synced batch holds: the account signed in when they were recorded on the device. */
+const foragerId = z.string("Name the forager who recorded these (foragerId).").min(1, 'Name the forager who recorded these (foragerId).').max(100);
+
 export const harvestSchema = z.object({
   /** The client's key for this entry; sending it again returns the first result. */
   idempotencyKey,
@@ -98,7 +101,7 @@ const itemList = <T extends z.ZodType<{ idempotencyKey: string }>>(item: T) =>
  * in the order they were recorded, with the instant its field pack was downloaded. (The API document
  * shows this; the endpoint reads the list with `fieldSyncEnvelopeSchema` and each item on its own.)
  */
-export const fieldSyncSchema = z.object({ packAsOf: instant('when the field pack was downloaded'), items: itemList(syncItemSchema) });
+export const fieldSyncSchema = z.object({ foragerId, packAsOf: instant('when the field pack was downloaded'), items: itemList(syncItemSchema) });
 
 /**
  * The batch as the endpoint reads it first: a wrong list is a 400 for the whole body, but an item
@@ -106,6 +109,7 @@ export const fieldSyncSchema = z.object({ packAsOf: instant('when the field pack
  * one bad item in a device's queue does not hold back the rest.
  */
 export const fieldSyncEnvelopeSchema = z.object({
+  foragerId,
   packAsOf: instant('when the field pack was downloaded'),
   items: itemList(z.looseObject({ kind: z.enum(['check-in', 'entry'], "Each item is a 'check-in' or an 'entry'."), idempotencyKey })),
 });

@@ -53,6 +53,7 @@ const routes: Route[] = [
   {
     method: 'post', path: '/api/field/sync', summary: 'Send check-ins and entries recorded offline (1–50, in the order recorded); answers one result per item, in order', body: fieldSyncSchema, tag: 'field',
     description: 'Each item is idempotent by its key (per forager): sent again, it answers its first result with `replayed: true` and records nothing twice. ' +
+      '`foragerId` names the account that recorded the batch on the device: another than the signed-in one is a 409 (`other-forager`) and nothing is written. ' +
       'Each item is saved in its own transaction. `status` is `recorded`, `flagged` (recorded, with `flag: { kind, message }`: `breach` when going over was confirmed on the device, ' +
       '`over-on-sync` when it was over only once others\' entries were counted, `off-permit` when harvest was not clear where and when it was recorded) or `refused` ' +
       '(recorded nowhere, with `message`: a device clock ahead of ours by more than 2 minutes, before `packAsOf` or more than 30 days old; a parcel or species not open to you; an item with its `kind` and `idempotencyKey` but malformed otherwise). A body that is not such a list is a 400. ' +

@@ -84,7 +84,7 @@ async function keep(page: Page, amount: string) {
 
 /** The Field made ready online, then the network cut and the page reloaded from the service worker. */
 async function offlineField(browser: Browser): Promise<{ context: BrowserContext; page: Page }> {
-  const context = await browser.newContext({ storageState: sessionFile('forager@example.org'), geolocation: { ...centre, accuracy: 8 }, permissions: ['geolocation'] });
+  const context = await browser.newContext({ storageState: sessionFile('forager@example.org'), geolocation: { ...centre, accuracy: 8 }, permissions: ['geolocation', 'background-sync'] });
   const page = await readyForTheField(context);
   await context.setOffline(true);
   await page.reload();
@@ -131,13 +131,13 @@ test('given three entries kept offline, closing the page loses none, and the tal
 });
 
 type LedgerLine = { parcelName: string; quantities: { quantity: string; unit: string }[] };
-const ledgerOf = async (page: Page) => ((await (await page.request.get('/api/ledger')).json()) as { entries: LedgerLine[] }).entries.filter((e) => e.parcelName === name);
+const ledgerOf = async (request: APIRequestContext) => ((await (await request.get('/api/ledger')).json()) as { entries: LedgerLine[] }).entries.filter((e) => e.parcelName === name);
 const grams = (lines: LedgerLine[]) => lines.map((l) => l.quantities.map((q) => `${q.quantity} ${q.unit}`).join('+')).sort();
 
 test('given entries kept offline, the connection coming back sends them once, and a retry after an answer lost on the way records nothing twice', async ({ browser }) => {
-  const context = await browser.newContext({ storageState: sessionFile('forager@example.org'), geolocation: { ...centre, accuracy: 8 }, permissions: ['geolocation'] });
+  const context = await browser.newContext({ storageState: sessionFile('forager@example.org'), geolocation: { ...centre, accuracy: 8 }, permissions: ['geolocation', 'background-sync'] });
   const page = await readyForTheField(context);
-  const before = grams(await ledgerOf(page));
+  const before = grams(await ledgerOf(page.request));
   await context.setOffline(true);
   await page.reload();
   await page.locator('[data-hydrated]').waitFor();
@@ -146,9 +146,10 @@ test('given entries kept offline, the connection coming back sends them once, an
   await keep(page, '37');
   await expect(page.getByTestId('queue').locator('[data-state="waiting"]')).toHaveCount(2);
 
-  // The server records the batch, but its answer never reaches the phone: the records stay waiting.
+  // The server records the batch, but its answer never reaches the phone (neither the page nor its
+  // service worker, whose background sync also sends when the connection returns): the records stay waiting.
   let committed = 0;
-  await page.route('**/api/field/sync', async (route) => {
+  await context.route('**/api/field/sync', async (route) => {
     const response = await route.fetch();
     if (response.ok()) committed += 1;
     await route.abort('connectionreset');
@@ -156,13 +157,13 @@ test('given entries kept offline, the connection coming back sends them once, an
   await context.setOffline(false);
   await expect.poll(() => committed).toBeGreaterThan(0);
   await expect(page.getByTestId('queue').locator('[data-state="waiting"]')).toHaveCount(2);
-  expect(grams(await ledgerOf(page))).toEqual([...before, '31 g', '37 g'].sort());
+  expect(grams(await ledgerOf(page.request))).toEqual([...before, '31 g', '37 g'].sort());
 
   // Sent again: the server answers for what it already holds, and the ledger has each entry once.
-  await page.unroute('**/api/field/sync');
+  await context.unroute('**/api/field/sync');
   await page.getByRole('button', { name: /Send now/ }).click();
   await expect(page.getByTestId('queue').locator('[data-state="sent"]')).toHaveCount(2);
-  expect(grams(await ledgerOf(page))).toEqual([...before, '31 g', '37 g'].sort());
+  expect(grams(await ledgerOf(page.request))).toEqual([...before, '31 g', '37 g'].sort());
 
   await page.goto('/ledger');
   const rows = page.locator('[data-testid="ledger-table"][data-hydrated="true"] tbody tr').filter({ hasText: name });
@@ -171,9 +172,28 @@ test('given entries kept offline, the connection coming back sends them once, an
   await context.close();
 });
 
+test('given an entry kept offline and the Field closed, the browser sends it by itself when the connection returns (background sync)', async ({ browser }) => {
+  const { context, page } = await offlineField(browser);
+  await expect(await checkInAt(page, context, centre, 8)).toHaveAttribute('data-verdict', 'clear');
+  await keep(page, '43');
+  await expect(page.getByTestId('queue').locator('[data-state="waiting"]')).toHaveCount(1);
+  await page.close();
+
+  // No page is open, so only the service worker's sync can send it (the API is read from outside the browser).
+  await context.setOffline(false);
+  await expect.poll(async () => grams(await ledgerOf(context.request)).filter((g) => g === '43 g').length, { timeout: 30_000 }).toBe(1);
+
+  // Opened again, the Field shows it as sent, and sending once more records nothing twice.
+  const again = await context.newPage();
+  await again.goto('/field');
+  await expect(again.getByTestId('queue').locator('[data-state="sent"]').filter({ hasText: '43 g' })).toHaveCount(1);
+  expect(grams(await ledgerOf(context.request)).filter((g) => g === '43 g')).toHaveLength(1);
+  await context.close();
+});
+
 /*
  * Everyone on the parcel may take 1 100 g this season. Owen keeps 450 g on his phone, within its
- * tallies (the pack counted at most the 68 g the test above sent); meanwhile Beth records 700 g
+ * tallies (the pack counted at most the 111 g the tests above sent); meanwhile Beth records 700 g
  * online. Synced, Owen's entry takes the season over: recorded, flagged over on sync, and the
  * landowner is told.
  */

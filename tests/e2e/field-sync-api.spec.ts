@@ -16,6 +16,8 @@ let walter: APIRequestContext;
 let forager: APIRequestContext;
 let parcelId = '';
 let oysterId = '';
+/** The signed-in forager's id, which a batch names (POST /api/field/sync refuses another's). */
+let foragerId = '';
 /** When the permit was granted: a field pack downloaded before it could not hold it, so packs here are downloaded after. */
 let grantedAt = 0;
 
@@ -23,6 +25,7 @@ test.describe.configure({ mode: 'serial' });
 
 test.beforeAll(async () => {
   [walter, forager] = await Promise.all([apiAs('landowner@example.org'), apiAs('forager@example.org')]);
+  foragerId = await idOf(forager);
   const ring = [[west, south], [west + size, south], [west + size, south + size], [west, south + size], [west, south]];
   const created = await walter.post('/api/parcels', { data: { name: `Sync API lot ${Date.now()}`, timeZone: 'America/New_York', nearingThresholdPercent: 80, openToRequests: false, description: '', boundary: { type: 'Polygon', coordinates: [ring] } } });
   expect(created.status(), await created.text()).toBe(201);
@@ -38,10 +41,12 @@ test.beforeAll(async () => {
 
 test.afterAll(async () => Promise.all([walter, forager].map((c) => c?.dispose())));
 
+const idOf = async (client: APIRequestContext) => ((await (await client.get('/api/me')).json()) as { id: string }).id;
 const minutesAgo = (n: number) => new Date(Date.now() - n * 60_000).toISOString();
 /** An instant after `from`, and before now. */
 const after = (from: number, ms: number) => new Date(Math.min(from + ms, Date.now())).toISOString();
 const batch = (grams: string) => ({
+  foragerId,
   packAsOf: after(grantedAt, 1),
   items: [
     { kind: 'check-in', idempotencyKey: randomUUID(), recordedAt: after(grantedAt, 2), position: { ...centre, source: 'tap' } },
@@ -111,8 +116,16 @@ test('given a malformed item among good ones, it alone is refused with what is w
   expect(await entriesOf('12.75')).toEqual([results[2]?.entryId]);
 });
 
+test('given a batch a phone kept for another account, it is refused as a whole and nothing of it is written', async () => {
+  const body = { ...batch('13.25'), foragerId: await idOf(walter) };
+  const response = await forager.post('/api/field/sync', { data: body });
+  expect(response.status()).toBe(409);
+  expect((await response.json()).error).toMatchObject({ code: 'other-forager', field: 'foragerId', message: expect.stringMatching(/^These were recorded on this phone by another account, so nothing was saved\./) });
+  expect(await entriesOf('13.25')).toEqual([]);
+});
+
 test('given a body that is not a batch, it is a 400 naming the field, like every endpoint', async () => {
-  const response = await forager.post('/api/field/sync', { data: { packAsOf: minutesAgo(60), items: [] } });
+  const response = await forager.post('/api/field/sync', { data: { foragerId, packAsOf: minutesAgo(60), items: [] } });
   expect(response.status()).toBe(400);
   expect((await response.json()).error).toMatchObject({ code: 'invalid-input', field: 'items', message: 'Send at least one item.' });
 });
@@ -152,7 +165,8 @@ test.describe('two members over the club season once both are counted', () => {
 
   test.afterAll(async () => Promise.all([beth, steward].map((c) => c?.dispose())));
 
-  const entry = () => ({
+  const entry = (foragerOf: string) => ({
+    foragerId: foragerOf,
     packAsOf: after(clubGrantedAt, 1),
     items: [{ kind: 'entry', idempotencyKey: randomUUID(), recordedAt: after(clubGrantedAt, 2), position: spot, parcelId: clubParcel, speciesId: oysterId, method: 'pick', quantities: [{ quantity: '300', unit: 'g' }], acknowledgeOver: false }],
   });
@@ -163,9 +177,9 @@ test.describe('two members over the club season once both are counted', () => {
   };
 
   test('given the second to sync, it is recorded and flagged over on sync, and the landowner and the steward are told by e-mail', async () => {
-    const [first] = await syncAs(beth, entry());
+    const [first] = await syncAs(beth, entry(await idOf(beth)));
     expect(first).toMatchObject({ status: 'recorded', replayed: false });
-    const [second] = await syncAs(steward, entry());
+    const [second] = await syncAs(steward, entry(await idOf(steward)));
     expect(second).toMatchObject({ status: 'flagged', replayed: false, flag: { kind: 'over-on-sync' } });
     expect(second?.flag?.message).toMatch(/^Over on sync: recorded offline within the device's tallies, over once others' entries were counted/);
     for (const email of ['landowner@example.org', 'steward@example.org']) {

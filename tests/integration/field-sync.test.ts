@@ -41,12 +41,12 @@ let keys = 0;
 const key = (label: string) => `${label}-${++keys}-${crypto.randomUUID()}`;
 
 /** A body as the device sends it, parsed by the endpoint's own schema. */
-const body = (items: unknown[], asOf = packAsOf): FieldSyncInput => fieldSyncSchema.parse({ packAsOf: asOf, items });
+const body = (foragerId: string, items: unknown[], asOf = packAsOf): FieldSyncInput => fieldSyncSchema.parse({ foragerId, packAsOf: asOf, items });
 const entryItem = (recordedAt: string, grams: string, extra: Record<string, unknown> = {}) => ({
   kind: 'entry', idempotencyKey: key('entry'), recordedAt, position: inside, parcelId: ids.parcel, speciesId: ids.chanterelle, method: 'pick',
   quantities: [{ quantity: grams, unit: 'g' }], acknowledgeOver: false, ...extra,
 });
-const sync = (forager: Forager, items: unknown[], now: string, asOf = packAsOf) => syncFieldItems(db(), { forager, input: body(items, asOf), now: new Date(now) });
+const sync = (forager: Forager, items: unknown[], now: string, asOf = packAsOf) => syncFieldItems(db(), { forager, input: body(forager.id, items, asOf), now: new Date(now) });
 const entryRow = async (id: string | undefined) => one(db().select().from(harvestEntries).where(eq(harvestEntries.id, id ?? '00000000-0000-0000-0000-000000000000')));
 
 beforeAll(async () => {
@@ -281,7 +281,7 @@ describe('device clocks that cannot be believed, and things the forager could ne
   it('given a malformed item among good ones, it alone is refused, saying what is wrong, and nothing of it is written', async () => {
     const bad = entryItem('2026-07-22T14:05:00Z', '1', { method: 'scrape' });
     const good = entryItem('2026-07-22T14:10:00Z', '1');
-    const { packAsOf: asOf, items } = fieldSyncEnvelopeSchema.parse({ packAsOf: '2026-07-22T11:00:00Z', items: [bad, good] });
+    const { packAsOf: asOf, items } = fieldSyncEnvelopeSchema.parse({ foragerId: eve.id, packAsOf: '2026-07-22T11:00:00Z', items: [bad, good] });
     const results = await syncFieldItems(db(), { forager: eve, input: { packAsOf: asOf, items: parseSyncItems(items) }, now: new Date(now) });
     expect(results.map((r) => [r.idempotencyKey, r.status])).toEqual([[bad.idempotencyKey, 'refused'], [good.idempotencyKey, 'recorded']]);
     expect(results[0]?.message).toBe('This was not saved (method): Choose how you took it.');

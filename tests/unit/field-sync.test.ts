@@ -99,29 +99,30 @@ describe('fieldSyncSchema', () => {
   };
 
   it('given an instant with its offset, it reads the same instant as UTC', () => {
-    const parsed = fieldSyncSchema.parse({ packAsOf: '2026-07-15T12:00:00Z', items: [entry] });
+    const parsed = fieldSyncSchema.parse({ foragerId: 'a-forager', packAsOf: '2026-07-15T12:00:00Z', items: [entry] });
     expect(parsed.items[0]?.recordedAt.toISOString()).toBe('2026-07-15T14:00:00.000Z');
   });
 
-  it('given no items, 51 items, two items with one key, or an instant without an offset, it names what to fix', () => {
-    expect(issue({ packAsOf: '2026-07-15T12:00:00Z', items: [] })?.message).toBe('Send at least one item.');
+  it('given no items, 51 items, two items with one key, an instant without an offset or no forager, it names what to fix', () => {
+    expect(issue({ foragerId: 'a-forager', packAsOf: '2026-07-15T12:00:00Z', items: [] })?.message).toBe('Send at least one item.');
     const many = Array.from({ length: 51 }, (_, n) => ({ ...entry, idempotencyKey: `key-${String(n).padStart(8, '0')}` }));
-    expect(issue({ packAsOf: '2026-07-15T12:00:00Z', items: many })?.message).toMatch(/at most 50 items/);
-    expect(issue({ packAsOf: '2026-07-15T12:00:00Z', items: [entry, entry] })?.message).toMatch(/share one/);
-    expect(issue({ packAsOf: '2026-07-15T12:00:00', items: [entry] })).toMatchObject({ path: 'packAsOf' });
-    expect(issue({ packAsOf: '2026-07-15T12:00:00Z', items: [{ ...entry, position: { ...entry.position, source: 'guess' } }] })).toMatchObject({ path: 'items.0.position.source' });
+    expect(issue({ foragerId: 'a-forager', packAsOf: '2026-07-15T12:00:00Z', items: many })?.message).toMatch(/at most 50 items/);
+    expect(issue({ foragerId: 'a-forager', packAsOf: '2026-07-15T12:00:00Z', items: [entry, entry] })?.message).toMatch(/share one/);
+    expect(issue({ foragerId: 'a-forager', packAsOf: '2026-07-15T12:00:00', items: [entry] })).toMatchObject({ path: 'packAsOf' });
+    expect(issue({ packAsOf: '2026-07-15T12:00:00Z', items: [entry] })).toEqual({ path: 'foragerId', message: 'Name the forager who recorded these (foragerId).' });
+    expect(issue({ foragerId: 'a-forager', packAsOf: '2026-07-15T12:00:00Z', items: [{ ...entry, position: { ...entry.position, source: 'guess' } }] })).toMatchObject({ path: 'items.0.position.source' });
   });
 
   it('given a batch whose second item is malformed, the list is read and that item alone is refused with what is wrong', () => {
     const bad = { ...entry, idempotencyKey: 'key-00000002', quantities: [{ quantity: '0', unit: 'g' }] };
-    const { items } = fieldSyncEnvelopeSchema.parse({ packAsOf: '2026-07-15T12:00:00Z', items: [entry, bad] });
+    const { items } = fieldSyncEnvelopeSchema.parse({ foragerId: 'a-forager', packAsOf: '2026-07-15T12:00:00Z', items: [entry, bad] });
     const read = parseSyncItems(items);
     expect(read[0]).toMatchObject({ ok: true, item: { idempotencyKey: 'key-00000001', kind: 'entry' } });
     expect(read[1]).toEqual({ ok: false, idempotencyKey: 'key-00000002', kind: 'entry', message: 'This was not saved (quantities.0.quantity): Enter how much you took.' });
   });
 
   it('given an item without a key or of an unknown kind, the whole body is refused', () => {
-    const envelope = (items: unknown[]) => fieldSyncEnvelopeSchema.safeParse({ packAsOf: '2026-07-15T12:00:00Z', items });
+    const envelope = (items: unknown[]) => fieldSyncEnvelopeSchema.safeParse({ foragerId: 'a-forager', packAsOf: '2026-07-15T12:00:00Z', items });
     expect(envelope([{ ...entry, idempotencyKey: undefined }]).success).toBe(false);
     expect(envelope([{ ...entry, kind: 'photo' }]).success).toBe(false);
   });

@@ -6,8 +6,8 @@ import { sendJson } from '../api-client';
 import { offlineRecorder, onlineRecorder } from './recorders';
 import SpeciesTallies from './SpeciesTallies';
 import VerdictPanel, { type OfflineNote } from './VerdictPanel';
-import { enqueue, queuedRecords, savedPack, savePack, type QueuedRecord } from './offline-store';
-import { sendWaiting } from './sync';
+import { queuedRecords, savedPack, savePack, type QueuedRecord } from './offline-store';
+import { fieldSentMessage, keepForSending, sendWaiting } from './sync';
 import QueueList from './QueueList';
 import PackStatus from './PackStatus';
 
@@ -122,10 +122,16 @@ export default function FieldApp({ tiles, parcels, userId }: { tiles: ParcelMapP
     })();
     const onOnline = () => void online();
     window.addEventListener('online', onOnline);
+    // The service worker sent what waited (background sync): show each record's new state.
+    const onWorkerMessage = (event: MessageEvent) => {
+      if ((event.data as { type?: string } | null)?.type === fieldSentMessage) void reloadQueue();
+    };
+    navigator.serviceWorker?.addEventListener('message', onWorkerMessage);
     const tick = setInterval(() => setNow(new Date()), 60_000);
     return () => {
       live = false;
       window.removeEventListener('online', onOnline);
+      navigator.serviceWorker?.removeEventListener('message', onWorkerMessage);
       clearInterval(tick);
     };
   }, [userId]);
@@ -158,7 +164,7 @@ export default function FieldApp({ tiles, parcels, userId }: { tiles: ParcelMapP
       setAnswer({ ...(result.data as CheckInAnswer & { visitId: string | null }), offline: null });
     } else if (!result || result.error.code === 'offline') {
       if (pack) {
-        await enqueue(userId, { kind: 'check-in', idempotencyKey: crypto.randomUUID(), recordedAt: new Date().toISOString(), position: { longitude: body.longitude, latitude: body.latitude, accuracyM: body.accuracyM, source: body.source }, packAsOf: pack.asOf, state: 'waiting', summary: 'Check-in' });
+        await keepForSending(userId, { kind: 'check-in', idempotencyKey: crypto.randomUUID(), recordedAt: new Date().toISOString(), position: { longitude: body.longitude, latitude: body.latitude, accuracyM: body.accuracyM, source: body.source }, packAsOf: pack.asOf, state: 'waiting', summary: 'Check-in' });
       }
       await decideOffline(next, await reloadQueue());
     } else {

@@ -63,6 +63,12 @@ export async function enqueue(userId: string, record: QueuedRecord) {
   await (await database()).put('queue', { ...record, userId });
 }
 
+/** Whose records on this device still wait for the server (the service worker sends each person's under their own sign-in). */
+export async function foragersWithWaiting(): Promise<string[]> {
+  const rows = await (await database()).getAll('queue');
+  return [...new Set(rows.filter((r) => r.state === 'waiting').map((r) => r.userId))];
+}
+
 /** What the server's answer changes on a queued record. */
 export type QueueAnswer = Pick<QueuedRecord, 'state' | 'answeredAt' | 'message' | 'flagKind'>;
 

@@ -4,7 +4,7 @@ import { offlineUsage, type CountedEntry, type FieldPack, type PositionSource } 
 import { formatQuantities } from '../../lib/tally-words';
 import { sendJson, type ApiResult } from '../api-client';
 import type { HarvestDraft, Recorder } from './HarvestForm';
-import { enqueue } from './offline-store';
+import { keepForSending } from './sync';
 
 const asBody = ({ photo: _photo, ...draft }: HarvestDraft) => draft;
 
@@ -76,7 +76,7 @@ export function offlineRecorder(spot: OfflineSpot): Recorder {
         if (projection.wouldBreach && !draft.acknowledgeOver) {
           return { ok: false, status: 409, error: { code: 'would-go-over', field: 'quantities', message: 'This entry would take a limit over. Take less, or confirm that you are going over; the landowner is told.' } };
         }
-        await enqueue(spot.userId, {
+        await keepForSending(spot.userId, {
           kind: 'entry',
           idempotencyKey: draft.idempotencyKey,
           recordedAt: at.toISOString(),

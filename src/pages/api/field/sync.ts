@@ -1,18 +1,24 @@
 import { db } from '../../../db';
 import { fieldSyncEnvelopeSchema, parseSyncItems } from '../../../lib/field.schemas';
+import { AppError } from '../../../lib/errors';
 import { toldFlagKinds } from '../../../lib/flag-words';
 import { endpoint, guard, json, readJson } from '../../../server/http';
 import { noticeBreach } from '../../../server/field-notices';
 import { syncFieldItems } from '../../../server/field/sync';
 
 /**
- * What a device recorded offline, sent when the connection returns: one result per item, in the
- * order sent. Items are idempotent by key; refused items (a malformed one among them: the list is
+ * What a device recorded offline, sent when the connection returns (by the page, or by the service
+ * worker's background sync with nobody looking): one result per item, in the order sent. The batch
+ * names the forager who recorded it, and only that forager's sign-in may send it. Items are idempotent by key; refused items (a malformed one among them: the list is
  * read first, then each item) are recorded nowhere and carry a message.
  */
 export const POST = endpoint(async ({ locals, request, url }) => {
   const actor = guard(locals.actor, 'field:check-in');
-  const { packAsOf, items } = await readJson(request, fieldSyncEnvelopeSchema);
+  const { foragerId, packAsOf, items } = await readJson(request, fieldSyncEnvelopeSchema);
+  // A phone shared by two people keeps each one's records apart; one person's go only under their own sign-in.
+  if (foragerId !== actor.id) {
+    throw new AppError(409, 'other-forager', 'These were recorded on this phone by another account, so nothing was saved. Sign in as the forager who recorded them to send them.', 'foragerId');
+  }
   const results = await syncFieldItems(db, { forager: { id: actor.id, clubIds: actor.memberOfClubIds }, input: { packAsOf, items: parseSyncItems(items) } });
   // Told on a replay too: whatever did not go the first time (a lost answer, a failed send) goes now, and nothing twice.
   for (const r of results) {
