@@ -40,7 +40,7 @@ function parcelFactsQuery(forager: Forager, where: SQL) {
 }
 
 /** Listed parcels where the forager or one of their clubs holds an approved or active permit. */
-function usableBy(forager: Forager) {
+export function usableBy(forager: Forager) {
   return sql`p.status = 'listed' and p.id in (select pm.parcel_id from permits pm
       where pm.state in ('approved', 'active') and (pm.holder_user_id = ${forager.id}::text or pm.holder_club_id = any(${uuidArray(forager.clubIds)})))`;
 }

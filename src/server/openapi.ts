@@ -3,6 +3,7 @@ import { z } from 'zod';
 import { signInSchema, signUpSchema } from '../lib/accounts.schemas';
 import { allowanceSchema, closureSchema, hazardSchema, newParcelSchema, parcelUpdateSchema, termsSchema, zoneSchema } from '../lib/land.schemas';
 import { accessRequestSchema, decisionSchema, grantPermitSchema, permitLimitSchema, revokeSchema } from '../lib/permits.schemas';
+import { exportFormatNames } from '../lib/boundary-exports';
 import { checkInSchema, correctionSchema, fieldSyncSchema, harvestSchema } from '../lib/field.schemas';
 
 type Route = { method: 'get' | 'post' | 'put' | 'patch' | 'delete'; path: string; summary: string; description?: string; body?: z.ZodType; auth?: boolean; tag: string };
@@ -12,6 +13,13 @@ const overlapWarnings =
   'Overlaps are warnings, never refusals. `overlap-own` names your own parcels (drafts too) with `parcels: [{ parcelId, name, overlapM2 }]`; ' +
   "`overlap` only says that the boundary overlaps land registered by someone else (another owner's listed parcel), with no name, id, area or " +
   "boundary. Other owners' drafts and archived parcels are not counted.";
+
+/** What every boundary download holds and how each format writes an area. */
+const exportDescription =
+  'An attachment (Content-Disposition), in WGS 84 longitude and latitude as stored. GeoJSON (RFC 7946): one Feature per parcel and per zone, ' +
+  'with `name`, `description`, `kind` (`parcel`, `no-harvest-zone`), `parcel` and a zone\'s `reason`. KML 2.2: one Placemark per parcel and per zone. ' +
+  'GPX 1.1 has no areas: each ring is a track (`trk`) that ends on its first point, holes and zones as tracks of their own. ' +
+  'The boundary importer (`POST /api/boundaries/check`) reads each file back.';
 
 /** Every JSON endpoint; request bodies are the zod schemas the endpoints validate with. */
 const routes: Route[] = [
@@ -23,6 +31,11 @@ const routes: Route[] = [
   { method: 'post', path: '/api/parcels', summary: 'Create a parcel (boundary checked; overlaps are warnings)', description: overlapWarnings, body: newParcelSchema, tag: 'parcels' },
   { method: 'get', path: '/api/parcels/{id}', summary: 'One of your parcels', tag: 'parcels' },
   { method: 'patch', path: '/api/parcels/{id}', summary: 'Change settings or boundary', description: overlapWarnings, body: parcelUpdateSchema, tag: 'parcels' },
+  ...(['geojson', 'kml', 'gpx'] as const).map((format): Route => ({
+    method: 'get', path: `/api/parcels/{id}/export.${format}`, tag: 'parcels',
+    summary: `Download the parcel's boundary and no-harvest zones as ${exportFormatNames[format]}`,
+    description: exportDescription,
+  })),
   { method: 'post', path: '/api/boundaries/check', summary: 'Check an uploaded file (multipart `file`: GeoJSON, KML, GPX) or a drawn geometry; saves nothing', description: overlapWarnings, tag: 'parcels' },
   { method: 'post', path: '/api/parcels/{id}/zones', summary: 'Add a no-harvest zone inside the parcel', body: zoneSchema, tag: 'parcel rules' },
   { method: 'delete', path: '/api/parcels/{id}/zones/{zoneId}', summary: 'Remove a zone', tag: 'parcel rules' },
@@ -64,6 +77,11 @@ const routes: Route[] = [
     method: 'get', path: '/api/field/pack', summary: 'Your field pack: every parcel you may use under your own or a club permit, with what the verdict needs, your tallies as of now and the terms', tag: 'field',
     description: 'The phone keeps it (IndexedDB) and decides check-ins from it with no signal, by the same engine as the server. Private: answered with Cache-Control: private, no-store.',
   },
+  ...(['geojson', 'kml', 'gpx'] as const).map((format): Route => ({
+    method: 'get', path: `/api/field/export.${format}`, tag: 'field',
+    summary: `Download the boundaries and no-harvest zones of every parcel you may use (the field pack's) as ${exportFormatNames[format]}`,
+    description: exportDescription,
+  })),
   { method: 'post', path: '/api/photos', summary: 'Upload a harvest photo (multipart `photo`, images only, 10 MB); answers its GPS position if it has one', tag: 'field' },
   { method: 'get', path: '/api/photos/{id}', summary: 'A photo: the original for its owner, a copy without location metadata for the landowner', tag: 'field' },
   { method: 'get', path: '/api/ledger', summary: 'Your own entries and totals', tag: 'ledger' },
