@@ -94,7 +94,7 @@ test('given an active permit, its card opened by the holder verifies on the ward
   await context.close();
 });
 
-test('given a code changed by one character, the warden page says it was not signed by Tallywood, and the status endpoint refuses it', async ({ page, request }) => {
+test('given a forged code (a statement with a signature Tallywood did not make), the warden page says it was not signed by Tallywood, and the status endpoint refuses it', async ({ page, request }) => {
   const context = await page.context().browser()!.newContext({ storageState: sessionFile('landowner@example.org') });
   const owner = await context.newPage();
   await owner.goto(`/permits/${permitId}/card`);
@@ -140,6 +140,15 @@ test('given an active permit, its card reads at 1280 and 390 px and in print, wi
   });
   expect(granted.status(), await granted.text()).toBe(201);
   const id = ((await granted.json()) as { permit: { id: string } }).permit.id;
+  // The landowner reaches the card from the parcel's permits.
+  const owners = await browser.newContext({ storageState: sessionFile('landowner@example.org') });
+  const owner = await owners.newPage();
+  await owner.goto(`/land/${parcelId}`);
+  await owner.locator(`[data-permit="${id}"]`).getByTestId('card-link').click();
+  await expect(owner.getByTestId('card-holder')).toContainText('Owen');
+  await expect(owner.getByTestId('card-qr')).toHaveAttribute('data-token', /^[\w-]+\.[\w-]+\.[\w-]+$/);
+  await owners.close();
+
   mkdirSync(screens, { recursive: true });
   const context = await browser.newContext({ storageState: sessionFile('forager@example.org') });
   const page = await context.newPage();
@@ -162,5 +171,19 @@ test('given an active permit, its card reads at 1280 and 390 px and in print, wi
   await expect(page.getByRole('button', { name: 'Print this card' })).toBeHidden();
   await expect(page.getByTestId('card-qr')).toBeVisible();
   await page.screenshot({ path: join(screens, 'permit-card-print.png'), fullPage: true });
+  await page.emulateMedia({ media: 'screen' });
+
+  // The demo's own active permits (parcels of five to seven species): each code fits a QR code of version 22 or below.
+  await page.goto('/my-permits');
+  const cards = await page.getByTestId('card-link').evaluateAll((links) => links.map((a) => (a as HTMLAnchorElement).href));
+  expect(cards.length).toBeGreaterThan(1);
+  for (const card of cards) {
+    await page.goto(card);
+    const qr = page.getByTestId('card-qr');
+    const version = Number(await qr.getAttribute('data-qr-version'));
+    const token = (await qr.getAttribute('data-token')) ?? '';
+    console.log(`${await page.locator('h1').textContent()}: code of ${token.length} characters, QR version ${version}`);
+    expect(version).toBeLessThanOrEqual(22);
+  }
   await context.close();
 });
