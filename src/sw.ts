@@ -10,8 +10,8 @@ import { backgroundSyncTag, fieldSentMessage, sendAllWaiting } from './component
  * Tallywood's service worker, built by vite-plugin-pwa (injectManifest) with Workbox's modules.
  *
  * - The built scripts, styles, fonts and icons are precached.
- * - The pages opened in the field (Field, My permits, My ledger, and the warden's Check a permit card)
- *   are kept from their last visit and served from there only when the network does not answer. The
+ * - The pages opened in the field (Field, My permits, My ledger, each permit card, and the warden's
+ *   Check a permit card) are kept from their last visit and served from there only when the network does not answer. The
  *   check page is also fetched when the worker installs, so it opens with no signal even before a
  *   first visit of its own.
  * - Map tiles are kept as they are loaded (the Field's "Get ready" loads the pack's).
@@ -41,10 +41,12 @@ precacheAndRoute(self.__WB_MANIFEST);
 cleanupOutdatedCaches();
 
 const keptPages = ['/field', '/my-permits', '/ledger', '/verify'];
+/** A permit card (/permits/<id>/card): shown to a warden where there may be no signal. */
+const cardPage = /^\/permits\/[0-9a-f-]{36}\/card$/;
 const pagesCache = 'tallywood-pages';
 
 registerRoute(
-  ({ request, url }) => request.mode === 'navigate' && keptPages.includes(url.pathname),
+  ({ request, url }) => request.mode === 'navigate' && (keptPages.includes(url.pathname) || cardPage.test(url.pathname)),
   new NetworkFirst({ cacheName: pagesCache, networkTimeoutSeconds: 6, plugins: [new CacheableResponsePlugin({ statuses: [200] })] }),
 );
 

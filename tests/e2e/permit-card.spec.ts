@@ -17,6 +17,8 @@ const screens = join(import.meta.dirname, '..', '..', '.local', 'screens');
 
 let walter: APIRequestContext;
 let permitId = '';
+/** The code of an active permit's card, kept by the screenshot test for the warden's phone below. */
+let activeToken = '';
 
 /** A day on the parcel's calendar, written as the app writes dates ("Dec 2, 2026"), from the IANA tz data. */
 const parcelDay = (date: Date) => new Intl.DateTimeFormat('en-US', { timeZone: 'America/New_York', year: 'numeric', month: 'short', day: 'numeric' }).format(date);
@@ -71,6 +73,10 @@ test('given an active permit, its card opened by the holder verifies on the ward
 
   await page.goto(`/verify#${token}`);
   await expect.poll(() => page.evaluate(() => Boolean(navigator.serviceWorker.controller))).toBe(true);
+  // With the service worker in control, the card is opened once more, so the phone keeps it for no signal.
+  await page.goto(`/permits/${permitId}/card`);
+  await expect(page.getByTestId('card-qr')).toBeVisible();
+  await page.goto(`/verify#${token}`);
   await page.reload();
   await expectVerdict(page, 'active');
   await expect(page.getByTestId('status')).toContainText('Active');
@@ -93,6 +99,11 @@ test('given an active permit, its card opened by the holder verifies on the ward
   // A new tab with the link alone, offline too.
   const again = await context.newPage();
   await again.goto(`/verify#${token}`);
+  await expectVerdict(again, 'unknown');
+  // The forager's card opens with no signal too, with a code that still verifies as signed.
+  await again.goto(`/permits/${permitId}/card`);
+  const kept = (await again.getByTestId('card-qr').getAttribute('data-token')) ?? '';
+  await again.goto(`/verify#${kept}`);
   await expectVerdict(again, 'unknown');
   await context.close();
 });
@@ -162,6 +173,7 @@ test('given an active permit, its card reads at 1280 and 390 px and in print, wi
     expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(width);
     await page.screenshot({ path: join(screens, `permit-card-${label}.png`), fullPage: true });
     const token = (await page.getByTestId('card-qr').getAttribute('data-token')) ?? '';
+    activeToken = token;
     await page.goto(`/verify#${token}`);
     await expectVerdict(page, 'active');
     expect(await page.evaluate(() => document.documentElement.scrollWidth)).toBeLessThanOrEqual(width);
@@ -188,5 +200,20 @@ test('given an active permit, its card reads at 1280 and 390 px and in print, wi
     console.log(`${await page.locator('h1').textContent()}: code of ${token.length} characters, QR version ${version}`);
     expect(version).toBeLessThanOrEqual(22);
   }
+  await context.close();
+});
+
+test("given a warden's phone that has opened any Tallywood page once, signed out, the check page opens with no signal and verifies a card", async ({ browser }) => {
+  expect(activeToken).not.toBe('');
+  const context = await browser.newContext();
+  const page = await context.newPage();
+  await page.goto('/');
+  // The worker keeps the check page when it installs (src/sw.ts); the page itself was never opened.
+  await page.evaluate(() => navigator.serviceWorker.ready);
+  await expect.poll(() => page.evaluate(async () => Boolean(await (await caches.open('tallywood-pages')).match('/verify')))).toBe(true);
+  await context.setOffline(true);
+  await page.goto(`/verify#${activeToken}`);
+  await expectVerdict(page, 'unknown');
+  await expect(page.getByTestId('statement')).toContainText(name);
   await context.close();
 });
