@@ -2,7 +2,7 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import {
-  bin, databaseUrls, ensureAppRole, ensureDatabase, ensureDependencies, ensurePostgres, fail, localDir, localSecret, root, run, say,
+  bin, databaseUrls, ensureAppRole, ensureDatabase, ensureDependencies, ensurePostgres, fail, localDir, localSecret, localSigningKey, root, run, say,
   startChild, startCluster, waitForHttp,
 } from './lib/setup.mjs';
 
@@ -46,6 +46,8 @@ const env = {
   ...(localFakesToken ? { LOCAL_FAKES_TOKEN: localFakesToken } : {}),
   DATABASE_URL: databaseUrl,
   AUTH_SECRET: process.env.AUTH_SECRET ?? localSecret('auth-secret'),
+  // Outside local mode the deployment gives its own, or the server refuses to start (src/server/deployment.ts).
+  ...(process.env.PERMIT_SIGNING_KEY || localMode ? { PERMIT_SIGNING_KEY: process.env.PERMIT_SIGNING_KEY || localSigningKey('permit-signing-key.pem') } : {}),
   HOST: '127.0.0.1',
   PORT: String(port),
   ...(useCatcher

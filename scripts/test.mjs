@@ -8,7 +8,7 @@ import { randomBytes } from 'node:crypto';
 import { rmSync } from 'node:fs';
 import { join } from 'node:path';
 import {
-  answers, bin, databaseUrls, ensureAppRole, ensureChromium, ensureDatabase, ensureDependencies, ensureFaketime, ensurePostgres, fakeClockEnv, localDir, run, say,
+  answers, bin, databaseUrls, ensureAppRole, ensureChromium, ensureDatabase, ensureDependencies, ensureFaketime, ensurePostgres, fakeClockEnv, localDir, localSigningKey, run, say,
   startChild, startCluster, stopCluster, waitForHttp,
 } from './lib/setup.mjs';
 
@@ -53,6 +53,8 @@ const paymentsStore = join(localDir, 'payments-test');
 const common = {
   ...process.env,
   AUTH_SECRET: 'test-secret-not-for-production',
+  /** Signs permit cards; made once and kept in .local/, apart from the one `npm start` keeps. */
+  PERMIT_SIGNING_KEY: localSigningKey('permit-signing-key-test.pem'),
   /** This machine only: the local mail catcher, its mailbox and the payments fake (src/server/deployment.ts). */
   TALLYWOOD_LOCAL_MODE: 'true',
   /** Shared by the app, the local fakes and the tests that read what the fakes keep (scripts/lib/local-fake.mjs). */

@@ -12,6 +12,7 @@ const pageRules: [prefix: string, action: Action][] = [
   ['/land', 'parcel:list-own'],
   ['/requests', 'parcel:list-own'],
   ['/my-permits', 'permit:request'],
+  ['/permits', 'permit:read-card'],
   ['/ledger', 'ledger:read-own'],
   ['/club', 'club:join'],
   ['/reports', 'report:read'],

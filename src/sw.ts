@@ -10,8 +10,10 @@ import { backgroundSyncTag, fieldSentMessage, sendAllWaiting } from './component
  * Tallywood's service worker, built by vite-plugin-pwa (injectManifest) with Workbox's modules.
  *
  * - The built scripts, styles, fonts and icons are precached.
- * - The pages a forager opens in the field (Field, My permits, My ledger) are kept from their last
- *   visit and served from there only when the network does not answer.
+ * - The pages opened in the field (Field, My permits, My ledger, each permit card, and the warden's
+ *   Check a permit card) are kept from their last visit and served from there only when the network does not answer. The
+ *   check page is also fetched when the worker installs, so it opens with no signal even before a
+ *   first visit of its own.
  * - Map tiles are kept as they are loaded (the Field's "Get ready" loads the pack's).
  * - Everything else, and every API call, always goes to the network.
  * - Background Sync: when the browser has a connection again, even with Tallywood closed, the check-ins
@@ -24,6 +26,7 @@ type WorkerScope = {
   __WB_MANIFEST: (string | PrecacheEntry)[];
   skipWaiting(): Promise<void>;
   addEventListener(type: 'sync', listener: (event: SyncEvent) => void): void;
+  addEventListener(type: 'install', listener: (event: Event & { waitUntil(work: Promise<unknown>): void }) => void): void;
   clients: { matchAll(options: { type: 'window' }): Promise<{ postMessage(message: unknown): void }[]> };
 };
 type SyncEvent = Event & { tag: string; lastChance: boolean; waitUntil(work: Promise<unknown>): void };
@@ -37,12 +40,27 @@ clientsClaim();
 precacheAndRoute(self.__WB_MANIFEST);
 cleanupOutdatedCaches();
 
-const fieldPages = ['/field', '/my-permits', '/ledger'];
+const keptPages = ['/field', '/my-permits', '/ledger', '/verify'];
+/** A permit card (/permits/<id>/card): shown to a warden where there may be no signal. */
+const cardPage = /^\/permits\/[0-9a-f-]{36}\/card$/;
+const pagesCache = 'tallywood-pages';
 
 registerRoute(
-  ({ request, url }) => request.mode === 'navigate' && fieldPages.includes(url.pathname),
-  new NetworkFirst({ cacheName: 'tallywood-pages', networkTimeoutSeconds: 6, plugins: [new CacheableResponsePlugin({ statuses: [200] })] }),
+  ({ request, url }) => request.mode === 'navigate' && (keptPages.includes(url.pathname) || cardPage.test(url.pathname)),
+  new NetworkFirst({ cacheName: pagesCache, networkTimeoutSeconds: 6, plugins: [new CacheableResponsePlugin({ statuses: [200] })] }),
 );
+
+/** The check page, kept at install; a failure (no signal) leaves it to be kept on its first visit. */
+self.addEventListener('install', (event) => {
+  event.waitUntil(
+    caches
+      .open(pagesCache)
+      .then(async (cache) => {
+        if (!(await cache.match('/verify'))) await cache.add('/verify');
+      })
+      .catch(() => {}),
+  );
+});
 
 registerRoute(
   ({ url }) => url.pathname.startsWith('/tiles/') || /\/\d+\/\d+\/\d+\.(png|jpg|jpeg|webp|pbf)$/.test(url.pathname),

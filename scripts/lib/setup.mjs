@@ -1,7 +1,7 @@
 // Set-up shared by `npm start` and `npm test`. Node built-ins only: this runs before any
 // dependency is installed.
 import { spawn, spawnSync } from 'node:child_process';
-import { createHash, randomBytes } from 'node:crypto';
+import { createHash, generateKeyPairSync, randomBytes } from 'node:crypto';
 import { chmodSync, existsSync, mkdirSync, readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { dirname, join, resolve } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -248,6 +248,19 @@ export function localSecret(name) {
   if (!existsSync(file)) {
     mkdirSync(localDir, { recursive: true });
     writeFileSync(file, randomBytes(32).toString('base64url'), { mode: 0o600 });
+  }
+  return readFileSync(file, 'utf8').trim();
+}
+
+/**
+ * An Ed25519 private key (PKCS8 PEM) kept in .local/<name>, made on first use: it signs permit cards
+ * (PERMIT_SIGNING_KEY), so a card printed today still verifies after the next start.
+ */
+export function localSigningKey(name) {
+  const file = join(localDir, name);
+  if (!existsSync(file)) {
+    mkdirSync(localDir, { recursive: true });
+    writeFileSync(file, generateKeyPairSync('ed25519').privateKey.export({ type: 'pkcs8', format: 'pem' }), { mode: 0o600 });
   }
   return readFileSync(file, 'utf8').trim();
 }

@@ -37,3 +37,24 @@ export const missingLabels: Record<Missing, string> = {
   fee: 'pay the access fee',
   'start-date': 'wait for the first day of the permit',
 };
+
+/**
+ * How a permit stands on a day, as a permit card's check answers it: `active`, `expired` (its last
+ * day has passed, even before the hourly move records it), `revoked` (with the parcel-local day it
+ * was revoked), or another state, which a card is never made for.
+ */
+export type PermitStanding =
+  | { state: 'active'; lastDay: string }
+  | { state: 'expired'; lastDay: string }
+  | { state: 'revoked'; since: string }
+  | { state: Exclude<PermitState, 'active' | 'expired' | 'revoked'> };
+
+export function permitStanding(
+  permit: { state: PermitState; endsOn: string; revokedOn: string | null },
+  today: string,
+): PermitStanding {
+  if (permit.state === 'revoked') return { state: 'revoked', since: permit.revokedOn ?? today };
+  if (permit.state === 'expired' || ((permit.state === 'active' || permit.state === 'approved') && permit.endsOn < today)) return { state: 'expired', lastDay: permit.endsOn };
+  if (permit.state === 'active') return { state: 'active', lastDay: permit.endsOn };
+  return { state: permit.state };
+}

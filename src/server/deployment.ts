@@ -1,3 +1,5 @@
+import { signingKeyProblem } from './signing-key';
+
 /**
  * What a running Tallywood must have set, checked when the server starts (src/server/startup.ts).
  *
@@ -16,6 +18,8 @@ export type DeploymentSettings = {
   stripeWebhookSecret: string;
   stripeApiUrl: string;
   trustedProxies: string | undefined;
+  /** The Ed25519 key that signs permit cards; unset only in local mode. */
+  permitSigningKey: string | undefined;
   /** Set by scripts/serve.mjs, which decides which forwarded headers to trust before Astro reads them. */
   servedByLauncher: boolean;
 };
@@ -45,6 +49,10 @@ export function deploymentProblems(s: DeploymentSettings): string[] {
   for (const address of (s.trustedProxies ?? '').split(',').map((a) => a.trim()).filter(Boolean)) {
     if (!ipPattern.test(address)) problems.push(`TRUSTED_PROXIES must list IP addresses separated by commas; "${address}" is not one.`);
   }
+  if (s.permitSigningKey) {
+    const problem = signingKeyProblem(s.permitSigningKey);
+    if (problem) problems.push(problem);
+  }
   if (s.localMode) {
     if (s.publicHostname) problems.push('TALLYWOOD_LOCAL_MODE is for this machine only; unset it when PUBLIC_HOSTNAME is set.');
     return problems;
@@ -53,6 +61,7 @@ export function deploymentProblems(s: DeploymentSettings): string[] {
   if (isPublic(s.authSecret)) problems.push('Set AUTH_SECRET to a long random secret of your own (for example: openssl rand -base64 32), the same on every instance.');
   if (isLoopbackUrl(s.stripeApiUrl)) problems.push('Set STRIPE_API_URL to the payment provider (https://api.stripe.com): the local payments fake is only for npm start.');
   if (isPublic(s.stripeSecretKey)) problems.push("Set STRIPE_SECRET_KEY to the payment provider's secret key.");
+  if (!s.permitSigningKey) problems.push('Set PERMIT_SIGNING_KEY to an Ed25519 private key of your own (openssl genpkey -algorithm ed25519, a PKCS8 PEM), the same on every instance: it signs the QR codes of permit cards.');
   if (isPublic(s.stripeWebhookSecret)) problems.push('Set STRIPE_WEBHOOK_SECRET to the signing secret the provider gives for your webhook endpoint (/api/payments/webhook).');
   return problems;
 }

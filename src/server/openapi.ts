@@ -48,6 +48,11 @@ const routes: Route[] = [
   { method: 'delete', path: '/api/parcels/{id}/allowances/{allowanceId}', summary: 'Remove an allowance', tag: 'parcel rules' },
   { method: 'get', path: '/api/parcels/{id}/permits', summary: "The parcel's permits with their histories", tag: 'permits' },
   { method: 'post', path: '/api/parcels/{id}/permits', summary: 'Grant a permit to a forager or a club', body: grantPermitSchema, tag: 'permits' },
+  {
+    method: 'get', path: '/api/permits/status', summary: "Whether the permit on a card is still active (query: token, the card's signed statement)", auth: false, tag: 'permits',
+    description: 'For wardens, no sign-in. A token Tallywood did not sign is a 400 (`not-signed`). Answers `{ permit, state, today }` with `lastDay` (active, expired) or `since` (revoked), days on the parcel\'s calendar; nothing more than the card says. ' +
+      'The public keys are at /.well-known/permit-keys.json (a JWKS).',
+  },
   { method: 'get', path: '/api/permits/{id}', summary: 'One permit with its history (landowner or holder)', tag: 'permits' },
   { method: 'post', path: '/api/permits/{id}/decision', summary: 'Approve or decline an access request', body: decisionSchema, tag: 'permits' },
   { method: 'post', path: '/api/permits/{id}/revoke', summary: 'Revoke a permit (refund when paid and not yet begun)', body: revokeSchema, tag: 'permits' },

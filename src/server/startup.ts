@@ -1,5 +1,5 @@
 import {
-  AUTH_SECRET, PUBLIC_HOSTNAME, SMTP_URL, STRIPE_API_URL, STRIPE_SECRET_KEY, STRIPE_WEBHOOK_SECRET, TALLYWOOD_LOCAL_MODE, TRUSTED_PROXIES,
+  AUTH_SECRET, PERMIT_SIGNING_KEY, PUBLIC_HOSTNAME, SMTP_URL, STRIPE_API_URL, STRIPE_SECRET_KEY, STRIPE_WEBHOOK_SECRET, TALLYWOOD_LOCAL_MODE, TRUSTED_PROXIES,
 } from 'astro:env/server';
 import { deploymentProblems } from './deployment';
 
@@ -16,6 +16,7 @@ const problems = deploymentProblems({
   stripeWebhookSecret: STRIPE_WEBHOOK_SECRET,
   stripeApiUrl: STRIPE_API_URL,
   trustedProxies: TRUSTED_PROXIES,
+  permitSigningKey: PERMIT_SIGNING_KEY,
   servedByLauncher: process.env.ASTRO_NODE_AUTOSTART === 'disabled',
 });
 if (problems.length > 0) {

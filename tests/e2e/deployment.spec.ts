@@ -1,5 +1,5 @@
 import { spawn, type ChildProcess } from 'node:child_process';
-import { randomBytes, randomUUID } from 'node:crypto';
+import { generateKeyPairSync, randomBytes, randomUUID } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { request as httpRequest } from 'node:http';
 import { createServer, type AddressInfo } from 'node:net';
@@ -77,17 +77,18 @@ const publicSettings = () => ({
   STRIPE_API_URL: 'https://api.stripe.example',
   STRIPE_SECRET_KEY: `sk_live_${randomBytes(12).toString('hex')}`,
   STRIPE_WEBHOOK_SECRET: `whsec_${randomBytes(12).toString('hex')}`,
+  PERMIT_SIGNING_KEY: generateKeyPairSync('ed25519').privateKey.export({ type: 'pkcs8', format: 'pem' }).toString(),
 });
 
 test('given a public deployment that sets no SMTP_URL or provider settings, it refuses to start and says what to set', async () => {
   const server = await serve(
-    { TALLYWOOD_LOCAL_MODE: 'false', PUBLIC_HOSTNAME: 'tallywood.example.org', SMTP_URL: undefined, STRIPE_API_URL: undefined, STRIPE_SECRET_KEY: undefined, STRIPE_WEBHOOK_SECRET: undefined },
+    { TALLYWOOD_LOCAL_MODE: 'false', PUBLIC_HOSTNAME: 'tallywood.example.org', SMTP_URL: undefined, STRIPE_API_URL: undefined, STRIPE_SECRET_KEY: undefined, STRIPE_WEBHOOK_SECRET: undefined, PERMIT_SIGNING_KEY: undefined },
     { waitForReady: false },
   );
   expect(await server.exited).toBe(1);
   const said = server.output();
   expect(said).toContain('Tallywood will not start until this is set');
-  for (const variable of ['SMTP_URL', 'AUTH_SECRET', 'STRIPE_API_URL', 'STRIPE_SECRET_KEY', 'STRIPE_WEBHOOK_SECRET']) expect(said).toContain(variable);
+  for (const variable of ['SMTP_URL', 'AUTH_SECRET', 'STRIPE_API_URL', 'STRIPE_SECRET_KEY', 'STRIPE_WEBHOOK_SECRET', 'PERMIT_SIGNING_KEY']) expect(said).toContain(variable);
   expect(said).not.toContain('Tallywood is serving');
 });
 

@@ -1,6 +1,10 @@
+import { generateKeyPairSync } from 'node:crypto';
 import { describe, expect, it } from 'vitest';
 import { deploymentProblems, type DeploymentSettings } from '../../src/server/deployment';
 import { parseTrustedProxies, trustedHeaders } from '../../scripts/lib/forwarded.mjs';
+
+/** A deployment's own Ed25519 key, made here by Node (PKCS8 PEM, as `openssl genpkey -algorithm ed25519` writes it). */
+const ed25519Pem = generateKeyPairSync('ed25519').privateKey.export({ type: 'pkcs8', format: 'pem' }).toString();
 
 const publicDeployment: DeploymentSettings = {
   localMode: false,
@@ -11,12 +15,26 @@ const publicDeployment: DeploymentSettings = {
   stripeWebhookSecret: 'whsec_abc',
   stripeApiUrl: 'https://api.stripe.com',
   trustedProxies: '10.0.0.2',
+  permitSigningKey: ed25519Pem,
   servedByLauncher: true,
 };
 
 describe('deploymentProblems', () => {
   it('given a public deployment with its own settings, it finds none', () => {
     expect(deploymentProblems(publicDeployment)).toEqual([]);
+  });
+
+  it('given the signing key as a private JWK (RFC 8037 §2) or as a PEM with its line breaks written as \\n, it finds none', () => {
+    const jwk = JSON.stringify(generateKeyPairSync('ed25519').privateKey.export({ format: 'jwk' }));
+    expect(deploymentProblems({ ...publicDeployment, permitSigningKey: jwk })).toEqual([]);
+    expect(deploymentProblems({ ...publicDeployment, permitSigningKey: ed25519Pem.replace(/\n/g, '\\n') })).toEqual([]);
+  });
+
+  it('given a signing key of another kind (P-256), it asks for an Ed25519 key', () => {
+    const p256 = generateKeyPairSync('ec', { namedCurve: 'P-256' }).privateKey.export({ type: 'pkcs8', format: 'pem' }).toString();
+    const problems = deploymentProblems({ ...publicDeployment, permitSigningKey: p256 });
+    expect(problems).toHaveLength(1);
+    expect(problems[0]).toContain('must be an Ed25519 private key');
   });
 
   it.each([
@@ -27,6 +45,8 @@ describe('deploymentProblems', () => {
     ['stripeWebhookSecret', 'whsec_tallywood_local', 'STRIPE_WEBHOOK_SECRET'],
     ['trustedProxies', 'proxy.internal', 'TRUSTED_PROXIES'],
     ['servedByLauncher', false, 'npm run serve'],
+    ['permitSigningKey', undefined, 'PERMIT_SIGNING_KEY'],
+    ['permitSigningKey', 'not a key', 'PERMIT_SIGNING_KEY'],
   ] as const)('given %s = %s outside local mode, it names %s', (key, value, named) => {
     const problems = deploymentProblems({ ...publicDeployment, [key]: value });
     expect(problems).toHaveLength(1);
@@ -36,6 +56,8 @@ describe('deploymentProblems', () => {
   it("given local mode, the repository's local secrets and fakes are allowed, but not with a public host name", () => {
     const local = { ...publicDeployment, localMode: true, publicHostname: undefined, smtpUrl: undefined, authSecret: 'test-secret-not-for-production', stripeApiUrl: 'http://127.0.0.1:2600', stripeSecretKey: 'sk_test_tallywood_local', stripeWebhookSecret: 'whsec_tallywood_local' };
     expect(deploymentProblems(local)).toEqual([]);
+    expect(deploymentProblems({ ...local, permitSigningKey: undefined })).toEqual([]);
+    expect(deploymentProblems({ ...local, permitSigningKey: 'not a key' })[0]).toContain('PERMIT_SIGNING_KEY');
     expect(deploymentProblems({ ...local, publicHostname: 'tallywood.example.org' })[0]).toContain('TALLYWOOD_LOCAL_MODE');
   });
 });

@@ -53,6 +53,11 @@ describe('decide', () => {
     expect(decide(unverifiedLandowner, 'permit:grant', { ownerId: 'user-someone-else' })).toEqual({ allowed: false, reason: 'not-found' });
   });
 
+  it('given a forager, a steward or a landowner, it allows opening a permit card (which permit is the query\'s to decide); an admin alone, not', () => {
+    for (const who of [forager, steward, landowner, unverifiedLandowner]) expect(decide(who, 'permit:read-card')).toEqual({ allowed: true });
+    expect(decide(admin, 'permit:read-card')).toEqual({ allowed: false, reason: 'forbidden' });
+  });
+
   it('given a verified landowner on their own parcel, it allows granting a permit', () => {
     expect(decide(landowner, 'permit:grant', { ownerId: landowner.id })).toEqual({ allowed: true });
     expect(decide(landowner, 'request:decide', { ownerId: landowner.id })).toEqual({ allowed: true });
