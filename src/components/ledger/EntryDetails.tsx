@@ -22,7 +22,7 @@ export default function EntryDetails({ row, entries, onCorrected }: { row: Ledge
   }
 
   return (
-    <div className="space-y-3 pb-2" data-testid="entry-details">
+    <div className="max-w-2xl space-y-3 break-words pb-2" data-testid="entry-details">
       <dl className="grid grid-cols-[auto_1fr] gap-x-3 gap-y-1 text-sm lg:hidden">
         <dt className="font-semibold sm:hidden">Parcel</dt><dd className="sm:hidden">{row.parcelName}</dd>
         <dt className="font-semibold">Method</dt><dd>{methodLabels[row.method]}</dd>

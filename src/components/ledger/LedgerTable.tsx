@@ -34,6 +34,7 @@ const columns = [
     header: 'Counts on',
     sortingFn: 'text',
     sortDescFirst: true,
+    meta: fromSmall,
     cell: ({ row }) => (
       <span style={{ paddingLeft: `${Math.min(row.depth, 3) * 0.75}rem` }} className="inline-block whitespace-nowrap">
         {row.depth > 0 && <span aria-hidden="true">↳ </span>}
@@ -47,10 +48,14 @@ const columns = [
     header: 'Species',
     filterFn: sameSpecies,
     cell: ({ row }) => (
-      <div className="space-y-1">
+      <div className="space-y-1" style={{ paddingLeft: `${Math.min(row.depth, 3) * 0.5}rem` }}>
         <div>
+          <span className="block text-xs text-loam-700 sm:hidden" data-testid="entry-day">
+            {row.depth > 0 && <span aria-hidden="true">↳ </span>}
+            {formatDate(row.original.countedOn)}
+          </span>
           {row.original.speciesName}
-          <span className="block text-xs italic text-loam-600">{row.original.scientificName}</span>
+          <span className="hidden text-xs italic text-loam-600 sm:block">{row.original.scientificName}</span>
           <span className="block text-xs text-loam-700 sm:hidden">{row.original.parcelName}</span>
         </div>
         {/* The state of the entry stays in view on a narrow screen; from a wide one it sits in Notes. */}
@@ -134,7 +139,7 @@ export default function LedgerTable({ entries, onCorrected }: LedgerTableProps) 
   return (
     <div data-testid="ledger-table" data-hydrated={hydrated ? 'true' : undefined}>
       <div className="flex flex-wrap items-end gap-3">
-        <div className="min-w-[12rem] flex-1">
+        <div className="w-full sm:w-auto sm:min-w-[12rem] sm:flex-1">
           <label htmlFor="ledger-search" className="field-label">Search</label>
           <input id="ledger-search" type="search" className="field-input" placeholder="species, parcel, reason…" value={globalFilter} onChange={(e) => setGlobalFilter(e.target.value)} />
         </div>
@@ -165,10 +170,10 @@ export default function LedgerTable({ entries, onCorrected }: LedgerTableProps) 
                 {group.headers.map((header) => {
                   const label = flexRender(header.column.columnDef.header, header.getContext());
                   const className = header.column.columnDef.meta?.className;
-                  if (!header.column.getCanSort()) return <th key={header.id} scope="col" className={className}>{label}</th>;
+                  if (!header.column.getCanSort()) return <th key={header.id} scope="col" className={`${className ?? ''} px-2 sm:px-3`}>{label}</th>;
                   const sorted = header.column.getIsSorted();
                   return (
-                    <th key={header.id} scope="col" aria-sort={ariaSort(sorted)} className={className}>
+                    <th key={header.id} scope="col" aria-sort={ariaSort(sorted)} className={`${className ?? ''} px-2 sm:px-3`}>
                       <button type="button" className="inline-flex items-center gap-1 text-left font-semibold hover:underline" onClick={header.column.getToggleSortingHandler()}>
                         {label}
                         <span aria-hidden="true" className="text-xs text-loam-600">{sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : '↕'}</span>
@@ -176,7 +181,7 @@ export default function LedgerTable({ entries, onCorrected }: LedgerTableProps) 
                     </th>
                   );
                 })}
-                <th scope="col" className="w-0"><span className="sr-only">Details</span></th>
+                <th scope="col" className="w-0 px-2 sm:px-3"><span className="sr-only">Details</span></th>
               </tr>
             ))}
           </thead>
@@ -196,8 +201,8 @@ export default function LedgerTable({ entries, onCorrected }: LedgerTableProps) 
                     data-depth={row.depth}
                     className={[row.depth > 0 ? 'bg-loam-50' : '', entry.breach ? 'outline outline-2 -outline-offset-2 outline-ember-500' : '', isOpen ? '[&>td]:border-b-0' : ''].join(' ')}
                   >
-                    {row.getVisibleCells().map((cell) => <td key={cell.id} className={cell.column.columnDef.meta?.className}>{flexRender(cell.column.columnDef.cell, cell.getContext())}</td>)}
-                    <td className="text-right">
+                    {row.getVisibleCells().map((cell) => <td key={cell.id} className={`${cell.column.columnDef.meta?.className ?? ''} px-2 sm:px-3`}>{flexRender(cell.column.columnDef.cell, cell.getContext())}</td>)}
+                    <td className="px-2 text-right sm:px-3">
                       <button
                         type="button" className="button-quiet whitespace-nowrap px-2 py-1 text-sm" aria-expanded={isOpen} aria-controls={detailsId} data-testid="entry-toggle"
                         onClick={() => setOpen((o) => ({ ...o, [entry.id]: !isOpen }))}
@@ -209,7 +214,7 @@ export default function LedgerTable({ entries, onCorrected }: LedgerTableProps) 
                   </tr>
                   {isOpen && (
                     <tr id={detailsId} data-details-for={entry.id} className={row.depth > 0 ? 'bg-loam-50' : ''}>
-                      <td colSpan={span} className="pt-0">
+                      <td colSpan={span} className="px-2 pt-0 sm:px-3">
                         <EntryDetails row={entry} entries={entries} onCorrected={onCorrected} />
                       </td>
                     </tr>
