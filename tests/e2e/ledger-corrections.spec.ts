@@ -26,7 +26,7 @@ let parcelId = '';
 let oysterId = '';
 let visitId = '';
 let photoId = '';
-let original = Buffer.alloc(0);
+let original: Buffer = Buffer.alloc(0);
 const entries = { weighed: '', twice: '', under: '' };
 
 test.describe.configure({ mode: 'serial' });

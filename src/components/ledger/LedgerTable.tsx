@@ -48,7 +48,8 @@ const columns = [
     header: 'Species',
     filterFn: sameSpecies,
     cell: ({ row }) => (
-      <div className="space-y-1" style={{ paddingLeft: `${Math.min(row.depth, 3) * 0.5}rem` }}>
+      // A correction is indented under its entry on a phone, where the date column (which indents it on a wide screen) is hidden.
+      <div className={`space-y-1 ${row.depth > 0 ? 'pl-3 sm:pl-0' : ''}`}>
         <div>
           <span className="block text-xs text-loam-700 sm:hidden" data-testid="entry-day">
             {row.depth > 0 && <span aria-hidden="true">↳ </span>}
