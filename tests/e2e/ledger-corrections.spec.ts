@@ -116,6 +116,8 @@ test('given three entries of 300, 100 and 150 g, Owen corrects the first to 250 
   const saved = details.getByTestId('correction-saved');
   await expect(saved).toContainText('Correction saved');
   await expect(saved).toContainText('now counts 250 g (it counted 300 g)');
+  // The form is gone; the confirmation has the focus, so a screen reader reads it and the eye finds it.
+  await expect(saved).toBeFocused();
   // 250 + 100 + 150 = 500 g.
   await expect(oysterTotal(page)).toHaveAttribute('data-total', '500');
   await expect(oysterTotal(page)).toHaveText('500 g');

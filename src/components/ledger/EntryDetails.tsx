@@ -1,4 +1,4 @@
-import { useState } from 'react';
+import { useEffect, useRef, useState } from 'react';
 import type { LedgerEntry } from '../../db/ledger.queries';
 import { formatDate } from '../../lib/format';
 import CorrectionForm, { type CorrectionSaved } from './CorrectionForm';
@@ -14,6 +14,9 @@ export default function EntryDetails({ row, entries, onCorrected }: { row: Ledge
   const [correcting, setCorrecting] = useState(false);
   const [saved, setSaved] = useState<CorrectionSaved | null>(null);
   const chain = chainOf(entries, row);
+  const confirmation = useRef<HTMLParagraphElement>(null);
+  // The form that had focus is gone once saved: the confirmation takes it, so it is read out and seen.
+  useEffect(() => { if (saved) confirmation.current?.focus(); }, [saved]);
 
   async function done(result: CorrectionSaved) {
     await onCorrected?.(result);
@@ -46,7 +49,7 @@ export default function EntryDetails({ row, entries, onCorrected }: { row: Ledge
       )}
 
       {saved && !correcting && (
-        <p role="status" className="rounded-md border-2 border-moss-500 bg-moss-50 p-3 text-sm font-semibold text-moss-800" data-testid="correction-saved">
+        <p ref={confirmation} tabIndex={-1} role="status" className="rounded-md border-2 border-moss-500 bg-moss-50 p-3 text-sm font-semibold text-moss-800" data-testid="correction-saved">
           {saved.words}{saved.breach ? ' It takes a limit over: it is flagged and the landowner is told.' : ''} The totals below include it.
         </p>
       )}
