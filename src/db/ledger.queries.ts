@@ -45,6 +45,8 @@ export type LedgerEntry = {
   isCorrected: boolean;
   recordedByName: string | null;
   hasPhoto: boolean;
+  /** The entry's photo (GET /api/photos/{id}: the forager's own original). */
+  photoUploadId: string | null;
   longitude: number | null;
   latitude: number | null;
   /** The season occurrence it counts in, stored on it when it was written. */
@@ -70,7 +72,7 @@ export type LedgerTotal = {
 type EntryRow = {
   id: string; local_date: string; counted_on: string; recorded_at: string; time_zone: string; parcel_id: string; parcel_name: string; species_id: string; species_name: string;
   scientific_name: string; method: Method; quantities: LedgerQuantity[]; breach: boolean; acknowledged_over: boolean; corrects_entry_id: string | null;
-  root_entry_id: string | null; correction_reason: string | null; is_corrected: boolean; recorded_by_name: string | null; has_photo: boolean;
+  root_entry_id: string | null; correction_reason: string | null; is_corrected: boolean; recorded_by_name: string | null; has_photo: boolean; photo_upload_id: string | null;
   longitude: number | null; latitude: number | null; season_start: string; season_end: string;
 };
 
@@ -90,7 +92,7 @@ export async function listLedger(db: Executor, { foragerId, filters = {} }: { fo
         from harvest_quantities q where q.entry_id = e.id) as quantities,
       e.breach, e.acknowledged_over, e.corrects_entry_id, e.root_entry_id, e.correction_reason,
       exists (select 1 from harvest_entries c where c.corrects_entry_id = e.id and c.forager_id = ${foragerId}) as is_corrected,
-      coalesce(u.name, u.email) as recorded_by_name, e.photo_upload_id is not null as has_photo,
+      coalesce(u.name, u.email) as recorded_by_name, e.photo_upload_id is not null as has_photo, e.photo_upload_id,
       ST_X(e.position) as longitude, ST_Y(e.position) as latitude, e.season_start::text, e.season_end::text
     from harvest_entries e
     join parcels p on p.id = e.parcel_id
@@ -102,7 +104,7 @@ export async function listLedger(db: Executor, { foragerId, filters = {} }: { fo
     id: r.id, localDate: r.local_date, countedOn: r.counted_on, recordedAt: r.recorded_at, timeZone: r.time_zone, parcelId: r.parcel_id, parcelName: r.parcel_name,
     speciesId: r.species_id, speciesName: r.species_name, scientificName: r.scientific_name, method: r.method, quantities: r.quantities ?? [],
     breach: r.breach, acknowledgedOver: r.acknowledged_over, correctsEntryId: r.corrects_entry_id, rootEntryId: r.root_entry_id, correctionReason: r.correction_reason,
-    isCorrected: r.is_corrected, recordedByName: r.recorded_by_name, hasPhoto: r.has_photo,
+    isCorrected: r.is_corrected, recordedByName: r.recorded_by_name, hasPhoto: r.has_photo, photoUploadId: r.photo_upload_id,
     longitude: r.longitude === null ? null : Number(r.longitude), latitude: r.latitude === null ? null : Number(r.latitude),
     seasonStart: r.season_start, seasonEnd: r.season_end,
   }));

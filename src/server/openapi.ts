@@ -88,7 +88,7 @@ const routes: Route[] = [
     description: exportDescription,
   })),
   { method: 'post', path: '/api/photos', summary: 'Upload a harvest photo (multipart `photo`, images only, 10 MB); answers its GPS position if it has one', tag: 'field' },
-  { method: 'get', path: '/api/photos/{id}', summary: 'A photo: the original for its owner, a copy without location metadata for the landowner', tag: 'field' },
+  { method: 'get', path: '/api/photos/{id}', summary: "A photo: the original for the forager who took it; a copy without metadata for the landowner of a parcel where that forager's entry carries it, or the active steward of the club whose permit the entry counts under; 404 for anyone else", tag: 'field' },
   { method: 'get', path: '/api/ledger', summary: 'Your own entries and totals', tag: 'ledger' },
   { method: 'get', path: '/api/ledger/export.csv', summary: 'Your ledger as CSV (RFC 4180)', tag: 'ledger' },
   { method: 'get', path: '/api/species', summary: 'The species catalogue with cautions', tag: 'catalogue' },

@@ -3,7 +3,7 @@ import sharp from 'sharp';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { applyMigrations } from '../../src/db/migrations';
 import { findPhotoForViewer, insertPhotoUpload } from '../../src/db/photos.queries';
-import { harvestEntries, harvestQuantities, parcels, species, users } from '../../src/db/schema';
+import { clubMemberships, clubs, harvestEntries, harvestQuantities, parcels, permits, species, users } from '../../src/db/schema';
 import { createThrowawayDatabase, migrationsFolder, type ThrowawayDatabase } from './throwaway-database';
 import { webpExifPayload } from '../../src/lib/photo-bytes';
 import { maxPhotoBytes, originalPrefixFor, processPhoto, readPhotoPart, sharedKeyFor } from '../../src/server/photo-processing';
@@ -153,7 +153,7 @@ describe('findPhotoForViewer (real PostgreSQL)', () => {
     if (!throwaway) throw new Error('the throwaway database was not created');
     return throwaway.db;
   };
-  const ids = { forager: '', landowner: '', stranger: '', photo: '', unattached: '' };
+  const ids = { forager: '', landowner: '', stranger: '', steward: '', member: '', photo: '', unattached: '', clubPhoto: '', borrowed: '' };
   const square = { type: 'MultiPolygon', coordinates: [[[[-72.86, 43.94], [-72.85, 43.94], [-72.85, 43.95], [-72.86, 43.95], [-72.86, 43.94]]]] };
 
   beforeAll(async () => {
@@ -165,12 +165,16 @@ describe('findPhotoForViewer (real PostgreSQL)', () => {
         { email: 'forager@example.org', roles: ['forager'] },
         { email: 'landowner@example.org', roles: ['forager', 'landowner'] },
         { email: 'stranger@example.org', roles: ['forager', 'landowner'] },
+        { email: 'steward@example.org', roles: ['forager'] },
+        { email: 'member@example.org', roles: ['forager'] },
       ])
       .returning({ id: users.id, email: users.email });
     const id = (email: string) => people.find((p) => p.email === email)?.id ?? '';
     ids.forager = id('forager@example.org');
     ids.landowner = id('landowner@example.org');
     ids.stranger = id('stranger@example.org');
+    ids.steward = id('steward@example.org');
+    ids.member = id('member@example.org');
     const [parcel] = await db()
       .insert(parcels)
       .values({ ownerId: ids.landowner, name: 'North slope', boundary: square, areaM2: 900_000, timeZone: 'America/New_York' })
@@ -201,6 +205,33 @@ describe('findPhotoForViewer (real PostgreSQL)', () => {
       .returning({ id: harvestEntries.id });
     if (!entry) throw new Error('the entry was not inserted');
     await db().insert(harvestQuantities).values({ entryId: entry.id, measure: 'mass', quantity: '100', unit: 'g', baseQuantity: '100' });
+
+    // A club holds a permit on the parcel: its steward sees the entries made under it; a plain member does not.
+    const [club] = await db().insert(clubs).values({ slug: 'valley-foragers', name: 'Valley Foragers' }).returning({ id: clubs.id });
+    await db().insert(clubMemberships).values([
+      { clubId: club?.id ?? '', userId: ids.steward, role: 'steward', state: 'active' },
+      { clubId: club?.id ?? '', userId: ids.member, role: 'member', state: 'active' },
+      { clubId: club?.id ?? '', userId: ids.forager, role: 'member', state: 'active' },
+    ]);
+    const [permit] = await db()
+      .insert(permits)
+      .values({ parcelId: parcel?.id ?? '', holderClubId: club?.id ?? '', state: 'active', startsOn: '2026-01-01', endsOn: '2026-12-31' })
+      .returning({ id: permits.id });
+    ids.clubPhoto = (await upload(3)).id;
+    ids.borrowed = (await upload(4)).id;
+    const entryWith = async (key: string, foragerId: string, photoUploadId: string, permitId: string | null) => {
+      const [row] = await db()
+        .insert(harvestEntries)
+        .values({
+          idempotencyKey: key, foragerId, parcelId: parcel?.id ?? '', speciesId: ramps?.id ?? '', method: 'cut', localDate: '2026-05-02', countedOn: '2026-05-02',
+          seasonStart: '2026-04-15', seasonEnd: '2026-05-31', photoUploadId, permitId, clubId: permitId ? (club?.id ?? null) : null, recordedBy: foragerId,
+        })
+        .returning({ id: harvestEntries.id });
+      await db().insert(harvestQuantities).values({ entryId: row?.id ?? '', measure: 'mass', quantity: '50', unit: 'g', baseQuantity: '50' });
+    };
+    await entryWith('photo-test-club', ids.forager, ids.clubPhoto, permit?.id ?? null);
+    // The stranger's own entry names the forager's photo: that must not open it to anyone.
+    await entryWith('photo-test-borrowed', ids.stranger, ids.borrowed, permit?.id ?? null);
   });
 
   afterAll(async () => {
@@ -218,5 +249,19 @@ describe('findPhotoForViewer (real PostgreSQL)', () => {
   it('given another landowner, or the landowner and a photo on no entry of theirs, it answers null', async () => {
     expect(await findPhotoForViewer(db(), { uploadId: ids.photo, viewerId: ids.stranger })).toBeNull();
     expect(await findPhotoForViewer(db(), { uploadId: ids.unattached, viewerId: ids.landowner })).toBeNull();
+  });
+
+  it('given the active steward of the club whose permit the entry counts under, it answers the shared copy; a plain member of the club gets null', async () => {
+    expect(await findPhotoForViewer(db(), { uploadId: ids.clubPhoto, viewerId: ids.steward })).toMatchObject({ access: 'shared' });
+    expect(await findPhotoForViewer(db(), { uploadId: ids.clubPhoto, viewerId: ids.member })).toBeNull();
+    // The steward's club has no permit behind the first entry (it counts under none): not theirs to see.
+    expect(await findPhotoForViewer(db(), { uploadId: ids.photo, viewerId: ids.steward })).toBeNull();
+  });
+
+  it("given an entry of someone else's that names the forager's photo, it opens the photo to nobody but the forager", async () => {
+    expect(await findPhotoForViewer(db(), { uploadId: ids.borrowed, viewerId: ids.landowner })).toBeNull();
+    expect(await findPhotoForViewer(db(), { uploadId: ids.borrowed, viewerId: ids.steward })).toBeNull();
+    expect(await findPhotoForViewer(db(), { uploadId: ids.borrowed, viewerId: ids.stranger })).toBeNull();
+    expect(await findPhotoForViewer(db(), { uploadId: ids.borrowed, viewerId: ids.forager })).toMatchObject({ access: 'original' });
   });
 });

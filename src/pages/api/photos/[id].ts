@@ -3,8 +3,10 @@ import { endpoint, idParam } from '../../../server/http';
 import { loadPhotoForViewer } from '../../../server/photos';
 
 /**
- * A harvest photo: the forager who took it gets the original; the landowner of a parcel whose
- * ledger references it gets the copy without metadata (no GPS); anyone else, not found.
+ * A harvest photo: the forager who took it gets the original; the landowner of a parcel, or the
+ * active steward of the club whose permit the entry counts under, where one of that forager's
+ * entries carries it gets the copy without metadata (no GPS); anyone else, not found
+ * (src/db/photos.queries.ts, findPhotoForViewer).
  */
 export const GET = endpoint(async ({ locals, params }) => {
   if (!locals.actor) throw signedOut();
