@@ -151,7 +151,7 @@ export default function HarvestForm({ recorder, species, onSaved }: { recorder: 
       </select>
       {fieldError('method')}
       {recorder.offline ? (
-        <p className="text-sm text-loam-700">Photos need signal: add one from My ledger later if you want it with this entry.</p>
+        <p className="text-sm text-loam-700">Photos need signal, so an entry kept on this phone is saved without one. Take the photo now with your camera if you want a record of it.</p>
       ) : (
         <>
           <label className="field-label" htmlFor="harvest-photo">Photo (optional)</label>
