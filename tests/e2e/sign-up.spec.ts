@@ -22,8 +22,11 @@ test('given a new person who manages land, it makes an unverified landowner whom
   await signIn(admin, 'admin@example.org');
   await admin.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Accounts' }).click();
   const row = admin.getByRole('row').filter({ hasText: email });
-  await row.getByRole('button', { name: 'Verify' }).click();
-  await expect(admin.getByRole('status')).toHaveText('Landowner verified.');
+  await row.getByRole('link', { name: /Review/ }).click();
+  await admin.locator('form[data-hydrated]').waitFor();
+  await admin.getByRole('button', { name: 'Verify…' }).click();
+  await admin.getByRole('alertdialog').getByRole('button', { name: 'Yes, verify and e-mail them' }).click();
+  await expect(admin.getByRole('status')).toHaveText('Landowner verified; they have been e-mailed.');
   await expect(admin.getByRole('row').filter({ hasText: email })).toContainText('verified');
 
   await person.reload();

@@ -50,6 +50,7 @@ export default function CatalogueBrowser({ species, initial, editable }: { speci
   const kinds = useMemo(() => [...new Set(species.map((s) => s.kind))].sort(), [species]);
   const usedMethods = useMemo(() => [...new Set(species.flatMap((s) => s.usualMethods))].sort(), [species]);
   const shown = species.filter((s) => matchesFilter(s, filter));
+  const total = filter.includeRetired ? species.length : species.filter((s) => !s.retired).length;
   const anyRetired = species.some((s) => s.retired);
   const set = (patch: Partial<CatalogueFilter>) => setFilter((f) => ({ ...f, ...patch }));
 
@@ -60,10 +61,10 @@ export default function CatalogueBrowser({ species, initial, editable }: { speci
         action="/catalogue"
         role="search"
         aria-label="Search the catalogue"
-        className="card grid gap-3 p-4 sm:grid-cols-2 lg:grid-cols-5"
+        className="card grid grid-cols-2 gap-3 p-4 lg:grid-cols-5"
         onSubmit={(event) => event.preventDefault()}
       >
-        <div className="sm:col-span-2">
+        <div className="col-span-2">
           <label htmlFor="catalogue-q" className="field-label">Search by name</label>
           <input
             id="catalogue-q"
@@ -88,14 +89,14 @@ export default function CatalogueBrowser({ species, initial, editable }: { speci
             {cautionChoices.map((c) => <option key={c.value} value={c.value}>{c.label}</option>)}
           </select>
         </div>
-        <div>
+        <div className="col-span-2 lg:col-span-1">
           <label htmlFor="catalogue-method" className="field-label">Usual method</label>
           <select id="catalogue-method" name="method" className="field-input" value={filter.method} onChange={(e) => set({ method: e.target.value })}>
             <option value="">Any method</option>
             {usedMethods.map((m) => <option key={m} value={m}>{methodWords[m] ?? m}</option>)}
           </select>
         </div>
-        <div className="flex flex-wrap items-center gap-3 sm:col-span-2 lg:col-span-5">
+        <div className="col-span-2 flex flex-wrap items-center gap-3 lg:col-span-5">
           {anyRetired && (
             <label className="flex items-center gap-2 text-sm">
               <input type="checkbox" name="retired" value="1" className="h-4 w-4 accent-moss-600" checked={filter.includeRetired} onChange={(e) => set({ includeRetired: e.target.checked })} />
@@ -103,22 +104,30 @@ export default function CatalogueBrowser({ species, initial, editable }: { speci
             </label>
           )}
           <p className="text-sm text-loam-700" role="status" data-testid="catalogue-count">
-            {shown.length === species.length ? `All ${species.length} species` : `${shown.length} of ${species.length} species`}
+            {shown.length === total ? `All ${total} species` : `${shown.length} of ${total} species`}
           </p>
           {!hydrated && <button type="submit" className="button-quiet">Search</button>}
         </div>
       </form>
 
       {shown.length === 0 && <p className="mt-6 text-loam-700">No species match. Try fewer words, or another kind.</p>}
-      <ul className="mt-4 grid gap-3 md:grid-cols-2" aria-label="Species">
+      <ul className="mt-4 grid items-start gap-3 md:grid-cols-2" aria-label="Species">
         {shown.map((s) => <SpeciesCard key={s.id} species={s} editable={editable} />)}
       </ul>
     </div>
   );
 }
 
+/** Where a caution comes from; said once under the list when every caution of the species has the same source. */
+function Source({ caution, all = false }: { caution: BrowserSpecies['cautions'][number]; all?: boolean }) {
+  const title = caution.sourceUrl ? <a href={caution.sourceUrl} rel="noopener noreferrer" target="_blank">{caution.sourceTitle}</a> : caution.sourceTitle;
+  return <span className={`block text-xs text-loam-700 ${all ? 'mt-2' : ''}`}>{all ? 'Source of these cautions' : 'Source'}: {title}</span>;
+}
+
 function SpeciesCard({ species: s, editable }: { species: BrowserSpecies; editable: boolean }) {
   const danger = worstDanger(s);
+  const [firstCaution] = s.cautions;
+  const oneSource = s.cautions.length > 1 && firstCaution?.sourceTitle && s.cautions.every((c) => c.sourceTitle === firstCaution.sourceTitle && c.sourceUrl === firstCaution.sourceUrl) ? firstCaution : null;
   return (
     <li className="card p-4" id={s.slug} data-testid="species-card">
       <div className="flex flex-wrap items-baseline justify-between gap-2">
@@ -139,14 +148,11 @@ function SpeciesCard({ species: s, editable }: { species: BrowserSpecies; editab
           {s.cautions.map((c, i) => (
             <li key={i}>
               {c.text}
-              {c.sourceTitle && (
-                <span className="block text-xs text-loam-700">
-                  Source: {c.sourceUrl ? <a href={c.sourceUrl} rel="noopener noreferrer" target="_blank">{c.sourceTitle}</a> : c.sourceTitle}
-                </span>
-              )}
+              {!oneSource && c.sourceTitle && <Source caution={c} />}
             </li>
           ))}
         </ul>
+        {oneSource && <Source caution={oneSource} all />}
         {s.lookalikes.length > 0 && (
           <div className="mt-3">
             <p className="text-sm font-semibold text-ember-700">Lookalikes</p>
