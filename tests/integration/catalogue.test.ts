@@ -2,6 +2,7 @@ import { and, eq } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { declineLandowner, findLandownerClaim, verifyLandowner } from '../../src/db/accounts.queries';
 import { addSpecies, editSpecies, setSpeciesRetired, speciesHistory } from '../../src/db/catalogue.commands';
+import { loadParcelFacts } from '../../src/db/field.queries';
 import { applyMigrations } from '../../src/db/migrations';
 import { saveAllowance } from '../../src/db/parcel-rules.queries';
 import { auditEvents, parcels, species, speciesCautions, users } from '../../src/db/schema';
@@ -101,6 +102,11 @@ describe('the admin keeps the catalogue', () => {
     expect(refused).toBeInstanceOf(AppError);
     expect(refused).toMatchObject({ status: 409, code: 'species-retired', field: 'speciesId' });
     expect(await saveAllowance(db(), { parcelId: ids.parcel, ownerId: ids.landowner, allowance: { ...allowance(allowedBefore.id), seasons: [{ start: '04-15', end: '05-31' }] }, now })).not.toBeNull();
+
+    // The field still reads the retired species on that parcel, with cautions the admin changed after retiring it.
+    await editSpecies(db(), { speciesId: allowedBefore.id, adminId: ids.admin, input: { ...ramps([second]), commonName: 'Allowed ramp' }, now });
+    const facts = await loadParcelFacts(db(), { parcelId: ids.parcel, forager: { id: ids.landowner, clubIds: [] } });
+    expect(facts?.allowances.find((a) => a.speciesId === allowedBefore.id)?.cautions).toEqual(['Second test caution.']);
 
     // Brought back, it can be added again.
     await setSpeciesRetired(db(), { speciesId: notYet.id, adminId: ids.admin, retired: false, now });
