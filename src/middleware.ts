@@ -16,6 +16,7 @@ const pageRules: [prefix: string, action: Action][] = [
   ['/ledger', 'ledger:read-own'],
   ['/club', 'club:join'],
   ['/reports', 'report:read'],
+  ['/catalogue/species', 'catalogue:edit'],
   ['/catalogue', 'catalogue:read'],
   ['/accounts', 'account:list'],
 ];

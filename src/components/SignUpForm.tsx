@@ -8,11 +8,12 @@ type Input = z.input<typeof signUpSchema>;
 type Output = z.output<typeof signUpSchema>;
 
 export default function SignUpForm() {
-  const { register, handleSubmit, setError, formState } = useForm<Input, unknown, Output>({
+  const { register, handleSubmit, setError, formState, watch } = useForm<Input, unknown, Output>({
     resolver: zodResolver(signUpSchema),
     defaultValues: { managesLand: false },
   });
   const { errors, isSubmitting } = formState;
+  const managesLand = watch('managesLand');
 
   const onSubmit = handleSubmit(async (input) => {
     const result = await postJson('/api/sign-up', input);
@@ -21,7 +22,7 @@ export default function SignUpForm() {
       return;
     }
     const field = result.error.field;
-    setError(field === 'email' || field === 'name' ? field : 'root', { message: result.error.message });
+    setError(field === 'email' || field === 'name' || field === 'claimedLand' || field === 'signUpNote' ? field : 'root', { message: result.error.message });
   });
 
   return (
@@ -44,6 +45,21 @@ export default function SignUpForm() {
           An admin verifies landowners before they can grant permits; until then you can draft parcels.
         </span>
       </label>
+      {managesLand && (
+        <div className="space-y-4 rounded-md border border-loam-200 p-3">
+          <p className="text-sm text-loam-700">Both optional: they help the admin who verifies you.</p>
+          <div>
+            <label htmlFor="claimedLand" className="field-label">The land you own or manage</label>
+            <input id="claimedLand" className="field-input" placeholder="Its name and where it is, such as Alder Farm, 60 acres off Route 12" aria-invalid={errors.claimedLand ? 'true' : 'false'} {...register('claimedLand')} />
+            {errors.claimedLand && <p role="alert" className="field-error">{errors.claimedLand.message}</p>}
+          </div>
+          <div>
+            <label htmlFor="signUpNote" className="field-label">A note for the admin</label>
+            <textarea id="signUpNote" rows={3} className="field-input" placeholder="How the admin can confirm that you manage it" aria-invalid={errors.signUpNote ? 'true' : 'false'} {...register('signUpNote')} />
+            {errors.signUpNote && <p role="alert" className="field-error">{errors.signUpNote.message}</p>}
+          </div>
+        </div>
+      )}
       {errors.root && <p role="alert" className="field-error">{errors.root.message}</p>}
       <button type="submit" className="button w-full" disabled={isSubmitting}>
         {isSubmitting ? 'Creating…' : 'Create account and e-mail me a link'}

@@ -1,7 +1,7 @@
 import { and, asc, eq, gt, isNull, sql } from 'drizzle-orm';
 import type { AccountRole, Actor } from '../lib/actor';
 import { executePrepared, type Executor } from './client';
-import { clubMemberships, sessions, users } from './schema';
+import { auditEvents, clubMemberships, sessions, users } from './schema';
 
 /**
  * Every signed-in request runs this, so it is a prepared statement with a generic plan: the session
@@ -37,11 +37,13 @@ export async function findUserByEmail(db: Executor, { email }: { email: string }
   return rows[0] ?? null;
 }
 
-export async function createAccount(db: Executor, input: { email: string; name: string; managesLand: boolean }) {
+/** A landowner's claimed land and note are kept for the admin who verifies them; a forager's are not asked for. */
+export async function createAccount(db: Executor, input: { email: string; name: string; managesLand: boolean; claimedLand?: string | null; signUpNote?: string | null }) {
   const roles: AccountRole[] = input.managesLand ? ['forager', 'landowner'] : ['forager'];
+  const claim = input.managesLand ? { claimedLand: input.claimedLand ?? null, signUpNote: input.signUpNote ?? null } : {};
   const rows = await db
     .insert(users)
-    .values({ email: input.email.toLowerCase(), name: input.name, roles })
+    .values({ email: input.email.toLowerCase(), name: input.name, roles, ...claim })
     .onConflictDoNothing({ target: users.email })
     .returning();
   return rows[0] ?? null;
@@ -62,18 +64,57 @@ export async function listUnverifiedLandowners(db: Executor) {
 
 export async function listAccounts(db: Executor) {
   return db
-    .select({ id: users.id, email: users.email, name: users.name, roles: users.roles, landownerVerifiedAt: users.landownerVerifiedAt, emailVerified: users.emailVerified })
+    .select({ id: users.id, email: users.email, name: users.name, roles: users.roles, landownerVerifiedAt: users.landownerVerifiedAt, landownerDeclinedAt: users.landownerDeclinedAt, emailVerified: users.emailVerified })
     .from(users)
     .orderBy(asc(users.email));
 }
 
+const isAdmin = (adminId: string) => sql`exists (select 1 from ${users} as admin where admin.id = ${adminId} and 'admin' = any(admin.roles))`;
+
+/**
+ * What a landowner sent at sign-up, for the admin who verifies them; null unless `adminId` is an
+ * admin and the account is a landowner.
+ */
+export async function findLandownerClaim(db: Executor, { userId, adminId }: { userId: string; adminId: string }) {
+  const [row] = await db
+    .select({
+      id: users.id, email: users.email, name: users.name, createdAt: users.createdAt, claimedLand: users.claimedLand, signUpNote: users.signUpNote,
+      landownerVerifiedAt: users.landownerVerifiedAt, landownerDeclinedAt: users.landownerDeclinedAt, landownerDeclineReason: users.landownerDeclineReason,
+    })
+    .from(users)
+    .where(and(eq(users.id, userId), sql`'landowner' = any(${users.roles})`, isAdmin(adminId)));
+  return row ?? null;
+}
+
 /** Marks a landowner verified; null when the account is not an unverified landowner or `adminId` is no admin. */
 export async function verifyLandowner(db: Executor, { userId, adminId, now }: { userId: string; adminId: string; now: Date }) {
-  const isAdmin = sql`exists (select 1 from ${users} as admin where admin.id = ${adminId} and 'admin' = any(admin.roles))`;
-  const rows = await db
-    .update(users)
-    .set({ landownerVerifiedAt: now, landownerVerifiedBy: adminId })
-    .where(and(eq(users.id, userId), sql`'landowner' = any(${users.roles})`, isNull(users.landownerVerifiedAt), isAdmin))
-    .returning({ id: users.id, email: users.email });
-  return rows[0] ?? null;
+  return db.transaction(async (tx) => {
+    const rows = await tx
+      .update(users)
+      .set({ landownerVerifiedAt: now, landownerVerifiedBy: adminId, landownerDeclinedAt: null, landownerDeclineReason: null })
+      .where(and(eq(users.id, userId), sql`'landowner' = any(${users.roles})`, isNull(users.landownerVerifiedAt), isAdmin(adminId)))
+      .returning({ id: users.id, email: users.email, name: users.name });
+    const row = rows[0];
+    if (!row) return null;
+    await tx.insert(auditEvents).values({ actorId: adminId, action: 'landowner.verified', subjectType: 'user', subjectId: row.id, detail: {}, at: now });
+    return row;
+  });
+}
+
+/**
+ * Declines to verify a landowner, with the reason they are sent; they stay an unverified landowner and
+ * may be verified later. Null when the account is not an unverified landowner or `adminId` is no admin.
+ */
+export async function declineLandowner(db: Executor, { userId, adminId, reason, now }: { userId: string; adminId: string; reason: string; now: Date }) {
+  return db.transaction(async (tx) => {
+    const rows = await tx
+      .update(users)
+      .set({ landownerDeclinedAt: now, landownerDeclineReason: reason })
+      .where(and(eq(users.id, userId), sql`'landowner' = any(${users.roles})`, isNull(users.landownerVerifiedAt), isAdmin(adminId)))
+      .returning({ id: users.id, email: users.email, name: users.name });
+    const row = rows[0];
+    if (!row) return null;
+    await tx.insert(auditEvents).values({ actorId: adminId, action: 'landowner.declined', subjectType: 'user', subjectId: row.id, detail: { reason }, at: now });
+    return row;
+  });
 }

@@ -26,7 +26,7 @@ export async function listParcelRules(db: Executor, { parcelId, ownerId }: { par
     db.select().from(hazards).where(and(eq(hazards.parcelId, parcelId), owned)).orderBy(asc(hazards.title)),
     db.select().from(terms).where(and(eq(terms.parcelId, parcelId), owned)).orderBy(desc(terms.version)),
     db
-      .select({ id: allowances.id, speciesId: species.id, commonName: species.commonName, scientificName: species.scientificName, seasons: allowances.seasons, methods: allowances.methods })
+      .select({ id: allowances.id, speciesId: species.id, commonName: species.commonName, scientificName: species.scientificName, speciesRetiredAt: species.retiredAt, seasons: allowances.seasons, methods: allowances.methods })
       .from(allowances)
       .innerJoin(species, eq(species.id, allowances.speciesId))
       .where(and(eq(allowances.parcelId, parcelId), isNull(allowances.removedAt), owned))
@@ -94,6 +94,10 @@ export async function saveAllowance(db: Executor, { parcelId, ownerId, allowance
       .select({ id: allowances.id, removedAt: allowances.removedAt })
       .from(allowances)
       .where(and(eq(allowances.parcelId, parcelId), eq(allowances.speciesId, allowance.speciesId)));
+    const [chosen] = await tx.select({ retiredAt: species.retiredAt, commonName: species.commonName }).from(species).where(eq(species.id, allowance.speciesId));
+    if (chosen?.retiredAt && !(current && !current.removedAt)) {
+      throw new AppError(409, 'species-retired', `${chosen.commonName} is retired from the catalogue, so it cannot be added to an allowance; the allowances that already name it stay as they are.`, 'speciesId');
+    }
     if (current && !current.removedAt) {
       const before = measureSet(await tx.select({ unit: limits.unit }).from(limits).where(and(eq(limits.allowanceId, current.id), isNull(limits.permitId))));
       const after = measureSet(allowance.limits);

@@ -1,6 +1,7 @@
 import { answerMembershipSchema, flagNoteSchema, inviteMemberSchema, manageMembershipSchema, sendSeasonReportSchema } from '../lib/clubs.schemas';
 import { z } from 'zod';
-import { signInSchema, signUpSchema } from '../lib/accounts.schemas';
+import { landownerDecisionSchema, signInSchema, signUpSchema } from '../lib/accounts.schemas';
+import { retirementSchema, speciesSchema } from '../lib/catalogue.schemas';
 import { allowanceSchema, closureSchema, hazardSchema, newParcelSchema, parcelUpdateSchema, termsSchema, zoneSchema } from '../lib/land.schemas';
 import { accessRequestSchema, decisionSchema, grantPermitSchema, permitLimitSchema, revokeSchema } from '../lib/permits.schemas';
 import { exportFormatNames } from '../lib/boundary-exports';
@@ -92,6 +93,15 @@ const routes: Route[] = [
   { method: 'get', path: '/api/ledger', summary: 'Your own entries and totals', tag: 'ledger' },
   { method: 'get', path: '/api/ledger/export.csv', summary: 'Your ledger as CSV (RFC 4180)', tag: 'ledger' },
   { method: 'get', path: '/api/species', summary: 'The species catalogue with cautions', tag: 'catalogue' },
+  { method: 'post', path: '/api/species', summary: 'Add a species with its cautions, each with its source (admin)', body: speciesSchema, tag: 'catalogue' },
+  { method: 'put', path: '/api/species/{id}', summary: "Change a species and its cautions; what changed goes into the species' history (admin)", body: speciesSchema, tag: 'catalogue' },
+  {
+    method: 'post', path: '/api/species/{id}/retirement', summary: 'Retire a species or bring it back (admin)', body: retirementSchema, tag: 'catalogue',
+    description: 'A retired species stays on the allowances and harvest entries that already name it, and its cautions are still shown there; no landowner can add it to a new allowance.',
+  },
+  { method: 'get', path: '/api/species/{id}/history', summary: 'Who changed a species, when, and what changed, newest first (admin)', tag: 'catalogue' },
+  { method: 'post', path: '/api/accounts/{id}/verify-landowner', summary: 'Verify a landowner and e-mail them (admin)', tag: 'accounts' },
+  { method: 'post', path: '/api/accounts/{id}/landowner-decision', summary: 'Verify a landowner, or decline with a reason; the landowner is e-mailed the outcome (admin)', body: landownerDecisionSchema, tag: 'accounts' },
   { method: 'get', path: '/api/open-parcels', summary: 'Parcels open to access requests', tag: 'permits' },
   { method: 'post', path: '/api/access-requests', summary: 'Ask for access to a parcel', body: accessRequestSchema, tag: 'permits' },
   { method: 'post', path: '/api/clubs/{id}/members', summary: 'Invite someone to the club by e-mail (steward)', body: inviteMemberSchema, tag: 'clubs' },

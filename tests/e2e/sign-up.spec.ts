@@ -9,6 +9,8 @@ test('given a new person who manages land, it makes an unverified landowner whom
   await person.getByLabel('Your name').fill('Rosa Quenneville');
   await person.getByLabel('E-mail address').fill(email.toUpperCase());
   await person.getByText('I own or manage land').click();
+  await person.getByLabel('The land you own or manage').fill('Quenneville Ledges, 25 acres up Cobble Ridge');
+  await person.getByLabel('A note for the admin').fill('The town clerk can confirm it.');
   await person.getByRole('button', { name: /Create account/ }).click();
   await expect(person.getByText('Your account is ready.')).toBeVisible();
 
@@ -22,8 +24,13 @@ test('given a new person who manages land, it makes an unverified landowner whom
   await signIn(admin, 'admin@example.org');
   await admin.getByRole('navigation', { name: 'Main' }).getByRole('link', { name: 'Accounts' }).click();
   const row = admin.getByRole('row').filter({ hasText: email });
-  await row.getByRole('button', { name: 'Verify' }).click();
-  await expect(admin.getByRole('status')).toHaveText('Landowner verified.');
+  await row.getByRole('link', { name: /Review/ }).click();
+  await expect(admin.getByTestId('landowner-claim')).toContainText('Quenneville Ledges, 25 acres up Cobble Ridge');
+  await expect(admin.getByTestId('landowner-claim')).toContainText('The town clerk can confirm it.');
+  await admin.locator('form[data-hydrated]').waitFor();
+  await admin.getByRole('button', { name: 'Verify…' }).click();
+  await admin.getByRole('alertdialog').getByRole('button', { name: 'Yes, verify and e-mail them' }).click();
+  await expect(admin.getByRole('status')).toHaveText('Landowner verified; they have been e-mailed.');
   await expect(admin.getByRole('row').filter({ hasText: email })).toContainText('verified');
 
   await person.reload();

@@ -122,7 +122,7 @@ describe('verifyLandowner', () => {
     if (!notAdmin) throw new Error('the forager was not created');
     expect(await verifyLandowner(db(), { userId: user.id, adminId: notAdmin.id, now })).toBeNull();
 
-    expect(await verifyLandowner(db(), { userId: user.id, adminId: admin.id, now })).toEqual({ id: user.id, email: 'to.verify@example.org' });
+    expect(await verifyLandowner(db(), { userId: user.id, adminId: admin.id, now })).toEqual({ id: user.id, email: 'to.verify@example.org', name: 'To Verify' });
     expect((await findActorBySession(db(), { sessionToken, now }))?.landownerVerified).toBe(true);
     const [stored] = await db().select().from(users).where(eq(users.id, user.id));
     expect(stored?.landownerVerifiedAt?.toISOString()).toBe(now.toISOString());

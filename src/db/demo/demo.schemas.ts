@@ -32,6 +32,9 @@ export const person = z.object({
   landownerVerified: z.boolean(),
 });
 
+/** What a landowner wrote at sign-up for the admin who verifies them (data/demo/sign-ups.json). */
+export const signUpsFile = z.array(z.object({ email: z.email(), claimedLand: z.string().min(1), note: z.string().min(1) }));
+
 export const clubsFile = z.array(
   z.object({
     slug,

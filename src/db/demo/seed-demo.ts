@@ -1,6 +1,6 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
-import { count, sql } from 'drizzle-orm';
+import { count, eq, sql } from 'drizzle-orm';
 import type { z } from 'zod';
 import type { Db, Tx } from '../client';
 import { measureOf, toBase } from '../../lib/units';
@@ -9,11 +9,11 @@ import { localDateAt } from '../../lib/field/time';
 import type { AllowanceFacts } from '../../lib/field/types';
 import {
   allowances, checkIns, closures, clubMemberships, clubs, harvestEntries, harvestQuantities, hazards, limits, noHarvestZones, parcels, payments, permitEvents, permits,
-  species, terms, users, visits,
+  species, speciesCautions, terms, users, visits,
 } from '../schema';
 import { daysBetween, shiftDemo } from './shift';
 import type { GeoJsonGeometry } from '../schema/columns';
-import { clubsFile, parcelsFile, person, scenarioFile, speciesFile, zonesFile, type DemoPerson } from './demo.schemas';
+import { clubsFile, parcelsFile, person, scenarioFile, signUpsFile, speciesFile, zonesFile, type DemoPerson } from './demo.schemas';
 
 /** Reads one data file through its schema, naming the file when it does not fit. */
 function readData<S extends z.ZodType>(dataDir: string, file: string, schema: S, parse: (text: string) => unknown = JSON.parse): z.infer<S> {
@@ -35,6 +35,7 @@ export function readDemo(dataDir: string) {
   return {
     species: readData(dataDir, 'species.json', speciesFile),
     people: readData(dataDir, 'demo/people.csv', person.array(), parsePeople),
+    signUps: readData(dataDir, 'demo/sign-ups.json', signUpsFile),
     clubs: readData(dataDir, 'demo/clubs.json', clubsFile),
     parcels: readData(dataDir, 'demo/parcels.geojson', parcelsFile),
     zones: readData(dataDir, 'demo/zones.geojson', zonesFile),
@@ -70,14 +71,24 @@ export async function seedDemoIfEmpty(db: Db, demo: Demo, { now = new Date() }: 
   return true;
 }
 
+/** The source of the catalogue's own cautions: data/species.json says they were written from general knowledge. */
+const generalKnowledge = 'Written from general knowledge; not yet checked against a regional field guide';
+
 async function seedDemo(tx: Tx, demo: Demo) {
   const speciesIds = new Map<string, string>();
   for (const s of demo.species.species) {
     const [row] = await tx.insert(species).values(s).returning({ id: species.id });
-    if (row) speciesIds.set(s.slug, row.id);
+    if (!row) continue;
+    speciesIds.set(s.slug, row.id);
+    if (s.cautions.length) {
+      await tx.insert(speciesCautions).values(s.cautions.map((text, i) => ({ speciesId: row.id, position: i + 1, text, sourceTitle: generalKnowledge })));
+    }
   }
 
   const userIds = await insertPeople(tx, demo.people, new Date(demo.scenario.landownersVerifiedAt));
+  for (const s of demo.signUps) {
+    await tx.update(users).set({ claimedLand: s.claimedLand, signUpNote: s.note }).where(eq(users.id, lookup(userIds, s.email, 'the person')));
+  }
 
   const clubIds = new Map<string, string>();
   for (const club of demo.clubs) {

@@ -15,6 +15,12 @@ export const users = pgTable('users', {
   /** Set by an admin; until then a landowner may draft parcels but grant no permit. */
   landownerVerifiedAt: at('landowner_verified_at'),
   landownerVerifiedBy: text('landowner_verified_by'),
+  /** What a landowner said at sign-up, for the admin who verifies them: the land they manage, and a note. */
+  claimedLand: text('claimed_land'),
+  signUpNote: text('sign_up_note'),
+  /** An admin declined to verify this landowner, with the reason they were sent; verifying later clears it. */
+  landownerDeclinedAt: at('landowner_declined_at'),
+  landownerDeclineReason: text('landowner_decline_reason'),
   createdAt: createdAt(),
 });
 

@@ -1,5 +1,5 @@
 import { sql } from 'drizzle-orm';
-import { check, index, jsonb, numeric, pgTable, text, timestamp, unique, uuid } from 'drizzle-orm/pg-core';
+import { check, index, integer, jsonb, numeric, pgTable, text, timestamp, unique, uuid } from 'drizzle-orm/pg-core';
 import { createdAt, id, updatedAt } from './columns';
 import { limitScopeEnum, methodEnum, speciesKindEnum, unitEnum } from './enums';
 import { parcels } from './land';
@@ -21,9 +21,35 @@ export const species = pgTable('species', {
   cautions: text('cautions').array().notNull().default(sql`'{}'::text[]`),
   lookalikes: jsonb('lookalikes').$type<Lookalike[]>().notNull().default([]),
   protectedStatus: text('protected_status'),
+  /**
+   * Retired by an admin: kept on the allowances and entries that already name it, but no longer
+   * offered for a new allowance. Null while it is in use.
+   */
+  retiredAt: timestamp('retired_at', { withTimezone: true, mode: 'date' }),
+  retiredBy: text('retired_by').references(() => users.id),
   createdAt: createdAt(),
   updatedAt: updatedAt(),
 });
+
+/**
+ * One caution of a species with its source. The species' `cautions` array, which the field and the
+ * audit read, is kept from these rows by a trigger (drizzle/0016), in `position` order.
+ */
+export const speciesCautions = pgTable(
+  'species_cautions',
+  {
+    id: id(),
+    speciesId: uuid('species_id').notNull().references(() => species.id, { onDelete: 'cascade' }),
+    position: integer('position').notNull(),
+    text: text('text').notNull(),
+    /** The guide, paper or page the caution comes from: a title or a full citation. */
+    sourceTitle: text('source_title').notNull(),
+    sourceUrl: text('source_url'),
+    createdAt: createdAt(),
+    updatedAt: updatedAt(),
+  },
+  (t) => [index('species_cautions_species').on(t.speciesId, t.position)],
+);
 
 /**
  * The harvest terms of one species on one parcel. Removing one keeps the row (and the permits'
@@ -71,5 +97,6 @@ export const limits = pgTable(
 
 export type Species = typeof species.$inferSelect;
 export type NewSpecies = typeof species.$inferInsert;
+export type SpeciesCaution = typeof speciesCautions.$inferSelect;
 export type Allowance = typeof allowances.$inferSelect;
 export type Limit = typeof limits.$inferSelect;
