@@ -13,6 +13,11 @@ const overlapWarnings =
   "`overlap` only says that the boundary overlaps land registered by someone else (another owner's listed parcel), with no name, id, area or " +
   "boundary. Other owners' drafts and archived parcels are not counted.";
 
+/** How a fee may be sent, for the endpoints that take one. */
+const feeWords =
+  'A fee may be sent as `fee`, a decimal string in the currency as a person writes it ("12.50", "1,000.00"; at most the currency\'s decimals, ' +
+  'so "12.505" dollars is refused), or as `feeMinor`, whole minor units (1250 cents). It is stored in minor units either way; send one of the two.';
+
 /** Every JSON endpoint; request bodies are the zod schemas the endpoints validate with. */
 const routes: Route[] = [
   { method: 'post', path: '/api/sign-in', summary: 'E-mail a sign-in link to an existing account', body: signInSchema, auth: false, tag: 'accounts' },
@@ -34,9 +39,9 @@ const routes: Route[] = [
   { method: 'put', path: '/api/parcels/{id}/allowances', summary: 'Set the allowance of one species', body: allowanceSchema, tag: 'parcel rules' },
   { method: 'delete', path: '/api/parcels/{id}/allowances/{allowanceId}', summary: 'Remove an allowance', tag: 'parcel rules' },
   { method: 'get', path: '/api/parcels/{id}/permits', summary: "The parcel's permits with their histories", tag: 'permits' },
-  { method: 'post', path: '/api/parcels/{id}/permits', summary: 'Grant a permit to a forager or a club', body: grantPermitSchema, tag: 'permits' },
+  { method: 'post', path: '/api/parcels/{id}/permits', summary: 'Grant a permit to a forager or a club', description: feeWords, body: grantPermitSchema, tag: 'permits' },
   { method: 'get', path: '/api/permits/{id}', summary: 'One permit with its history (landowner or holder)', tag: 'permits' },
-  { method: 'post', path: '/api/permits/{id}/decision', summary: 'Approve or decline an access request', body: decisionSchema, tag: 'permits' },
+  { method: 'post', path: '/api/permits/{id}/decision', summary: 'Approve or decline an access request; `message` goes to the requester in the decision e-mail', description: feeWords, body: decisionSchema, tag: 'permits' },
   { method: 'post', path: '/api/permits/{id}/revoke', summary: 'Revoke a permit (refund when paid and not yet begun)', body: revokeSchema, tag: 'permits' },
   { method: 'post', path: '/api/permits/{id}/limits', summary: "Tighten one of the permit's limits (never looser than the parcel's)", body: permitLimitSchema, tag: 'permits' },
   { method: 'post', path: '/api/permits/{id}/accept-terms', summary: "Accept the parcel's current terms", tag: 'permits' },

@@ -39,7 +39,7 @@ test('given a verified landowner, it draws a parcel, uploads two more, sets an a
   await form.getByRole('button', { name: 'Save allowance' }).click();
   // The window in words, as every screen writes one (month abbreviations as en-US writes them): 1 Nov – 15 Mar crosses New Year.
   await expect(page.getByTestId('allowances')).toContainText('Nov 1 – Mar 15, across New Year');
-  await expect(page.getByTestId('allowances')).toContainText('250 g per visit');
+  await expect(page.getByTestId('allowances')).toContainText('250 g a visit');
 
   // A permit for a forager, by e-mail.
   const grant = page.getByTestId('grant');
