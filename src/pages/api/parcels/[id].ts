@@ -1,6 +1,9 @@
 import { db } from '../../../db';
 import { findParcelForOwner, updateParcel } from '../../../db/parcels.queries';
-import { notFound } from '../../../lib/errors';
+import { AppError, notFound } from '../../../lib/errors';
+import { listingRefusal } from '../../../lib/listing';
+import { listingFacts } from '../../../db/parcel-rules.queries';
+import { recordParcelChange } from '../../../db/parcel-history.queries';
 import { parcelUpdateSchema } from '../../../lib/land.schemas';
 import { acceptBoundary } from '../../../server/boundaries';
 import { endpoint, geometryBodyBytes, guard, idParam, json, readJson } from '../../../server/http';
@@ -23,9 +26,25 @@ export const PATCH = endpoint(async ({ locals, params, request }) => {
   guard(actor, 'parcel:edit', { ownerId: existing.ownerId });
   const patch = await readJson(request, parcelUpdateSchema, { maxBytes: geometryBodyBytes });
   if (patch.status === 'listed') guard(actor, 'parcel:list-publicly', { ownerId: existing.ownerId });
+  if (patch.openToRequests === true && !existing.openToRequests) {
+    const refusal = listingRefusal((await listingFacts(db, { parcelId, ownerId: actor.id })) ?? { allowances: 0, hasTerms: false });
+    if (refusal) throw new AppError(409, 'not-ready-for-requests', refusal, 'openToRequests');
+  }
   const checked = patch.boundary ? await acceptBoundary(patch.boundary, { ownerId: actor.id, excludeParcelId: parcelId }) : null;
   const parcel = await updateParcel(db, { parcelId, ownerId: actor.id, listed: actor.landownerVerified, patch: { ...patch, ...(checked ? { boundary: checked.boundary } : {}) } });
   const warnings = checked?.warnings ?? [];
   if (!parcel) throw notFound('Parcel');
+  const changed = settingsChanges(existing, patch);
+  if (changed.length) await recordParcelChange(db, { parcelId, actorId: actor.id, action: 'parcel.settings', summary: `Changed ${changed.join(', ')}.`, now: new Date() });
+  if (patch.boundary) await recordParcelChange(db, { parcelId, actorId: actor.id, action: 'parcel.boundary', summary: 'Changed the boundary.', now: new Date() });
   return json({ parcel, warnings });
 });
+
+const settingWords = { name: 'the name', description: 'the description', timeZone: 'the time zone', nearingThresholdPercent: 'the nearing threshold', openToRequests: 'whether foragers may ask for access', status: 'the status' } as const;
+
+/** Which settings a patch changes, in words ("the name, the status to listed"), for the parcel's history. */
+function settingsChanges(before: Record<string, unknown>, patch: Record<string, unknown>): string[] {
+  return (Object.keys(settingWords) as (keyof typeof settingWords)[])
+    .filter((key) => patch[key] !== undefined && patch[key] !== before[key])
+    .map((key) => (key === 'status' ? `the status to ${String(patch[key])}` : key === 'openToRequests' ? (patch[key] ? 'the parcel to open to requests' : 'the parcel to closed to requests') : settingWords[key]));
+}
