@@ -192,8 +192,18 @@ test('given every land page, none is wider than the window at 390 px or at 1280 
     for (const path of paths) {
       await page.goto(path);
       await page.waitForLoadState('networkidle');
+      // Every folded part open (forms, histories, the boundary editor), so they are measured too.
+      await page.evaluate(() => document.querySelectorAll('details').forEach((d) => { d.open = true; }));
       const { scrollWidth, innerWidth } = await page.evaluate(() => ({ scrollWidth: document.documentElement.scrollWidth, innerWidth: window.innerWidth }));
       expect(scrollWidth, `${path} at ${width} px`).toBeLessThanOrEqual(innerWidth);
+      if (path === '/land') {
+        // The list's Today column is whole: no cell is cut off by the table or the window.
+        const clipped = await page.getByTestId('parcel-today').evaluateAll((cells) =>
+          cells.filter((cell) => cell.scrollWidth > cell.clientWidth + 1 || cell.getBoundingClientRect().right > (cell.closest('.card')?.getBoundingClientRect().right ?? 0) + 1).length);
+        expect(clipped, `Today cells cut off at ${width} px`).toBe(0);
+        const table = await page.getByTestId('parcel-list').evaluate((t) => ({ table: t.scrollWidth, box: t.parentElement?.clientWidth ?? 0 }));
+        expect(table.table, `the parcel list at ${width} px`).toBeLessThanOrEqual(table.box);
+      }
       if (shots) await page.screenshot({ path: join(shots, `${width}${path.replace(/\/[0-9a-f-]{36}/, '/cobble').replace(/\//g, '_')}.png`), fullPage: true });
     }
   }
