@@ -1,7 +1,7 @@
 import { mkdirSync } from 'node:fs';
 import { join } from 'node:path';
 import { expect, test, type APIRequestContext, type Page } from '@playwright/test';
-import { apiAs, pageAs } from './support';
+import { apiAs, mailFor, pageAs } from './support';
 
 /*
  * The landowner's parcel pages, in Chromium: fees typed in dollars, allowances changed in place with
@@ -207,5 +207,31 @@ test('given every land page, none is wider than the window at 390 px or at 1280 
       if (shots) await page.screenshot({ path: join(shots, `${width}${path.replace(/\/[0-9a-f-]{36}/, '/cobble').replace(/\//g, '_')}.png`), fullPage: true });
     }
   }
+  await page.context().close();
+});
+
+test('given an access request, declining it carries the landowner\'s message to the requester in the decline mail', async ({ browser }) => {
+  const { id } = await newParcel('Decline lot', 4);
+  expect((await walter.post(`/api/parcels/${id}/allowances`, { data: chaga('250') })).status()).toBe(201);
+  expect((await walter.post(`/api/parcels/${id}/terms`, { data: { body: 'Strip chaga from standing dead birch only.' } })).status()).toBeLessThan(300);
+  expect((await walter.patch(`/api/parcels/${id}`, { data: { openToRequests: true } })).status()).toBe(200);
+  const beth = await apiAs('beth.lindqvist@example.org');
+  const asked = await beth.post('/api/access-requests', { data: { parcelId: id, startsOn: '2031-11-01', endsOn: '2031-11-30', note: 'A little chaga for tea.' } });
+  expect(asked.status(), await asked.text()).toBe(201);
+  const permitId = (await asked.json()).permit.id as string;
+
+  const page = await pageAs(browser, 'landowner@example.org');
+  await page.goto(`/requests/${permitId}`);
+  const decision = page.getByTestId('decision');
+  await decision.getByLabel('Decision').selectOption('decline');
+  await expect(decision.getByLabel('Fee in dollars')).toHaveCount(0);
+  await decision.getByLabel('Message to the requester').fill('The birches are resting this year; ask again next autumn.');
+  await decision.getByRole('button', { name: 'Send decision' }).click();
+  await expect(page).toHaveURL(new RegExp(`/land/${id}/permits$`));
+  await expect(page.getByTestId('permits').locator('[data-state="declined"]')).toBeVisible();
+  await expect
+    .poll(async () => (await mailFor(page.request, 'beth.lindqvist@example.org')).find((m) => m.subject.includes('was declined') && m.subject.includes('Decline lot'))?.text ?? '')
+    .toContain('The birches are resting this year; ask again next autumn.');
+  await beth.dispose();
   await page.context().close();
 });
