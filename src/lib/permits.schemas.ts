@@ -8,7 +8,7 @@ import { isoDate, wholeNumber } from './schema-parts';
 /** A permit's own, tighter limit on one species, or (club permits) a club-wide season cap. */
 export const permitLimitSchema = z.object({
   speciesId: z.uuid('Choose a species the parcel allows.'),
-  scope: z.enum(['visit', 'day', 'season', 'parcel-season', 'club-season']),
+  scope: z.enum(['visit', 'day', 'season', 'parcel-season', 'club-season'], 'Choose a visit, a day, a season, everyone together or the whole club.'),
   quantity: limitSchema.shape.quantity,
   unit: limitSchema.shape.unit,
 });
@@ -52,8 +52,8 @@ export const grantPermitSchema = z
     /** Integer minor units (cents); 0 or absent is no fee. */
     feeMinor: feeMinor.optional(),
     currency: z.string().regex(/^[a-z]{3}$/, 'Use a three-letter currency code like usd.').default('usd'),
-    limits: z.array(permitLimitSchema).max(50).default([]),
-    note: z.string().trim().max(1000).default(''),
+    limits: z.array(permitLimitSchema).max(50, 'Give at most 50 limits.').default([]),
+    note: z.string().trim().max(1000, 'Keep the note to 1 000 characters or fewer.').default(''),
   })
   .refine((p) => p.endsOn >= p.startsOn, endsAfterStart)
   .transform((p, ctx) => {
@@ -73,7 +73,7 @@ export const accessRequestSchema = z
 
 export const decisionSchema = z.object({
   decision: z.enum(['approve', 'decline'], 'Choose approve or decline.'),
-  message: z.string().trim().max(1000).default(''),
+  message: z.string().trim().max(1000, 'Keep the message to 1 000 characters or fewer.').default(''),
   /** Approving may set or change the fee: `fee` in the currency ("12.50") or `feeMinor` in cents. */
   fee: feeText.optional(),
   feeMinor: feeMinor.optional(),
