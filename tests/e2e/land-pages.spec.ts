@@ -193,7 +193,7 @@ test('given every land page, none is wider than the window at 390 px or at 1280 
       await page.goto(path);
       await page.waitForLoadState('networkidle');
       // Every folded part open (forms, histories, the boundary editor), so they are measured too.
-      await page.evaluate(() => document.querySelectorAll('details:not([data-testid="menu"])').forEach((d) => { d.open = true; }));
+      await page.evaluate(() => document.querySelectorAll<HTMLDetailsElement>('details:not([data-testid="menu"])').forEach((d) => { d.open = true; }));
       const { scrollWidth, innerWidth } = await page.evaluate(() => ({ scrollWidth: document.documentElement.scrollWidth, innerWidth: window.innerWidth }));
       expect(scrollWidth, `${path} at ${width} px`).toBeLessThanOrEqual(innerWidth);
       if (path === '/land') {
