@@ -175,6 +175,10 @@ test('given a new parcel with no allowance and no terms, its pages say what is m
   await settings.getByLabel('Foragers may find the parcel and ask for access').check();
   await settings.getByRole('button', { name: 'Save settings' }).click();
   await expect(page.getByTestId('parcel-facts')).toContainText('open to requests');
+  await page.getByTestId('parcel-nav').getByRole('link', { name: 'Summary' }).click();
+  await expect(page.getByTestId('readiness')).toContainText('Yes: foragers can find this parcel');
+  await expect(page.getByTestId('parcel-history')).toContainText('Opened the parcel to requests.');
+  await expect(page.getByTestId('parcel-history')).toContainText('Published version 1 of the terms.');
   await page.context().close();
 });
 

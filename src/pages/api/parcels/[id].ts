@@ -34,17 +34,23 @@ export const PATCH = endpoint(async ({ locals, params, request }) => {
   const parcel = await updateParcel(db, { parcelId, ownerId: actor.id, listed: actor.landownerVerified, patch: { ...patch, ...(checked ? { boundary: checked.boundary } : {}) } });
   const warnings = checked?.warnings ?? [];
   if (!parcel) throw notFound('Parcel');
-  const changed = settingsChanges(existing, patch);
-  if (changed.length) await recordParcelChange(db, { parcelId, actorId: actor.id, action: 'parcel.settings', summary: `Changed ${changed.join(', ')}.`, now: new Date() });
+  // An unverified landowner's parcel stays closed to requests whatever was sent (updateParcel), so the history says what was stored.
+  const summary = settingsSummary(existing, { ...patch, openToRequests: patch.openToRequests === undefined ? undefined : actor.landownerVerified && patch.openToRequests });
+  if (summary) await recordParcelChange(db, { parcelId, actorId: actor.id, action: 'parcel.settings', summary, now: new Date() });
   if (patch.boundary) await recordParcelChange(db, { parcelId, actorId: actor.id, action: 'parcel.boundary', summary: 'Changed the boundary.', now: new Date() });
   return json({ parcel, warnings });
 });
 
-const settingWords = { name: 'the name', description: 'the description', timeZone: 'the time zone', nearingThresholdPercent: 'the nearing threshold', openToRequests: 'whether foragers may ask for access', status: 'the status' } as const;
+const settingWords = { name: 'the name', description: 'the description', timeZone: 'the time zone', nearingThresholdPercent: 'the nearing threshold' } as const;
 
-/** Which settings a patch changes, in words ("the name, the status to listed"), for the parcel's history. */
-function settingsChanges(before: Record<string, unknown>, patch: Record<string, unknown>): string[] {
-  return (Object.keys(settingWords) as (keyof typeof settingWords)[])
-    .filter((key) => patch[key] !== undefined && patch[key] !== before[key])
-    .map((key) => (key === 'status' ? `the status to ${String(patch[key])}` : key === 'openToRequests' ? (patch[key] ? 'the parcel to open to requests' : 'the parcel to closed to requests') : settingWords[key]));
+/** What a patch changes, in sentences for the parcel's history: "Changed the name. Opened the parcel to requests." */
+function settingsSummary(before: Record<string, unknown>, patch: Record<string, unknown>): string | null {
+  const differs = (key: string) => patch[key] !== undefined && patch[key] !== before[key];
+  const changed = (Object.keys(settingWords) as (keyof typeof settingWords)[]).filter(differs).map((key) => settingWords[key]);
+  const sentences = [
+    ...(changed.length ? [`Changed ${changed.join(', ')}.`] : []),
+    ...(differs('status') ? [`Set the status to ${String(patch.status)}.`] : []),
+    ...(differs('openToRequests') ? [patch.openToRequests ? 'Opened the parcel to requests.' : 'Closed the parcel to requests.'] : []),
+  ];
+  return sentences.length ? sentences.join(' ') : null;
 }
