@@ -3,8 +3,8 @@ import { AppError, invalidInput, notFound } from '../lib/errors';
 import type { GrantPermitInput } from '../lib/permits.schemas';
 import { localDate } from '../lib/local-time';
 import { formatDay } from '../lib/field/words';
-import { compareDecimals, measureOf, toBase, units, unitsOfMeasure, type Unit } from '../lib/units';
-import { formatAmount, limitScopeWords } from '../lib/tally-words';
+import { compareDecimals, measureOf, toBase, unitsOfMeasure, type Unit } from '../lib/units';
+import { formatLimit } from '../lib/tally-words';
 import type { Tx } from './client';
 import { activateIfReady, lockPermit, movePermit } from './permits.lifecycle';
 import { allowances, clubMemberships, limits, parcels, permitEvents, permits } from './schema';
@@ -65,7 +65,7 @@ async function addPermitLimits(tx: Tx, { parcelId, permitId, isClub, limits: wan
     }
     const same = parcelLimits.find((l) => l.scope === limit.scope && measureOf(l.unit as Unit) === measure);
     if (same && compareDecimals(toBase(limit.quantity, limit.unit), toBase(same.quantity, same.unit as Unit)) > 0) {
-      throw invalidInput(`${field}.quantity`, `A permit may tighten the parcel's limit of ${formatAmount(same.quantity)} ${units[same.unit as Unit].label} ${limitScopeWords[limit.scope]}, never loosen it.`);
+      throw invalidInput(`${field}.quantity`, `A permit may tighten the parcel's limit of ${formatLimit({ quantity: same.quantity, unit: same.unit, scope: limit.scope })}, never loosen it.`);
     }
     await tx.insert(limits).values({ allowanceId: allowance.id, permitId, scope: limit.scope, quantity: limit.quantity, unit: limit.unit });
   }

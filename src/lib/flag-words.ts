@@ -45,7 +45,7 @@ export type NoticeMail = { purpose: string; heading: string; paragraphs: string[
 export function noticeMail(f: NoticeFacts, origin: string): NoticeMail | null {
   const kind = f.flagKind ?? 'breach';
   if (!toldFlagKinds.includes(kind)) return null;
-  const url = `${origin}/land/${f.parcelId}`;
+  const url = `${origin}/land/${f.parcelId}/tallies`;
   const took = `${f.forager} recorded ${formatQuantities(f.quantities)} of ${f.species} on ${formatDay(f.countedOn)}`;
   const follow = 'Follow it up with them; the ledger keeps the entry and any correction.';
   if (kind === 'over-on-sync') {

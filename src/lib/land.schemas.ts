@@ -52,20 +52,20 @@ export const parcelUpdateSchema = z.object(settingsFields).partial().extend({
 });
 
 export const closureSchema = z
-  .object({ startsOn: isoDate, endsOn: isoDate, reason: z.string().trim().min(1, 'Say why the parcel is closed.').max(200) })
+  .object({ startsOn: isoDate, endsOn: isoDate, reason: z.string().trim().min(1, 'Say why the parcel is closed.').max(200, 'Keep the reason to 200 characters or fewer.') })
   .refine((c) => c.endsOn >= c.startsOn, { path: ['endsOn'], message: 'The closure must end on or after the day it starts.' });
 
 export const hazardSchema = z.object({
   kind: z.enum(hazardKinds, 'Choose a kind of hazard.'),
-  title: z.string().trim().min(1, 'Name the hazard.').max(120),
-  detail: z.string().trim().max(1000).default(''),
+  title: z.string().trim().min(1, 'Name the hazard.').max(120, 'Keep the title to 120 characters or fewer.'),
+  detail: z.string().trim().max(1000, 'Keep the detail to 1 000 characters or fewer.').default(''),
 });
 
-export const termsSchema = z.object({ body: z.string().trim().min(20, 'Terms need at least a sentence (20 characters).').max(20_000) });
+export const termsSchema = z.object({ body: z.string().trim().min(20, 'Terms need at least a sentence (20 characters).').max(20_000, 'Keep the terms to 20 000 characters or fewer.') });
 
 export const zoneSchema = z.object({
-  name: z.string().trim().min(1, 'Name the zone.').max(120),
-  reason: z.string().trim().max(500).default(''),
+  name: z.string().trim().min(1, 'Name the zone.').max(120, 'Keep the name to 120 characters or fewer.'),
+  reason: z.string().trim().max(500, 'Keep the reason to 500 characters or fewer.').default(''),
   boundary: boundaryGeometry,
 });
 
@@ -86,8 +86,8 @@ export const limitSchema = z.object({
 export const allowanceSchema = z
   .object({
     speciesId: z.uuid('Choose a species from the catalogue.'),
-    seasons: z.array(z.object({ start: monthDay, end: monthDay })).min(1, 'Give at least one season window.').max(4),
-    methods: z.array(z.enum(methods)).min(1, 'Allow at least one method.'),
+    seasons: z.array(z.object({ start: monthDay, end: monthDay })).min(1, 'Give at least one season window.').max(4, 'Give at most four season windows.'),
+    methods: z.array(z.enum(methods, 'Choose methods from cut, pick, dig, strip and gather-fallen.')).min(1, 'Allow at least one method.'),
     /** Up to two kinds of quantity per species ("200 g or 50 plants, whichever comes first"), each scope once per kind. */
     limits: z.array(limitSchema).max(8, 'Give at most eight limits.'),
   })

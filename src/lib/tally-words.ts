@@ -38,6 +38,11 @@ export const limitScopeWords: Record<LimitScope, string> = {
   visit: 'per visit', day: 'per day', season: 'per forager per season', 'parcel-season': 'for everyone per season', 'club-season': 'for the club per season',
 };
 
+/** What follows a limit's amount: "500 g a visit", "1 kg a season". Per-forager scopes say no more; the shared ones say who shares them. */
+export const limitPerWords: Record<LimitScope, string> = {
+  visit: 'a visit', day: 'a day', season: 'a season', 'parcel-season': 'a season for everyone together', 'club-season': 'a season for the whole club',
+};
+
 /** How a flag names the tallies an entry raised: as they stood after that one entry. */
 export const flagScopeWords: Record<LimitScope, string> = {
   visit: 'visit', day: 'day', season: 'season', 'parcel-season': 'everyone this season', 'club-season': 'club this season',
@@ -68,6 +73,22 @@ export const unitAfter = (amount: string, unit: string): string => {
 /** "1.5 kg", "30 plants"; a correction shows its sign ("+50 g", "−100 g"). */
 export const formatQuantity = ({ quantity, unit }: { quantity: string; unit: string }, options: { signed?: boolean } = {}): string =>
   `${formatAmount(quantity, options)} ${unitAfter(quantity, unit)}`;
+
+const limitAmountFormat = new Intl.NumberFormat('en-US', { maximumFractionDigits: 6 });
+
+/**
+ * One limit in words, the one way every land screen and message writes it: "500 g a visit",
+ * "1.5 kg a season", "1,200 plants a season for everyone together". The stored decimal ("1.500000")
+ * loses its trailing zeros and gains thousands separators; every digit a limit may hold (six
+ * decimals) is kept, so a limit never reads rounded.
+ */
+export function formatLimit({ quantity, unit, scope }: { quantity: string; unit: string; scope: string }): string {
+  const per = limitPerWords[scope as LimitScope] ?? scope;
+  return `${limitAmountFormat.format(Number(quantity))} ${unitAfter(quantity, unit)} ${per}`;
+}
+
+/** Several limits: "500 g a visit and 2 kg a season". */
+export const formatLimits = (limits: readonly { quantity: string; unit: string; scope: string }[]): string => limits.map(formatLimit).join(' and ');
 
 /** "150 g and 30 plants". */
 export function formatQuantities(quantities: readonly { quantity: string; unit: string }[], options: { signed?: boolean } = {}): string {

@@ -4,7 +4,7 @@ import { reportBasis } from '../db/reports.queries';
 import { sql } from 'drizzle-orm';
 import { mailHtml, sendMail } from './mail';
 import { formatDate } from '../lib/format';
-import { formatAmount, formatPercent, formatQuantities, formatSeasonDates, limitScopeWords, stateLabel, unitAfter } from '../lib/tally-words';
+import { formatAmount, formatLimit, formatPercent, formatQuantities, formatSeasonDates, stateLabel } from '../lib/tally-words';
 
 /** An invitation to a club, with the way in: sign in with the invited address, then open Club. */
 export async function noticeClubInvitation({ membershipId, email, origin, newAccount }: { membershipId: string; email: string; origin: string; newAccount: boolean }) {
@@ -30,7 +30,7 @@ const summary = (report: SeasonReport) =>
   `${count(report.visits, 'visit', 'visits')}, ${count(report.foragers, 'forager', 'foragers')}, ${count(report.breaches.length, 'breach', 'breaches')}, ${count(report.openFlags, 'flag', 'flags')} still open.`;
 
 const tallyLine = (t: SeasonReport['species'][number]['tallies'][number]) =>
-  `${formatAmount(t.limit.quantity)} ${unitAfter(t.limit.quantity, t.limit.unit)} ${limitScopeWords[t.scope]} (${reportBasis[t.scope]}): ${formatAmount(t.used)} used, ${formatPercent(t.percent)}, ${stateLabel(t.state)}`;
+  `${formatLimit({ ...t.limit, scope: t.scope })} (${reportBasis[t.scope]}): ${formatAmount(t.used)} used, ${formatPercent(t.percent)}, ${stateLabel(t.state)}`;
 
 const taken = (s: SeasonReport['species'][number]) => (s.taken.length > 0 ? formatQuantities(s.taken) : 'nothing');
 const period = (report: SeasonReport) => (report.period ? `Season ${formatSeasonDates(report.period)}, as of ${formatDate(report.asOf)}` : `As of ${formatDate(report.asOf)}: no species is in a season yet`);

@@ -22,6 +22,11 @@ const exportDescription =
   'GPX 1.1 has no areas: each ring is a track (`trk`) that ends on its first point, holes and zones as tracks of their own. ' +
   'The boundary importer (`POST /api/boundaries/check`) reads each file back.';
 
+/** How a fee may be sent, for the endpoints that take one. */
+const feeWords =
+  'A fee may be sent as `fee`, a decimal string in the currency as a person writes it ("12.50", "1,000.00"; at most the currency\'s decimals, ' +
+  'so "12.505" dollars is refused), or as `feeMinor`, whole minor units (1250 cents). It is stored in minor units either way; send one of the two.';
+
 /** Every JSON endpoint; request bodies are the zod schemas the endpoints validate with. */
 const routes: Route[] = [
   { method: 'post', path: '/api/sign-in', summary: 'E-mail a sign-in link to an existing account', body: signInSchema, auth: false, tag: 'accounts' },
@@ -29,9 +34,9 @@ const routes: Route[] = [
   { method: 'get', path: '/api/me', summary: 'The signed-in person and their roles', tag: 'accounts' },
   { method: 'get', path: '/api/health', summary: 'Database, PostGIS and migrations', auth: false, tag: 'system' },
   { method: 'get', path: '/api/parcels', summary: "The landowner's parcels", tag: 'parcels' },
-  { method: 'post', path: '/api/parcels', summary: 'Create a parcel (boundary checked; overlaps are warnings)', description: overlapWarnings, body: newParcelSchema, tag: 'parcels' },
+  { method: 'post', path: '/api/parcels', summary: 'Create a parcel (boundary checked; overlaps are warnings)', description: `${overlapWarnings} A new parcel has no allowance or terms, so \`openToRequests: true\` is a 409 \`not-ready-for-requests\`; open it with PATCH once it has both.`, body: newParcelSchema, tag: 'parcels' },
   { method: 'get', path: '/api/parcels/{id}', summary: 'One of your parcels', tag: 'parcels' },
-  { method: 'patch', path: '/api/parcels/{id}', summary: 'Change settings or boundary', description: overlapWarnings, body: parcelUpdateSchema, tag: 'parcels' },
+  { method: 'patch', path: '/api/parcels/{id}', summary: 'Change settings or boundary', description: `${overlapWarnings} Opening a parcel to requests (\`openToRequests: true\`) needs at least one allowance and published terms; without them it is a 409 \`not-ready-for-requests\` saying what is missing.`, body: parcelUpdateSchema, tag: 'parcels' },
   ...(['geojson', 'kml', 'gpx'] as const).map((format): Route => ({
     method: 'get', path: `/api/parcels/{id}/export.${format}`, tag: 'parcels',
     summary: `Download the parcel's boundary and no-harvest zones as ${exportFormatNames[format]}`,
@@ -45,17 +50,20 @@ const routes: Route[] = [
   { method: 'post', path: '/api/parcels/{id}/hazards', summary: 'Add a hazard', body: hazardSchema, tag: 'parcel rules' },
   { method: 'delete', path: '/api/parcels/{id}/hazards/{hazardId}', summary: 'Remove a hazard', tag: 'parcel rules' },
   { method: 'post', path: '/api/parcels/{id}/terms', summary: 'Publish a new version of the terms', body: termsSchema, tag: 'parcel rules' },
-  { method: 'put', path: '/api/parcels/{id}/allowances', summary: 'Set the allowance of one species', body: allowanceSchema, tag: 'parcel rules' },
+  { method: 'post', path: '/api/parcels/{id}/allowances', summary: 'Add the allowance of a species the parcel does not allow yet (409 `allowance-exists` with `details.allowanceId` when it has one)', body: allowanceSchema, tag: 'parcel rules' },
+  { method: 'put', path: '/api/parcels/{id}/allowances', summary: 'Set the allowance of one species, creating or replacing it', body: allowanceSchema, tag: 'parcel rules' },
+  { method: 'put', path: '/api/parcels/{id}/allowances/{allowanceId}', summary: 'Change one allowance in place: seasons, methods and limits (its species stays); recorded in the parcel history', body: allowanceSchema, tag: 'parcel rules' },
+  { method: 'get', path: '/api/parcels/{id}/history', summary: "The parcel's history: changes to allowances, closures, zones, hazards, terms and settings, newest first", tag: 'parcel rules' },
   { method: 'delete', path: '/api/parcels/{id}/allowances/{allowanceId}', summary: 'Remove an allowance', tag: 'parcel rules' },
   { method: 'get', path: '/api/parcels/{id}/permits', summary: "The parcel's permits with their histories", tag: 'permits' },
-  { method: 'post', path: '/api/parcels/{id}/permits', summary: 'Grant a permit to a forager or a club', body: grantPermitSchema, tag: 'permits' },
   {
     method: 'get', path: '/api/permits/status', summary: "Whether the permit on a card is still active (query: token, the card's signed statement)", auth: false, tag: 'permits',
     description: 'For wardens, no sign-in. A token Tallywood did not sign is a 400 (`not-signed`). Answers `{ permit, state, today }` with `lastDay` (active, expired) or `since` (revoked), days on the parcel\'s calendar; nothing more than the card says. ' +
       'The public keys are at /.well-known/permit-keys.json (a JWKS).',
   },
+  { method: 'post', path: '/api/parcels/{id}/permits', summary: 'Grant a permit to a forager or a club', description: feeWords, body: grantPermitSchema, tag: 'permits' },
   { method: 'get', path: '/api/permits/{id}', summary: 'One permit with its history (landowner or holder)', tag: 'permits' },
-  { method: 'post', path: '/api/permits/{id}/decision', summary: 'Approve or decline an access request', body: decisionSchema, tag: 'permits' },
+  { method: 'post', path: '/api/permits/{id}/decision', summary: 'Approve or decline an access request; `message` goes to the requester in the decision e-mail', description: feeWords, body: decisionSchema, tag: 'permits' },
   { method: 'post', path: '/api/permits/{id}/revoke', summary: 'Revoke a permit (refund when paid and not yet begun)', body: revokeSchema, tag: 'permits' },
   { method: 'post', path: '/api/permits/{id}/limits', summary: "Tighten one of the permit's limits (never looser than the parcel's)", body: permitLimitSchema, tag: 'permits' },
   { method: 'post', path: '/api/permits/{id}/accept-terms', summary: "Accept the parcel's current terms", tag: 'permits' },

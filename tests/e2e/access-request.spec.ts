@@ -35,7 +35,7 @@ test('given a request for Pelletier Hill Farm, approval by e-mailed link, accept
   await owner.goto(await signInLinkFor(owner.request, 'landowner@example.org', after));
   await expect(owner).toHaveURL(link);
   const decision = owner.getByTestId('decision');
-  await decision.getByLabel(/Fee in cents/).fill('1500');
+  await decision.getByLabel('Fee in dollars').fill('15');
   await decision.getByLabel('Message to the requester').fill('Welcome. Please keep to the hedgerows.');
   await decision.getByRole('button', { name: 'Send decision' }).click();
   await expect(owner.getByRole('heading', { level: 1 })).toHaveText('Pelletier Hill Farm');

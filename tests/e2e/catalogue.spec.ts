@@ -132,7 +132,7 @@ test('given the admin, a species is added with a sourced caution, edited with it
   const other = await walter.post('/api/parcels', { data: { name: `Second retirement lot ${Date.now()}`, timeZone: 'America/New_York', nearingThresholdPercent: 80, openToRequests: false, description: '', boundary: { type: 'Polygon', coordinates: [[[west + 0.01, south], [west + 0.01 + size, south], [west + 0.01 + size, south + size], [west + 0.01, south + size], [west + 0.01, south]]] } } });
   const otherId = (await other.json()).parcel.id as string;
   const walterPage = await pageAs(browser, 'landowner@example.org');
-  await walterPage.goto(`/land/${otherId}`);
+  await walterPage.goto(`/land/${otherId}/rules`);
   const options = await walterPage.locator('#allowance-species option').allTextContents();
   expect(options.length).toBeGreaterThan(10);
   expect(options.some((o) => o.startsWith(name))).toBe(false);
@@ -141,8 +141,8 @@ test('given the admin, a species is added with a sourced caution, edited with it
   expect((await refused.json()).error).toMatchObject({ code: 'species-retired', field: 'speciesId' });
 
   // …but kept where it was allowed, and still in the catalogue for those who ask for retired species.
-  await walterPage.goto(`/land/${parcelId}`);
-  const row = walterPage.getByTestId('allowances').getByRole('row').filter({ hasText: name });
+  await walterPage.goto(`/land/${parcelId}/rules`);
+  const row = walterPage.locator(`[data-allowance="${name}"]`);
   await expect(row.getByTestId('retired-species')).toBeVisible();
   await owen.goto(`/catalogue?q=${encodeURIComponent(name)}`);
   await expect(cards(owen)).toHaveCount(0);

@@ -8,7 +8,7 @@ import { apiAs, mailFor, pageAs, signIn } from './support';
  * sends the season report, which reaches Walter.
  *
  * Walter's parcel for this file lies clear of the demo valley and the other specs' parcels, open to
- * requests, with oyster mushrooms allowed all year and 1 kg a day. 1200 g is 120 % of 1 kg: over,
+ * requests (so it has terms, which the steward accepts for the club), with oyster mushrooms allowed all year and 1 kg a day. 1200 g is 120 % of 1 kg: over,
  * a breach (GLOSSARY.md "tally states").
  */
 const west = -72.93;
@@ -28,7 +28,7 @@ test.describe.configure({ mode: 'serial' });
 test.beforeAll(async () => {
   walter = await apiAs('landowner@example.org');
   const ring = [[west, south], [west + size, south], [west + size, south + size], [west, south + size], [west, south]];
-  const created = await walter.post('/api/parcels', { data: { name: parcelName, timeZone: 'America/New_York', nearingThresholdPercent: 80, openToRequests: true, description: 'Oyster logs in the hemlock draw.', boundary: { type: 'Polygon', coordinates: [ring] } } });
+  const created = await walter.post('/api/parcels', { data: { name: parcelName, timeZone: 'America/New_York', nearingThresholdPercent: 80, openToRequests: false, description: 'Oyster logs in the hemlock draw.', boundary: { type: 'Polygon', coordinates: [ring] } } });
   expect(created.status(), await created.text()).toBe(201);
   parcelId = (await created.json()).parcel.id;
   const listed = await walter.patch(`/api/parcels/${parcelId}`, { data: { status: 'listed' } });
@@ -37,6 +37,11 @@ test.beforeAll(async () => {
   const oyster = species.find((s) => s.commonName === 'Oyster mushroom');
   const allowed = await walter.put(`/api/parcels/${parcelId}/allowances`, { data: { speciesId: oyster?.id, seasons: [{ start: '01-01', end: '12-31' }], methods: ['pick'], limits: [{ scope: 'day', quantity: '1', unit: 'kg' }] } });
   expect(allowed.status(), await allowed.text()).toBe(200);
+  // Opening a parcel to requests needs an allowance and terms.
+  const terms = await walter.post(`/api/parcels/${parcelId}/terms`, { data: { body: 'Cut oysters at the base; leave the small ones.' } });
+  expect(terms.status(), await terms.text()).toBeLessThan(300);
+  const opened = await walter.patch(`/api/parcels/${parcelId}`, { data: { openToRequests: true } });
+  expect(opened.status(), await opened.text()).toBe(200);
 });
 
 test.afterAll(async () => walter?.dispose());
@@ -70,12 +75,16 @@ test('given a steward, a new member and a landowner, the club permit, a breach, 
   await card.getByRole('button', { name: 'Send request' }).click();
   await expect(steward.getByTestId('my-permits').locator('li').filter({ hasText: parcelName }).locator('[data-state="requested"]')).toBeVisible();
 
-  // 4. Walter approves it (no fee, no terms on this parcel: active from today).
+  // 4. Walter approves it (no fee); the steward accepts the terms for the club: active from today.
   const { permits } = (await (await walter.get(`/api/parcels/${parcelId}/permits`)).json()) as { permits: { id: string; state: string; holderClubId: string | null }[] };
   const request = permits.find((p) => p.state === 'requested' && p.holderClubId);
   expect(request).toBeTruthy();
   const decided = await walter.post(`/api/permits/${request?.id}/decision`, { data: { decision: 'approve', message: 'Welcome, club.' } });
   expect(decided.status(), await decided.text()).toBe(200);
+  const stewardApi = await apiAs('steward@example.org');
+  const accepted = await stewardApi.post(`/api/permits/${request?.id}/accept-terms`, { data: {} });
+  expect(accepted.status(), await accepted.text()).toBe(200);
+  await stewardApi.dispose();
   await steward.goto('/club');
   await expect(club.getByTestId('club-permits').locator('li').filter({ hasText: parcelName }).locator('[data-state="active"]')).toBeVisible();
 

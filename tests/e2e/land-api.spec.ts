@@ -12,7 +12,7 @@ const square = (west: number, south: number, size = 0.001) => ({
   type: 'Polygon' as const,
   coordinates: [[[west, south], [west + size, south], [west + size, south + size], [west, south + size], [west, south]]],
 });
-const settings = { name: 'API test lot', timeZone: 'America/New_York', nearingThresholdPercent: 80, openToRequests: true, description: '' };
+const settings = { name: 'API test lot', timeZone: 'America/New_York', nearingThresholdPercent: 80, openToRequests: false, description: '' };
 
 test.beforeAll(async () => {
   [walter, june, forager] = await Promise.all(['landowner@example.org', 'june.farrand@example.org', 'forager@example.org'].map(apiAs));
@@ -39,6 +39,27 @@ test("given Walter's demo parcels, the list counts each parcel's own active perm
   // data/demo/scenario.json: Owen Marsh holds the one active permit on Cobble Ridge Lot; Alder Bottom has none active.
   expect(parcels.find((p) => p.name === 'Cobble Ridge Lot')?.activePermits).toBe(1);
   expect(parcels.find((p) => p.name === 'Alder Bottom')?.activePermits).toBe(0);
+});
+
+test('given a new parcel with no allowance and no terms, opening it to requests is refused with a sentence naming both; with them, it opens', async () => {
+  const early = await walter.post('/api/parcels', { data: { ...settings, name: 'Opened too soon', openToRequests: true, boundary: square(-72.95, 43.95) } });
+  expect(early.status()).toBe(409);
+  expect((await early.json()).error).toMatchObject({ code: 'not-ready-for-requests', field: 'openToRequests' });
+
+  const refused = await walter.patch(`/api/parcels/${walterParcelId}`, { data: { openToRequests: true } });
+  expect(refused.status()).toBe(409);
+  const { error } = await refused.json();
+  expect(error.field).toBe('openToRequests');
+  expect(error.message).toMatch(/^Before foragers can ask for access, the parcel needs an allowance.*and terms/);
+  expect((await (await walter.get(`/api/parcels/${walterParcelId}`)).json()).parcel.openToRequests).toBe(false);
+
+  const allowed = await walter.post(`/api/parcels/${walterParcelId}/allowances`, { data: { speciesId: await firstSpeciesId(), seasons: [{ start: '01-01', end: '12-31' }], methods: ['pick'], limits: [] } });
+  expect(allowed.status(), await allowed.text()).toBe(201);
+  const termsOnly = await walter.patch(`/api/parcels/${walterParcelId}`, { data: { openToRequests: true } });
+  expect(termsOnly.status()).toBe(409);
+  expect((await termsOnly.json()).error.message).not.toContain('an allowance');
+  const terms = await walter.post(`/api/parcels/${walterParcelId}/terms`, { data: { body: 'Pick by hand and close every gate behind you.' } });
+  expect(terms.status(), await terms.text()).toBeLessThan(300);
 });
 
 test('given only a new boundary, the parcel keeps its description and its openness to requests', async () => {
@@ -186,4 +207,47 @@ test('given a permit, its own limit may tighten the parcel limit across units bu
   const clubCap = await walter.post(`/api/permits/${permitId}/limits`, { data: { speciesId, scope: 'club-season', quantity: '5', unit: 'kg' } });
   expect(clubCap.status()).toBe(400);
   expect((await clubCap.json()).error.message).toContain('club permit');
+});
+
+test('given an allowance, adding the species again is a 409 naming the allowance; changing it in place is recorded in the history', async () => {
+  const { species } = (await (await walter.get('/api/species')).json()) as { species: { id: string; commonName: string }[] };
+  const chaga = species.find((s) => s.commonName === 'Chaga');
+  expect(chaga).toBeTruthy();
+  const body = { speciesId: chaga?.id, seasons: [{ start: '11-01', end: '03-15' }], methods: ['strip'], limits: [{ scope: 'visit', quantity: '250', unit: 'g' }] };
+  const added = await walter.post(`/api/parcels/${walterParcelId}/allowances`, { data: body });
+  expect(added.status(), await added.text()).toBe(201);
+  const allowanceId = (await added.json()).allowance.id as string;
+
+  const again = await walter.post(`/api/parcels/${walterParcelId}/allowances`, { data: { ...body, limits: [{ scope: 'visit', quantity: '9', unit: 'kg' }] } });
+  expect(again.status()).toBe(409);
+  const { error } = await again.json();
+  expect(error).toMatchObject({ code: 'allowance-exists', field: 'speciesId', details: { allowanceId } });
+  expect(error.message).toContain('Chaga already has an allowance');
+
+  const changed = await walter.put(`/api/parcels/${walterParcelId}/allowances/${allowanceId}`, { data: { ...body, limits: [{ scope: 'visit', quantity: '0.5', unit: 'kg' }] } });
+  expect(changed.status(), await changed.text()).toBe(200);
+  const { history } = (await (await walter.get(`/api/parcels/${walterParcelId}/history`)).json()) as { history: { action: string; summary: string }[] };
+  expect(history[0]).toMatchObject({ action: 'allowance.changed', summary: 'Changed the allowance for Chaga: limit 250 g a visit → 0.5 kg a visit.' });
+  expect(history.some((h) => h.action === 'allowance.added' && h.summary.startsWith('Allowed Chaga: Nov 1 – Mar 15, across New Year'))).toBe(true);
+
+  // Another owner sees neither the allowance nor the history.
+  expect((await june.put(`/api/parcels/${walterParcelId}/allowances/${allowanceId}`, { data: body })).status()).toBe(404);
+  expect((await june.get(`/api/parcels/${walterParcelId}/history`)).status()).toBe(404);
+});
+
+test('given a fee in dollars, a grant stores its cents; three decimals or words are refused beside the fee field', async () => {
+  const grant = (fee: unknown) => walter.post(`/api/parcels/${walterParcelId}/permits`, { data: { holder: { kind: 'forager', email: 'hattie.brule@example.org' }, startsOn: '2027-03-01', endsOn: '2027-03-31', fee } });
+  for (const bad of ['12.505', 'abc']) {
+    const refused = await grant(bad);
+    expect(refused.status()).toBe(400);
+    const { error } = await refused.json();
+    expect(error.field).toBe('fee');
+    expect(error.message).toMatch(/\.$/);
+  }
+  const granted = await grant('12.50');
+  expect(granted.status(), await granted.text()).toBe(201);
+  const permitId = (await granted.json()).permit.id;
+  const { permits } = (await (await walter.get(`/api/parcels/${walterParcelId}/permits`)).json()) as { permits: { id: string; feeMinor: number | null }[] };
+  // $12.50 is 1250 cents.
+  expect(permits.find((p) => p.id === permitId)?.feeMinor).toBe(1250);
 });

@@ -26,9 +26,12 @@ test('given a verified landowner, it draws a parcel, uploads two more, sets an a
   await expect(page).toHaveURL(/\/land\/[0-9a-f-]{36}$/);
   await expect(page.getByRole('heading', { level: 1 })).toHaveText('Drawn test lot');
   await expect(page.getByTestId('parcel-facts')).toContainText('ha');
+  const parcelUrl = page.url();
 
-  // An allowance whose season crosses New Year (chaga-style: 1 Nov – 15 Mar).
-  await page.getByText('Set an allowance').click();
+  // An allowance whose season crosses New Year (chaga-style: 1 Nov – 15 Mar), on the parcel's "What may be taken" page.
+  await page.getByTestId('parcel-nav').getByRole('link', { name: 'What may be taken' }).click();
+  await expect(page).toHaveURL(`${parcelUrl}/rules`);
+  await page.getByText('Allow a species').click();
   const form = page.getByTestId('allowance-form');
   await form.getByLabel('Species').selectOption({ label: 'Chaga' });
   await form.getByLabel('Season 1 start').fill('11-01');
@@ -39,9 +42,11 @@ test('given a verified landowner, it draws a parcel, uploads two more, sets an a
   await form.getByRole('button', { name: 'Save allowance' }).click();
   // The window in words, as every screen writes one (month abbreviations as en-US writes them): 1 Nov – 15 Mar crosses New Year.
   await expect(page.getByTestId('allowances')).toContainText('Nov 1 – Mar 15, across New Year');
-  await expect(page.getByTestId('allowances')).toContainText('250 g per visit');
+  await expect(page.getByTestId('allowances')).toContainText('250 g a visit');
 
   // A permit for a forager, by e-mail.
+  await page.getByTestId('parcel-nav').getByRole('link', { name: 'Permits' }).click();
+  await expect(page).toHaveURL(`${parcelUrl}/permits`);
   const grant = page.getByTestId('grant');
   await grant.getByLabel(/Forager's e-mail/).fill('hattie.brule@example.org');
   await grant.getByRole('button', { name: 'Grant permit' }).click();

@@ -9,7 +9,7 @@ import { apiAs, pageAs } from './support';
  * (at 00:30 UTC New York is still on the day before; at 04:45 UTC it is 23:45 there), so a date read
  * before and after each step is accepted: the page may be drawn on either side of the parcel's midnight.
  *
- * Walter makes a listed parcel open to requests, with no terms and no fee, clear of the demo valley and
+ * Walter makes a listed parcel open to requests (an allowance and terms first, as opening needs), with no fee, clear of the demo valley and
  * of the other specs' parcels (−73.005…−73.003, 43.875…43.877).
  */
 const zone = 'America/New_York';
@@ -50,13 +50,17 @@ test.describe.configure({ mode: 'serial' });
 test.beforeAll(async () => {
   [walter, june] = await Promise.all([apiAs('landowner@example.org'), apiAs('june.farrand@example.org')]);
   const ring = [[west, south], [west + size, south], [west + size, south + size], [west, south + size], [west, south]];
-  const created = await walter.post('/api/parcels', { data: { name: parcelName, timeZone: zone, nearingThresholdPercent: 80, openToRequests: true, description: 'Oyster logs by the road.', boundary: { type: 'Polygon', coordinates: [ring] } } });
+  const created = await walter.post('/api/parcels', { data: { name: parcelName, timeZone: zone, nearingThresholdPercent: 80, openToRequests: false, description: 'Oyster logs by the road.', boundary: { type: 'Polygon', coordinates: [ring] } } });
   expect(created.status(), await created.text()).toBe(201);
   parcelId = (await created.json()).parcel.id;
   const { species } = (await (await walter.get('/api/species')).json()) as { species: { id: string; commonName: string }[] };
   oysterId = species.find((s) => s.commonName === 'Oyster mushroom')?.id ?? '';
   const allowed = await walter.put(`/api/parcels/${parcelId}/allowances`, { data: { speciesId: oysterId, seasons: [{ start: '01-01', end: '12-31' }], methods: ['pick'], limits: [{ scope: 'day', quantity: '1', unit: 'kg' }] } });
   expect(allowed.status(), await allowed.text()).toBe(200);
+  const terms = await walter.post(`/api/parcels/${parcelId}/terms`, { data: { body: 'Pick by hand; leave half of every cluster.' } });
+  expect(terms.status(), await terms.text()).toBeLessThan(300);
+  const opened = await walter.patch(`/api/parcels/${parcelId}`, { data: { openToRequests: true } });
+  expect(opened.status(), await opened.text()).toBe(200);
 });
 
 test.afterAll(async () => {
@@ -70,11 +74,14 @@ test("given a landowner's parcel page, the grant form runs from the parcel's tod
   const grant = page.getByTestId('grant');
   const asOf = page.getByTestId('audit-panel').getByLabel('As of');
   const { result, days } = await around(async () => {
-    await page.goto(`/land/${parcelId}`);
+    // The grant form is on the parcel's Permits page, the audit on its Tallies page.
+    await page.goto(`/land/${parcelId}/permits`);
     // The form fills its fields once its island is live; the audit panel renders in the browser only.
     await expect(grant.getByLabel('First day')).toHaveValue(/^\d{4}-\d{2}-\d{2}$/);
+    const dates = { first: await grant.getByLabel('First day').inputValue(), last: await grant.getByLabel('Last day').inputValue() };
+    await page.goto(`/land/${parcelId}/tallies`);
     await expect(asOf).toHaveValue(/^\d{4}-\d{2}-\d{2}$/);
-    return { first: await grant.getByLabel('First day').inputValue(), last: await grant.getByLabel('Last day').inputValue(), asOf: await asOf.inputValue() };
+    return { ...dates, asOf: await asOf.inputValue() };
   });
   expect(days).toContain(result.first);
   expect(result.last).toBe(sameDateNextYear(result.first));
@@ -96,14 +103,17 @@ test("given a forager on My permits, the access request form runs from the parce
   await page.context().close();
 });
 
-test("given a permit granted from the parcel's today on a parcel with no terms and no fee, it is active at once and the holder's check-in there is clear", async () => {
+test("given a permit granted from the parcel's today with no fee, once the holder accepts the terms it is active and the holder's check-in there is clear", async () => {
   const { result: granted, days } = await around(async () => {
     const startsOn = parcelToday();
     const response = await walter.post(`/api/parcels/${parcelId}/permits`, { data: { holder: { kind: 'forager', email: 'june.farrand@example.org' }, startsOn, endsOn: sameDateNextYear(startsOn) } });
     expect(response.status(), await response.text()).toBe(201);
     return (await response.json()).permit as { id: string; state: string };
   });
-  expect(granted.state).toBe('active');
+  expect(granted.state).toBe('approved');
+  const accepted = await june.post(`/api/permits/${granted.id}/accept-terms`, { data: {} });
+  expect(accepted.status(), await accepted.text()).toBe(200);
+  expect((await accepted.json()).permit.state).toBe('active');
 
   const { result: answer, days: checkInDays } = await around(async () => {
     const response = await june.post('/api/check-ins', { data: { ...centre, accuracyM: 5 } });

@@ -157,7 +157,7 @@ test('given an active permit, its card reads at 1280 and 390 px and in print, wi
   // The landowner reaches the card from the parcel's permits.
   const owners = await browser.newContext({ storageState: sessionFile('landowner@example.org') });
   const owner = await owners.newPage();
-  await owner.goto(`/land/${parcelId}`);
+  await owner.goto(`/land/${parcelId}/permits`);
   await owner.locator(`[data-permit="${id}"]`).getByTestId('card-link').click();
   await expect(owner.getByTestId('card-holder')).toContainText('Owen');
   await expect(owner.getByTestId('card-qr')).toHaveAttribute('data-token', /^[\w-]+\.[\w-]+\.[\w-]+$/);

@@ -2,7 +2,8 @@ import { and, eq, isNull, sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { loadParcelFacts } from '../../src/db/field.queries';
 import { applyMigrations } from '../../src/db/migrations';
-import { listParcelRules, removeAllowance, saveAllowance } from '../../src/db/parcel-rules.queries';
+import { listingFacts, listParcelRules, removeAllowance, saveAllowance } from '../../src/db/parcel-rules.queries';
+import { listParcelHistory } from '../../src/db/parcel-history.queries';
 import { allowances, limits, parcels, permits, species } from '../../src/db/schema';
 import { AppError } from '../../src/lib/errors';
 import { limitsInForce } from '../../src/lib/field/tallies';
@@ -97,5 +98,43 @@ describe('removing an allowance', () => {
     const permit = facts?.permits.find((p) => p.id === ids.permit) ?? null;
     if (!allowance) throw new Error('the allowance did not come back');
     expect(limitsInForce(allowance, { forager: { id: ids.forager, clubIds: [] }, permit }).map((l) => [l.scope, l.quantity, l.unit, l.fromPermit])).toEqual([['day', '400', 'g', true]]);
+  });
+});
+
+describe("the parcel's history and who may replace what", () => {
+  it('given the changes above, the history names each in words, newest first, for the owner only', async () => {
+    const history = await listParcelHistory(db(), { parcelId: ids.parcel, ownerId: ids.owner });
+    const summaries = history.map((h) => h.summary);
+    // Newest first: allowed again (2027-04-01), removed (2026-09-02), back to grams, to cups, to kg (one day limit each time), first allowed.
+    expect(summaries[0]).toBe('Allowed Golden chanterelle: May 1 – Aug 31; cut above ground; 1,000 g a day.');
+    expect(summaries[1]).toBe('Removed the allowance for Golden chanterelle.');
+    expect(summaries).toContain('Changed the allowance for Golden chanterelle: limit 1,000 g a day → 1 kg a day.');
+    expect(summaries).toContain('Changed the allowance for Golden chanterelle: limit 1 kg a day → 4 US cups a day.');
+    expect(history.every((h) => h.actorName === 'Ona Owner')).toBe(true);
+    expect(await listParcelHistory(db(), { parcelId: ids.parcel, ownerId: ids.forager })).toEqual([]);
+  });
+
+  it('given a species that has an allowance, adding it as new is refused with a 409 naming the allowance, and nothing changes', async () => {
+    const refused = await saveAllowance(db(), { parcelId: ids.parcel, ownerId: ids.owner, allowance: chanterelle([{ scope: 'day', quantity: '5', unit: 'kg' }]), now: new Date('2027-04-02T14:00:00Z'), target: { kind: 'new' } }).catch((e: unknown) => e);
+    expect(refused).toBeInstanceOf(AppError);
+    expect(refused).toMatchObject({ status: 409, code: 'allowance-exists', field: 'speciesId', details: { allowanceId: ids.allowance } });
+    const rules = await listParcelRules(db(), { parcelId: ids.parcel, ownerId: ids.owner });
+    expect(rules.allowances[0]?.limits.map((l) => [l.quantity, l.unit])).toEqual([['1000.000000', 'g']]);
+  });
+
+  it('given an allowance changed in place with no change at all, nothing is added to the history', async () => {
+    const before = (await listParcelHistory(db(), { parcelId: ids.parcel, ownerId: ids.owner })).length;
+    await saveAllowance(db(), { parcelId: ids.parcel, ownerId: ids.owner, allowance: chanterelle([{ scope: 'day', quantity: '1000', unit: 'g' }]), now: new Date('2027-04-03T14:00:00Z'), target: { kind: 'existing', allowanceId: ids.allowance } });
+    expect((await listParcelHistory(db(), { parcelId: ids.parcel, ownerId: ids.owner })).length).toBe(before);
+  });
+
+  it('given another owner, changing the allowance in place finds no parcel', async () => {
+    const other = await saveAllowance(db(), { parcelId: ids.parcel, ownerId: ids.forager, allowance: chanterelle([]), now: new Date('2027-04-03T14:00:00Z'), target: { kind: 'existing', allowanceId: ids.allowance } });
+    expect(other).toBeNull();
+  });
+
+  it('given one allowance and no terms, the listing facts say so; another owner gets none', async () => {
+    expect(await listingFacts(db(), { parcelId: ids.parcel, ownerId: ids.owner })).toEqual({ allowances: 1, hasTerms: false });
+    expect(await listingFacts(db(), { parcelId: ids.parcel, ownerId: ids.forager })).toBeNull();
   });
 });

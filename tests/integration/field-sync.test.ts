@@ -146,7 +146,7 @@ describe('two members offline, each within on the device, together over the club
     const facts = await entryNoticeFacts(db(), { entryId: benEntry });
     expect(facts?.recipients.sort()).toEqual(['owner@sync.test', 'steward@sync.test']);
     const mail = facts ? noticeMail(facts, 'https://tallywood.example') : null;
-    expect(mail).toMatchObject({ purpose: 'over-on-sync', heading: 'Limit went over on sync on Sync Hollow', url: `https://tallywood.example/land/${ids.parcel}` });
+    expect(mail).toMatchObject({ purpose: 'over-on-sync', heading: 'Limit went over on sync on Sync Hollow', url: `https://tallywood.example/land/${ids.parcel}/tallies` });
     expect(mail?.paragraphs[0]).toContain('Ben Member recorded 300 g of Chanterelle');
     expect(mail?.dedupeKey('owner@sync.test')).toBe(`over-on-sync:${benEntry}:owner@sync.test`);
   });

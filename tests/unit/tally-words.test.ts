@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import {
-  formatMonthDay, formatPercent, formatQuantities, formatQuantity, formatSeasonWindow, formatSeasonWindows, stateLabel, stateSymbols, stateWords, tallyStates,
+  formatLimit, formatLimits, formatMonthDay, formatPercent, formatQuantities, formatQuantity, formatSeasonWindow, formatSeasonWindows, stateLabel, stateSymbols, stateWords, tallyStates,
 } from '../../src/lib/tally-words';
 
 /*
@@ -78,5 +78,28 @@ describe('formatQuantities', () => {
   });
   it('given no quantities, it reads as nothing', () => {
     expect(formatQuantities([])).toBe('');
+  });
+});
+
+describe('formatLimit', () => {
+  it('given the stored "1.500000" kg a season, it reads "1.5 kg a season"', () => {
+    expect(formatLimit({ quantity: '1.500000', unit: 'kg', scope: 'season' })).toBe('1.5 kg a season');
+  });
+  it('given 500 g a visit and 1 kg a day, it writes the scope in words', () => {
+    expect(formatLimit({ quantity: '500.000000', unit: 'g', scope: 'visit' })).toBe('500 g a visit');
+    expect(formatLimit({ quantity: '1', unit: 'kg', scope: 'day' })).toBe('1 kg a day');
+  });
+  it('given 1200 plants shared by everyone, it groups thousands and says who shares the limit', () => {
+    expect(formatLimit({ quantity: '1200', unit: 'plant', scope: 'parcel-season' })).toBe('1,200 plants a season for everyone together');
+  });
+  it('given one plant, the unit is singular; given a club cap of 2 US liquid quarts, plural', () => {
+    expect(formatLimit({ quantity: '1.000000', unit: 'plant', scope: 'day' })).toBe('1 plant a day');
+    expect(formatLimit({ quantity: '2', unit: 'us-quart', scope: 'club-season' })).toBe('2 US liquid quarts a season for the whole club');
+  });
+  it('given a limit with six decimals, it keeps every digit rather than rounding it away', () => {
+    expect(formatLimit({ quantity: '0.000250', unit: 'kg', scope: 'visit' })).toBe('0.00025 kg a visit');
+  });
+  it('given two limits, it joins them with "and"', () => {
+    expect(formatLimits([{ quantity: '200', unit: 'g', scope: 'visit' }, { quantity: '50', unit: 'plant', scope: 'season' }])).toBe('200 g a visit and 50 plants a season');
   });
 });

@@ -7,7 +7,8 @@ import { formSchemas, type FormSchemaName } from './form-schemas';
 export type FieldSpec = {
   name: string;
   label: string;
-  kind: 'text' | 'textarea' | 'number' | 'date' | 'select' | 'checkbox' | 'email';
+  /** `money`: an amount in the currency as typed ("12.50"), sent as text and read exactly by the schema. */
+  kind: 'text' | 'textarea' | 'number' | 'date' | 'select' | 'checkbox' | 'email' | 'money';
   options?: { value: string; label: string }[];
   help?: string;
   placeholder?: string;
@@ -78,7 +79,9 @@ export default function SimpleForm({ schema, action, method = 'POST', fields, su
                   </select>
                 ) : (
                   <input
-                    type={f.kind === 'number' ? 'number' : f.kind}
+                    type={f.kind === 'number' ? 'number' : f.kind === 'money' ? 'text' : f.kind}
+                    inputMode={f.kind === 'money' ? 'decimal' : undefined}
+                    autoComplete={f.kind === 'money' ? 'off' : undefined}
                     step={f.kind === 'number' ? 'any' : undefined}
                     className="field-input"
                     placeholder={f.placeholder}

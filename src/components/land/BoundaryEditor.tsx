@@ -183,7 +183,9 @@ export default function BoundaryEditor({ mode, parcelId, tiles, initial, context
                 <input className="field-input" value={fields.timeZone} onChange={(e) => setFields({ ...fields, timeZone: e.target.value })} /></label>
               <label className="text-sm font-semibold">Warn at this share of a limit (%)
                 <input type="number" min={1} max={100} className="field-input" value={fields.nearingThresholdPercent} onChange={(e) => setFields({ ...fields, nearingThresholdPercent: Number(e.target.value) })} /></label>
-              <label className="flex items-center gap-2 text-sm font-semibold"><input type="checkbox" checked={fields.openToRequests} onChange={(e) => setFields({ ...fields, openToRequests: e.target.checked })} /> Foragers may ask for access</label>
+              <p className="text-sm text-loam-700 sm:col-span-2">
+                Foragers can ask for access once the parcel has at least one allowance (what may be taken) and terms; you open it to requests in its settings after that.
+              </p>
               <label className="text-sm font-semibold sm:col-span-2">Description
                 <textarea className="field-input" rows={2} value={fields.description} onChange={(e) => setFields({ ...fields, description: e.target.value })} /></label>
             </>

@@ -1,17 +1,8 @@
-import { db } from '../../../../../db';
-import { saveAllowance } from '../../../../../db/parcel-rules.queries';
-import { findSpecies } from '../../../../../db/species.queries';
-import { invalidInput, notFound } from '../../../../../lib/errors';
-import { allowanceSchema } from '../../../../../lib/land.schemas';
-import { endpoint, json, readJson } from '../../../../../server/http';
-import { ownedParcel } from '../../../../../server/parcel-access';
+import { endpoint, json } from '../../../../../server/http';
+import { saveAllowanceRequest } from '../../../../../server/allowance-requests';
 
-/** Sets the harvest terms of one species on the parcel: seasons, methods and limits. */
-export const PUT = endpoint(async ({ locals, params, request }) => {
-  const { actor, parcelId } = await ownedParcel(locals, params);
-  const allowance = await readJson(request, allowanceSchema);
-  if (!(await findSpecies(db, { speciesId: allowance.speciesId }))) throw invalidInput('speciesId', 'That species is not in the catalogue.');
-  const row = await saveAllowance(db, { parcelId, ownerId: actor.id, allowance, now: new Date() });
-  if (!row) throw notFound('Parcel');
-  return json({ allowance: row });
-});
+/** Adds the allowance of a species the parcel does not allow yet; one that has an allowance is a 409 naming it. */
+export const POST = endpoint(async ({ locals, params, request }) => json({ allowance: await saveAllowanceRequest(locals, params, request, { kind: 'new' }) }, 201));
+
+/** Sets the harvest terms of one species on the parcel (creating or replacing them): seasons, methods and limits. */
+export const PUT = endpoint(async ({ locals, params, request }) => json({ allowance: await saveAllowanceRequest(locals, params, request, { kind: 'any' }) }));
