@@ -67,6 +67,9 @@ describe('signUpSchema', () => {
       email: 'ruth.alder@example.org',
       name: 'Ruth Alder',
       managesLand: true,
+      // Left out, the land a landowner claims and their note read as nothing said.
+      claimedLand: null,
+      signUpNote: null,
     });
   });
 
