@@ -4,7 +4,8 @@ import { registerRoute } from 'workbox-routing';
 import { CacheFirst, NetworkFirst } from 'workbox-strategies';
 import { ExpirationPlugin } from 'workbox-expiration';
 import { CacheableResponsePlugin } from 'workbox-cacheable-response';
-import { backgroundSyncTag, fieldSentMessage, sendAllWaiting } from './components/field/sync';
+import { fieldSentMessage } from './components/field/offline-store';
+import { backgroundSyncTag, sendAllWaiting } from './components/field/sync';
 
 /**
  * Tallywood's service worker, built by vite-plugin-pwa (injectManifest) with Workbox's modules.

@@ -3,16 +3,19 @@ import ParcelMap, { type MapFeature, type ParcelMapProps } from '../map/ParcelMa
 import type { CheckInAnswer } from '../../lib/field/types';
 import { offlineCheckIn, packMaxAgeDays, packTiles, type CountedEntry, type FieldPack, type PositionSource } from '../../lib/field/pack';
 import { sendJson } from '../api-client';
-import { offlineRecorder, onlineRecorder } from './recorders';
+import type { RecorderSpec } from './HarvestPanel';
 import SpeciesTallies from './SpeciesTallies';
 import VerdictPanel, { type OfflineNote } from './VerdictPanel';
-import { queuedRecords, savedPack, savePack, type QueuedRecord } from './offline-store';
-import { fieldSentMessage, keepForSending, sendWaiting } from './sync';
-import QueueList from './QueueList';
+import { fieldSentMessage, queuedRecords, savedPack, savePack, type QueuedRecord } from './offline-store';
+
+/** Sending what the phone kept is loaded when there is something to send or keep, not with the page. */
+const sync = () => import('./sync');
 import PackStatus from './PackStatus';
 
 // Not needed for the first verdict, so loaded when a verdict shows them (the service worker keeps them for offline use).
-const HarvestForm = lazy(() => import('./HarvestForm'));
+const HarvestPanel = lazy(() => import('./HarvestPanel'));
+/** Loaded once the phone holds an entry to list. */
+const QueueList = lazy(() => import('./QueueList'));
 const ParcelNotes = lazy(() => import('./ParcelNotes'));
 
 type Answer = CheckInAnswer & { visitId: string | null; offline: OfflineNote | null };
@@ -95,7 +98,8 @@ export default function FieldApp({ tiles, parcels, userId }: { tiles: ParcelMapP
   }
 
   async function sendNow({ told }: { told: boolean }) {
-    const outcome = await sendWaiting(userId);
+    if (!told && !(await queuedRecords(userId)).some((r) => r.state === 'waiting')) return 0;
+    const outcome = await (await sync()).sendWaiting(userId);
     await reloadQueue();
     const answered = outcome.sent + outcome.flagged + outcome.refused;
     if (told && outcome.problem) setProblem(outcome.problem);
@@ -164,7 +168,7 @@ export default function FieldApp({ tiles, parcels, userId }: { tiles: ParcelMapP
       setAnswer({ ...(result.data as CheckInAnswer & { visitId: string | null }), offline: null });
     } else if (!result || result.error.code === 'offline') {
       if (pack) {
-        await keepForSending(userId, { kind: 'check-in', idempotencyKey: crypto.randomUUID(), recordedAt: new Date().toISOString(), position: { longitude: body.longitude, latitude: body.latitude, accuracyM: body.accuracyM, source: body.source }, packAsOf: pack.asOf, state: 'waiting', summary: 'Check-in' });
+        await (await sync()).keepForSending(userId, { kind: 'check-in', idempotencyKey: crypto.randomUUID(), recordedAt: new Date().toISOString(), position: { longitude: body.longitude, latitude: body.latitude, accuracyM: body.accuracyM, source: body.source }, packAsOf: pack.asOf, state: 'waiting', summary: 'Check-in' });
       }
       await decideOffline(next, await reloadQueue());
     } else {
@@ -207,15 +211,18 @@ export default function FieldApp({ tiles, parcels, userId }: { tiles: ParcelMapP
     }
   }
 
-  const recorder = useMemo(() => {
+  const recorder = useMemo((): RecorderSpec | null => {
     if (!answer || answer.verdict !== 'clear' || !answer.parcel || !fix) return null;
-    if (!answer.offline) return answer.visitId ? onlineRecorder(answer.visitId) : null;
+    if (!answer.offline) return answer.visitId ? { offline: false, visitId: answer.visitId } : null;
     if (!pack) return null;
-    return offlineRecorder({
-      userId, pack, parcelId: answer.parcel.id, permitId: answer.permitId,
-      position: { longitude: fix.at[0], latitude: fix.at[1], accuracyM: fix.accuracyM, source: fix.source },
-      counted: () => countedNow(queue, pack),
-    });
+    return {
+      offline: true,
+      spot: {
+        userId, pack, parcelId: answer.parcel.id, permitId: answer.permitId,
+        position: { longitude: fix.at[0], latitude: fix.at[1], accuracyM: fix.accuracyM, source: fix.source },
+        counted: () => countedNow(queue, pack),
+      },
+    };
   }, [answer, pack, fix, queue, userId]);
 
   // The map: the pack's parcels and their no-harvest zones when the phone has them, else the page's parcels.
@@ -244,7 +251,7 @@ export default function FieldApp({ tiles, parcels, userId }: { tiles: ParcelMapP
           <>
             <VerdictPanel ref={verdictRef} answer={answer} offline={answer.offline} />
             <Suspense fallback={<p className="card text-sm text-loam-700">Loading the harvest form…</p>}>
-              {recorder && <HarvestForm key={`${answer.visitId ?? 'offline'}|${answer.parcel?.id}`} recorder={recorder} species={answer.species} onSaved={(words) => void saved(words)} />}
+              {recorder && <HarvestPanel key={`${answer.visitId ?? 'offline'}|${answer.parcel?.id}`} spec={recorder} species={answer.species} onSaved={(words) => void saved(words)} />}
             </Suspense>
             {answer.verdict === 'clear' && <SpeciesTallies species={answer.species} />}
             <Suspense fallback={null}>
@@ -275,7 +282,11 @@ export default function FieldApp({ tiles, parcels, userId }: { tiles: ParcelMapP
           testId="field-map"
           onPick={(at) => setTapped(at)}
         />
-        <QueueList queue={queue} waiting={waiting} onSend={() => void sendNow({ told: true })} />
+        {queue.some((r) => r.kind === 'entry') && (
+          <Suspense fallback={null}>
+            <QueueList queue={queue} waiting={waiting} onSend={() => void sendNow({ told: true })} />
+          </Suspense>
+        )}
       </div>
     </div>
   );

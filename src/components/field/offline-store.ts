@@ -7,6 +7,9 @@ import type { CountedEntry, FieldPack, QueuedCheckIn, QueuedEntry } from '../../
  * never deleted by sending it; it stays, with its state, as the device's own log of the day.
  */
 
+/** What the service worker tells open pages after a background send, so they show the new states. */
+export const fieldSentMessage = 'tallywood-field-sent';
+
 export type QueueState = 'waiting' | 'sent' | 'flagged' | 'refused';
 
 export type QueuedRecord = (QueuedEntry | QueuedCheckIn) & {

@@ -30,9 +30,6 @@ export type SendOutcome = { sent: number; flagged: number; refused: number; prob
 /** The tag of the background sync the service worker answers (src/sw.ts). */
 export const backgroundSyncTag = 'tallywood-field-sync';
 
-/** What the service worker tells open pages after a background send, so they show the new states. */
-export const fieldSentMessage = 'tallywood-field-sent';
-
 /**
  * Keeps a record made on the device, then asks the browser to send what waits as soon as it has a
  * connection, even with Tallywood closed (Background Sync, where the browser has it; elsewhere the
