@@ -129,11 +129,28 @@ test('given a steward, a new member and a landowner, the club permit, a breach, 
   await expect(report.getByTestId('breaches')).toHaveText('1');
   await expect(report.getByTestId('visits')).toHaveText('1');
   await expect(report).toContainText('Reminded of the 1 kg day limit');
+  // The season once as a heading, a row for the species taken with its total.
+  await expect(report.getByRole('heading', { name: /^Season [A-Z][a-z]{2} \d/ })).toHaveCount(1);
+  await expect(report.locator('[data-species="Oyster mushroom"]').getByTestId('taken')).toHaveText('1.2 kg');
+  await report.locator('[data-hydrated="true"]').waitFor();
   await report.getByRole('button', { name: 'Send to the landowner by e-mail' }).click();
+  // The page says it went, and to whom, without leaving it.
+  await expect(report.getByTestId('report-sent')).toHaveText('Sent to Walter Pelletier (landowner@example.org), with the CSV attached; a copy went to you (steward@example.org).');
   await expect
     .poll(async () => (await mailFor(steward.request, 'landowner@example.org')).some((m) => m.subject === `Season report for ${parcelName} from ${clubName}`))
     .toBe(true);
   const mail = (await mailFor(steward.request, 'landowner@example.org')).find((m) => m.subject === `Season report for ${parcelName} from ${clubName}`);
   expect(mail?.text).toContain('1 breach,');
+  expect(mail?.text).toContain('Oyster mushroom (Pleurotus ostreatus): 1.2 kg taken, 1 entry by 1 forager');
+  // The CSV rides along: parsed back, its tally record for the day limit says 1.2 of 1 kg, 120 %, over (worked in the header).
+  const [file] = mail?.attachments ?? [];
+  expect(file?.filename).toMatch(/^season-report-stewardship-lot-\d+-\d{4}-\d{2}-\d{2}\.csv$/);
+  expect(file?.contentType).toBe('text/csv');
+  const rows = Buffer.from(file?.contentBase64 ?? '', 'base64').toString('utf8').trim().split('\r\n').map((line) => line.split(','));
+  const [head, ...records] = rows;
+  const col = (name: string) => (head ?? []).indexOf(name);
+  const day = records.find((r) => r[col('section')] === 'tally' && r[col('scope')] === 'day');
+  expect([day?.[col('species')], day?.[col('limit')], day?.[col('unit')], day?.[col('used')], day?.[col('percent')], day?.[col('state')]]).toEqual(['Oyster mushroom', '1', 'kg', '1.2', '120', 'over']);
+  expect(records.filter((r) => r[col('section')] === 'breach')).toHaveLength(1);
   await steward.context().close();
 });
