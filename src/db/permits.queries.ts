@@ -35,6 +35,8 @@ const permitColumns = {
   holderEmail: holderUser.email,
   clubName: clubs.name,
   currentTermsId: sql<string | null>`(select t.id from terms t where t.parcel_id = permits.parcel_id order by t.version desc limit 1)`,
+  currentTermsVersion: sql<number | null>`(select t.version from terms t where t.parcel_id = permits.parcel_id order by t.version desc limit 1)`,
+  acceptedTermsVersion: sql<number | null>`(select t.version from terms t where t.id = permits.accepted_terms_id)`,
 };
 
 function permitsWithHolders(db: Executor) {

@@ -13,6 +13,18 @@ export const flagKinds: FlagKind[] = ['breach', 'nearing', 'over-on-sync', 'off-
 
 export const flagKindWords: Record<FlagKind, string> = { breach: 'Breach', nearing: 'Nearing', 'over-on-sync': 'Over on sync', 'off-permit': 'Off permit' };
 
+/**
+ * The word a flag's title starts with. It follows the worst state the entry took a tally to, so a
+ * nearing flag whose worst tally is reached reads "Reached", never "Nearing"; the other kinds say
+ * how they came about.
+ */
+export function flagTitleWord(kind: FlagKind, worstState: string): string {
+  if (kind !== 'nearing') return flagKindWords[kind] ?? kind;
+  if (worstState === 'over') return 'Over';
+  if (worstState === 'reached') return 'Reached';
+  return flagKindWords.nearing;
+}
+
 /** One line under each flag's title, saying what the kind means. */
 export const flagKindMeanings: Record<FlagKind, string> = {
   breach: 'Took a limit over; the forager confirmed going over.',

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { flagTallyLine, memberNoteMail } from '../../src/lib/flag-words';
+import { flagTallyLine, flagTitleWord, memberNoteMail } from '../../src/lib/flag-words';
 
 /* The words of a follow-up e-mail to the forager whose entry was flagged. Figures worked by hand. */
 
@@ -31,5 +31,19 @@ describe('memberNoteMail', () => {
   it('given a nearing flag, it says where the tallies stood instead', () => {
     const mail = memberNoteMail({ ...facts, kind: 'nearing', tallies: [{ scope: 'day', state: 'nearing', used: '450', limit: '500', unit: 'g', percent: 90 }] }, 'Nearly at the day limit.');
     expect(mail.paragraphs[2]).toBe('Where it stood: 450 g of 500 g per day (90 %), ◑ nearing.');
+  });
+});
+
+describe('flagTitleWord', () => {
+  it('given a nearing flag whose worst tally is reached, the title says "Reached", not "Nearing"', () => {
+    expect(flagTitleWord('nearing', 'reached')).toBe('Reached');
+  });
+  it('given a nearing flag whose worst tally is only nearing, the title says "Nearing"', () => {
+    expect(flagTitleWord('nearing', 'nearing')).toBe('Nearing');
+  });
+  it('given a breach or a flag raised on sync, the title says how it came about', () => {
+    expect(flagTitleWord('breach', 'over')).toBe('Breach');
+    expect(flagTitleWord('over-on-sync', 'over')).toBe('Over on sync');
+    expect(flagTitleWord('off-permit', 'within')).toBe('Off permit');
   });
 });

@@ -7,7 +7,7 @@ import type { FlagNoteView, FlagView } from '../../db/flags.queries';
 import { flagNoteSchema } from '../../lib/clubs.schemas';
 import { formatDate, formatInstantIn } from '../../lib/format';
 import { formatQuantities } from '../../lib/tally-words';
-import { flagKindMeanings, flagKindWords } from '../../lib/flag-words';
+import { flagKindMeanings, flagTitleWord } from '../../lib/flag-words';
 import { postJson, sendJson } from '../api-client';
 import { flagScopeLabels, formatUsage, isTallyState, stateSymbols, stateTones, stateWords } from './audit-view';
 
@@ -75,7 +75,7 @@ function FlagItem({ flag, onRecorded }: { flag: FlagView; onRecorded: () => Prom
     <li className={`card ${flag.kind !== 'nearing' && !flag.handled ? 'border-2 border-ember-600' : ''}`} data-flag={flag.id} data-kind={flag.kind} data-handled={flag.handled ? 'true' : 'false'}>
       <div className="flex flex-wrap items-baseline justify-between gap-2">
         <h3 id={`${id}-title`} className="text-base font-semibold">
-          {flagKindWords[flag.kind] ?? flag.kind}: {flag.commonName} on {flag.parcelName}
+          {flagTitleWord(flag.kind, flag.worstState)}: {flag.commonName} on {flag.parcelName}
         </h3>
         <span className={`pill ${flag.handled ? 'border-moss-400 text-moss-800' : 'border-2 border-ember-600 text-ember-700'}`} data-status={flag.handled ? 'handled' : 'open'}>
           <span aria-hidden="true">{flag.handled ? '✓ ' : '! '}</span>{flag.handled ? 'handled' : 'open'}
