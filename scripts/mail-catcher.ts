@@ -8,7 +8,9 @@ import { simpleParser } from 'mailparser';
 import { SMTPServer } from 'smtp-server';
 import { localRequestProblem } from './lib/local-fake.mjs';
 
-type Caught = { id: string; from: string; to: string[]; subject: string; date: string; text: string; html: string | null };
+/** An attachment as it arrived: its bytes in base64, so any file survives the JSON store. */
+type Attachment = { filename: string; contentType: string; size: number; contentBase64: string };
+type Caught = { id: string; from: string; to: string[]; subject: string; date: string; text: string; html: string | null; attachments: Attachment[] };
 
 const smtpPort = Number(process.env.MAIL_CATCHER_SMTP_PORT ?? 2525);
 const httpPort = Number(process.env.MAIL_CATCHER_HTTP_PORT ?? 2580);
@@ -45,6 +47,7 @@ const smtp = new SMTPServer({
             date: (mail.date ?? new Date()).toISOString(),
             text: mail.text ?? '',
             html: typeof mail.html === 'string' ? mail.html : null,
+            attachments: mail.attachments.map((a) => ({ filename: a.filename ?? 'attachment', contentType: a.contentType, size: a.size, contentBase64: a.content.toString('base64') })),
           },
           ...messages,
         ].slice(0, keep);

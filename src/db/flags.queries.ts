@@ -95,3 +95,27 @@ export async function addFlagNote(db: Executor, { flagId, authorId, note, handle
   const [row] = await db.insert(flagNotes).values({ flagId, authorId, note: note.trim(), handled, createdAt: now }).returning();
   return row;
 }
+
+/**
+ * What a follow-up e-mail to the flagged forager says: the flag's facts, the forager's address, and
+ * who is writing (the landowner, or a steward of the club it was raised under). Null for an unknown flag.
+ */
+export async function flagMemberFacts(db: Executor, { flagId, authorId }: { flagId: string; authorId: string }) {
+  const [row] = await db.execute<{
+    kind: FlagKind; worst_state: FlagView['worstState']; tallies: FlaggedTally[]; parcel_name: string; species: string; counted_on: string;
+    quantities: { quantity: string; unit: string }[]; forager_email: string; forager_name: string; author_name: string; club_name: string | null; author_is_owner: boolean;
+  }>(sql`
+    select f.kind, f.worst_state, f.tallies, p.name as parcel_name, s.common_name as species, e.counted_on::text,
+      (select json_agg(json_build_object('quantity', trim_scale(q.quantity)::text, 'unit', q.unit) order by q.measure) from harvest_quantities q where q.entry_id = e.id) as quantities,
+      u.email as forager_email, coalesce(u.name, u.email) as forager_name,
+      (select coalesce(a.name, a.email) from users a where a.id = ${authorId}) as author_name,
+      (select c.name from permits pm join clubs c on c.id = pm.holder_club_id where pm.id = f.permit_id) as club_name,
+      p.owner_id = ${authorId} as author_is_owner
+    from flags f join parcels p on p.id = f.parcel_id join species s on s.id = f.species_id join users u on u.id = f.forager_id join harvest_entries e on e.id = f.entry_id
+    where f.id = ${flagId}::uuid`);
+  if (!row) return null;
+  return {
+    kind: row.kind, worstState: row.worst_state, tallies: row.tallies, parcelName: row.parcel_name, species: row.species, countedOn: row.counted_on, quantities: row.quantities,
+    foragerEmail: row.forager_email, foragerName: row.forager_name, authorName: row.author_name, author: row.author_is_owner ? 'the landowner' : `a steward of ${row.club_name ?? 'the club'}`,
+  };
+}

@@ -92,6 +92,9 @@ export async function findPaymentNotice(db: Executor, { paymentId }: { paymentId
       startsOn: permits.startsOn,
       endsOn: permits.endsOn,
       parcelName: parcels.name,
+      parcelId: parcels.id,
+      ownerEmail: sql<string>`(select u.email from users u where u.id = ${parcels.ownerId})`,
+      clubName: sql<string | null>`(select c.name from clubs c where c.id = ${permits.holderClubId})`,
     })
     .from(payments)
     .innerJoin(users, eq(users.id, payments.payerId))

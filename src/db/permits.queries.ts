@@ -2,6 +2,9 @@ import { and, asc, desc, eq, inArray, or, sql, type SQL } from 'drizzle-orm';
 import { alias } from 'drizzle-orm/pg-core';
 import type { Executor } from './client';
 import { allowances, clubs, limits, parcels, permitEvents, permits, species, terms, users } from './schema';
+import type { LimitScope } from '../lib/field/types';
+import type { NamedLimit } from '../lib/limit-changes';
+import type { Unit } from '../lib/units';
 
 const holderUser = alias(users, 'holder_user');
 const actor = alias(users, 'actor');
@@ -32,6 +35,8 @@ const permitColumns = {
   holderEmail: holderUser.email,
   clubName: clubs.name,
   currentTermsId: sql<string | null>`(select t.id from terms t where t.parcel_id = permits.parcel_id order by t.version desc limit 1)`,
+  currentTermsVersion: sql<number | null>`(select t.version from terms t where t.parcel_id = permits.parcel_id order by t.version desc limit 1)`,
+  acceptedTermsVersion: sql<number | null>`(select t.version from terms t where t.id = permits.accepted_terms_id)`,
 };
 
 function permitsWithHolders(db: Executor) {
@@ -102,6 +107,9 @@ export async function permitContacts(db: Executor, { permitId }: { permitId: str
         else coalesce((select array_agg(u.email) from club_memberships m join users u on u.id = m.user_id
           where m.club_id = permits.holder_club_id and m.role = 'steward' and m.state = 'active'), '{}') end`,
       holderName: sql<string | null>`coalesce((select u.name from users u where u.id = permits.holder_user_id), (select c.name from clubs c where c.id = permits.holder_club_id))`,
+      isClub: sql<boolean>`permits.holder_club_id is not null`,
+      feeMinor: permits.feeMinor,
+      currency: permits.currency,
     })
     .from(permits)
     .innerJoin(parcels, eq(parcels.id, permits.parcelId))
@@ -119,4 +127,29 @@ export async function listPermitLimits(db: Executor, { permitIds }: { permitIds:
     .innerJoin(species, eq(species.id, allowances.speciesId))
     .where(inArray(limits.permitId, permitIds))
     .orderBy(asc(species.commonName));
+}
+
+/**
+ * Every limit that applies to the approved and active permits on one of the owner's parcels (or to
+ * one of them): the parcel's own and each permit's tighter ones, by species. What a limit notice
+ * compares before and after a change.
+ */
+export async function listPermitsBindingLimits(db: Executor, { parcelId, ownerId, permitId }: { parcelId: string; ownerId: string; permitId?: string }) {
+  const rows = await db.execute<{ permit_id: string; species_name: string; scope: LimitScope; quantity: string; unit: Unit }>(sql`
+    select p.id as permit_id, s.common_name as species_name, l.scope, l.quantity::text as quantity, l.unit
+    from permits p
+    join parcels pa on pa.id = p.parcel_id and pa.owner_id = ${ownerId}
+    join allowances a on a.parcel_id = p.parcel_id and a.removed_at is null
+    join species s on s.id = a.species_id
+    join limits l on l.allowance_id = a.id and (l.permit_id is null or l.permit_id = p.id)
+    where p.parcel_id = ${parcelId}::uuid and p.state in ('approved', 'active')
+      ${permitId ? sql`and p.id = ${permitId}::uuid` : sql``}
+      and (l.scope <> 'club-season' or p.holder_club_id is not null)`);
+  const byPermit = new Map<string, NamedLimit[]>();
+  for (const r of rows) {
+    const list = byPermit.get(r.permit_id) ?? [];
+    list.push({ speciesName: r.species_name, scope: r.scope, quantity: r.quantity, unit: r.unit });
+    byPermit.set(r.permit_id, list);
+  }
+  return byPermit;
 }

@@ -1,19 +1,14 @@
 import { sql } from 'drizzle-orm';
 import { localDateAt, scopeOrder, seasonAsOf, talliesFor } from '../lib/field';
-import type { LimitScope, Tally } from '../lib/field/types';
+import type { Tally } from '../lib/field/types';
+import { reportBasisWords } from '../lib/tally-words';
 import { addDecimals, baseUnits, fromBase, measures, units, type Measure, type Unit } from '../lib/units';
 import { auditTallies, isClubScope, loadAuditParcels, type AuditScope } from './audit.queries';
 import type { Executor } from './client';
 import { listFlags, type FlagView } from './flags.queries';
 
-/** How a tally in the report is read: the busiest visit or day, the highest forager, everyone on the parcel, the club. */
-export const reportBasis: Record<LimitScope, string> = {
-  visit: 'busiest visit',
-  day: 'busiest day',
-  season: 'highest forager',
-  'parcel-season': 'everyone on the parcel',
-  'club-season': 'the club',
-};
+/** How a tally in the report is read (src/lib/tally-words.ts). */
+export const reportBasis = reportBasisWords;
 
 export type SeasonReportSpecies = {
   speciesId: string;

@@ -17,6 +17,8 @@ export const answerMembershipSchema = z.object({ action: z.enum(['accept', 'decl
 export const flagNoteSchema = z.object({
   note: z.string().trim().min(1, 'Write what was done or agreed.').max(2000, 'Keep the note under 2,000 characters.'),
   handled: z.boolean().default(false),
+  /** Also e-mail the note to the forager whose entry was flagged, with the flag's facts. */
+  sendToMember: z.boolean().default(false),
 });
 
 /** `asOf`: the date whose season is audited (the season in progress then, or the last one ended). */

@@ -1,5 +1,7 @@
 import { formatDay } from './field/words';
-import { formatQuantities } from './tally-words';
+import type { LimitScope, TallyState } from './field/types';
+import { formatAmount, formatPercent, formatQuantities, formatQuantity, limitScopeWords, stateLabel, unitAfter } from './tally-words';
+import { subtractDecimals } from './units';
 
 /**
  * The words of each kind of flag, on the flags lists and in the e-mail that tells the landowner (and
@@ -10,6 +12,18 @@ export type FlagKind = 'breach' | 'nearing' | 'over-on-sync' | 'off-permit';
 export const flagKinds: FlagKind[] = ['breach', 'nearing', 'over-on-sync', 'off-permit'];
 
 export const flagKindWords: Record<FlagKind, string> = { breach: 'Breach', nearing: 'Nearing', 'over-on-sync': 'Over on sync', 'off-permit': 'Off permit' };
+
+/**
+ * The word a flag's title starts with. It follows the worst state the entry took a tally to, so a
+ * nearing flag whose worst tally is reached reads "Reached", never "Nearing"; the other kinds say
+ * how they came about.
+ */
+export function flagTitleWord(kind: FlagKind, worstState: string): string {
+  if (kind !== 'nearing') return flagKindWords[kind] ?? kind;
+  if (worstState === 'over') return 'Over';
+  if (worstState === 'reached') return 'Reached';
+  return flagKindWords.nearing;
+}
 
 /** One line under each flag's title, saying what the kind means. */
 export const flagKindMeanings: Record<FlagKind, string> = {
@@ -73,5 +87,52 @@ export function noticeMail(f: NoticeFacts, origin: string): NoticeMail | null {
     purpose: 'breach', url, dedupeKey: (to) => `breach:${f.entryId}:${to}`,
     heading: `Limit breached on ${f.parcelName}`,
     paragraphs: [`${what} They confirmed it knowingly; the entry is flagged as a breach.`, follow],
+  };
+}
+
+/** A tally as a flag keeps it: as it stood after the flagged entry, in its limit's unit. */
+export type FlagTallyFacts = { scope: string; state: string; used: string; limit: string; unit: string; percent: number };
+
+const scopeWords = (scope: string) => limitScopeWords[scope as LimitScope] ?? scope;
+
+/**
+ * How far each tally of a flag went: "0.2 kg over the limit of 1 kg per day (1.2 kg counted)" for one
+ * over; "0.85 kg of 1 kg per day (85 %), ◑ nearing" for the others.
+ */
+export function flagTallyLine(t: FlagTallyFacts): string {
+  const limit = `${formatQuantity({ quantity: t.limit, unit: t.unit })} ${scopeWords(t.scope)}`;
+  if (t.state === 'over') {
+    const over = subtractDecimals(t.used, t.limit);
+    return `${formatAmount(over)} ${unitAfter(over, t.unit)} over the limit of ${limit} (${formatQuantity({ quantity: t.used, unit: t.unit })} counted)`;
+  }
+  const state = ['within', 'nearing', 'reached', 'over'].includes(t.state) ? stateLabel(t.state as TallyState) : t.state;
+  return `${formatQuantity({ quantity: t.used, unit: t.unit })} of ${limit} (${formatPercent(t.percent)}), ${state}`;
+}
+
+export type MemberNoteFacts = {
+  kind: FlagKind;
+  tallies: FlagTallyFacts[];
+  parcelName: string;
+  species: string;
+  /** The parcel-local day the entry counts on. */
+  countedOn: string;
+  quantities: { quantity: string; unit: string }[];
+  authorName: string;
+  /** "the landowner" or "a steward of Three Ridges Foraging Society". */
+  author: string;
+};
+
+/** The e-mail that carries a follow-up note to the forager whose entry was flagged, with the flag's facts. */
+export function memberNoteMail(f: MemberNoteFacts, note: string): { heading: string; paragraphs: string[] } {
+  const over = f.tallies.filter((t) => t.state === 'over');
+  const shown = over.length > 0 ? over : f.tallies;
+  return {
+    heading: `A note about your ${f.species} entry on ${f.parcelName}`,
+    paragraphs: [
+      `${f.authorName}, ${f.author}, wrote about your entry of ${formatQuantities(f.quantities)} of ${f.species} on ${f.parcelName}, counted on ${formatDay(f.countedOn)} (flagged: ${flagKindWords[f.kind].toLowerCase()}):`,
+      `"${note}"`,
+      ...(shown.length > 0 ? [`${over.length > 0 ? 'How much over' : 'Where it stood'}: ${shown.map(flagTallyLine).join('; ')}.`] : []),
+      'The ledger keeps your entry as it is; if it was recorded wrongly, add a correction in My ledger. Answer them directly, not to this e-mail.',
+    ],
   };
 }

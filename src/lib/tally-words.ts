@@ -33,6 +33,11 @@ export const auditScopeWords: Record<LimitScope, string> = {
   visit: 'busiest visit', day: 'busiest day', season: 'season', 'parcel-season': 'everyone', 'club-season': 'club',
 };
 
+/** How a season report reads each scope's tally: the busiest visit or day, the highest forager, everyone on the parcel, the club. */
+export const reportBasisWords: Record<LimitScope, string> = {
+  visit: 'busiest visit', day: 'busiest day', season: 'highest forager', 'parcel-season': 'everyone on the parcel', 'club-season': 'the club',
+};
+
 /** What a limit of each scope is, in words: "1 kg per day". */
 export const limitScopeWords: Record<LimitScope, string> = {
   visit: 'per visit', day: 'per day', season: 'per forager per season', 'parcel-season': 'for everyone per season', 'club-season': 'for the club per season',

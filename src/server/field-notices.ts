@@ -1,6 +1,7 @@
 import { db } from '../db';
 import { entryNoticeFacts } from '../db/field-notices.queries';
-import { noticeMail } from '../lib/flag-words';
+import { flagMemberFacts } from '../db/flags.queries';
+import { memberNoteMail, noticeMail } from '../lib/flag-words';
 import { mailHtml, sendMail } from './mail';
 
 /**
@@ -26,5 +27,28 @@ export async function noticeBreach({ entryId, origin }: { entryId: string; origi
     } catch (error) {
       console.error(`could not send ${mail.purpose} mail to ${to}:`, error);
     }
+  }
+}
+
+/**
+ * Sends a follow-up note to the forager whose entry was flagged, with the flag's facts (species,
+ * parcel, the parcel-local day, how much over). Answers the forager's name, or null when nothing was
+ * sent; a failed send is logged and never undoes the note.
+ */
+export async function sendFlagNoteToMember({ flagId, authorId, note, origin }: { flagId: string; authorId: string; note: string; origin: string }): Promise<string | null> {
+  const facts = await flagMemberFacts(db, { flagId, authorId });
+  if (!facts) return null;
+  const { heading, paragraphs } = memberNoteMail(facts, note.trim());
+  const url = `${origin}/ledger`;
+  try {
+    await sendMail({
+      purpose: 'flag-note', to: facts.foragerEmail, subject: heading,
+      text: `${heading}\n\n${paragraphs.join('\n\n')}\n\nOpen My ledger: ${url}\n`,
+      html: mailHtml({ heading, paragraphs, action: { label: 'Open My ledger', url } }),
+    });
+    return facts.foragerName;
+  } catch (error) {
+    console.error(`could not send the flag note for flag ${flagId}:`, error);
+    return null;
   }
 }

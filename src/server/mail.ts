@@ -27,14 +27,17 @@ const transport = nodemailer.createTransport(
   SMTP_URL ?? { host: '127.0.0.1', port: MAIL_CATCHER_SMTP_PORT, secure: false, ignoreTLS: true },
 );
 
-export type Mail = { purpose: string; to: string; subject: string; text: string; html: string; clientAddress?: string | null; dedupeKey?: string };
+/** A file sent with a mail (a report's CSV): its name, type and text. */
+export type MailAttachment = { filename: string; contentType: string; content: string };
+
+export type Mail = { purpose: string; to: string; subject: string; text: string; html: string; clientAddress?: string | null; dedupeKey?: string; attachments?: MailAttachment[] };
 
 /** Sends one e-mail and keeps a record of it. A mail with a `dedupeKey` recorded before is not sent again. */
 export async function sendMail(mail: Mail) {
   const id = await recordMail(db, { purpose: mail.purpose, toAddress: mail.to, subject: mail.subject, clientAddress: mail.clientAddress ?? null, dedupeKey: mail.dedupeKey ?? null });
   if (!id) return;
   try {
-    await transport.sendMail({ from: MAIL_FROM, to: mail.to, subject: mail.subject, text: mail.text, html: mail.html });
+    await transport.sendMail({ from: MAIL_FROM, to: mail.to, subject: mail.subject, text: mail.text, html: mail.html, attachments: mail.attachments });
     await markMail(db, { id, now: new Date() });
   } catch (error) {
     await markMail(db, { id, error: String(error), now: new Date() });

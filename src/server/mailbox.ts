@@ -1,7 +1,9 @@
 import { LOCAL_FAKES_TOKEN, MAIL_CATCHER_HTTP_URL } from 'astro:env/server';
 import { AppError } from '../lib/errors';
 
-export type CaughtMail = { id: string; from: string; to: string[]; subject: string; date: string; text: string; html: string | null };
+/** An attachment the catcher kept, its bytes in base64. */
+export type CaughtAttachment = { filename: string; contentType: string; size: number; contentBase64: string };
+export type CaughtMail = { id: string; from: string; to: string[]; subject: string; date: string; text: string; html: string | null; attachments?: CaughtAttachment[] };
 
 /** Reads the local mail catcher's messages (only meaningful while it is the transport). */
 export async function listCaughtMail(to?: string | null): Promise<CaughtMail[]> {

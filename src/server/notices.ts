@@ -1,5 +1,7 @@
 import { db } from '../db';
 import { permitContacts } from '../db/permits.queries';
+import { formatMoney } from '../lib/format';
+import { limitChangeLine, tightenedLimits, type NamedLimit } from '../lib/limit-changes';
 import { mailHtml, sendMail } from './mail';
 
 /**
@@ -35,8 +37,15 @@ export async function noticeDecision({ permitId, origin, approved, message }: { 
   const c = await permitContacts(db, { permitId });
   if (!c) return;
   const heading = approved ? `Your request for ${c.parcelName} is approved` : `Your request for ${c.parcelName} was declined`;
-  const next = approved ? 'Accept the terms (and pay any fee) in My permits; the permit is active from its first day once both are done.' : 'You may ask again later or look for other parcels.';
-  await send(c.holderEmails, 'permit-decision', heading, heading, [...(message ? [`The landowner wrote: "${message}"`] : []), next],
+  const fee = c.feeMinor && c.currency ? formatMoney(c.feeMinor, c.currency) : null;
+  const feeLine = fee ? `The fee is ${fee}, paid in My permits.` : 'There is no fee.';
+  const next = !approved
+    ? 'You may ask again later or look for other parcels.'
+    : fee
+      ? 'Accept the terms and pay the fee in My permits; the permit is active from its first day once both are done.'
+      : 'Accept the terms in My permits; the permit is active from its first day once they are accepted.';
+  const wrote = message ? `The landowner wrote: "${message}"` : 'The landowner added no message.';
+  await send(c.holderEmails, 'permit-decision', heading, heading, approved ? [feeLine, wrote, next] : [...(message ? [wrote] : []), next],
     { label: 'Open My permits', url: `${origin}/my-permits` });
 }
 
@@ -58,4 +67,24 @@ export async function noticeRevoked({ permitId, origin, reason, refunded }: { pe
   await send(c.holderEmails, 'permit-revoked', heading, heading,
     [`The landowner's reason: "${reason}"`, refunded ? 'The fee you paid is refunded; a separate e-mail confirms it. Do not harvest there from now on.' : 'Do not harvest there from now on.'],
     { label: 'Open My permits', url: `${origin}/my-permits` });
+}
+
+/**
+ * Tells the holders of approved and active permits (a club's stewards for a club permit) which of
+ * their limits a landowner's change made tighter, with the old figure beside the new. `before` and
+ * `after` are each permit's limits (listPermitsBindingLimits) around the change; a permit whose
+ * limits got no tighter is told nothing.
+ */
+export async function noticeLimitsTightened({ before, after, origin }: { before: Map<string, NamedLimit[]>; after: Map<string, NamedLimit[]>; origin: string }) {
+  for (const [permitId, limits] of after) {
+    const changes = tightenedLimits(before.get(permitId) ?? [], limits);
+    if (changes.length === 0) continue;
+    const c = await permitContacts(db, { permitId });
+    if (!c) continue;
+    const heading = c.isClub ? `Tighter limits on the ${c.holderName ?? 'club'} permit for ${c.parcelName}` : `Tighter limits on your permit for ${c.parcelName}`;
+    await send(c.holderEmails, 'limits-tightened', heading, heading,
+      [`${c.ownerName ?? 'The landowner'} changed the limits on ${c.parcelName}. From now on:`, ...changes.map(limitChangeLine),
+        'What was already recorded stays as it is; what remains is worked out against the new limits. Check the Field before you harvest there again.'],
+      { label: c.isClub ? 'Open Club' : 'Open My permits', url: `${origin}${c.isClub ? '/club' : '/my-permits'}` });
+  }
 }

@@ -121,7 +121,7 @@ const routes: Route[] = [
   { method: 'get', path: '/api/parcels/{id}/audit', summary: "Every holder's tallies on your parcel against every limit (query: asOf)", tag: 'audit' },
   { method: 'get', path: '/api/parcels/{id}/audit/entries', summary: 'The entries behind one tally on your parcel, with positions', tag: 'audit' },
   { method: 'get', path: '/api/parcels/{id}/flags', summary: 'Breaches and nearing tallies on your parcel, newest first', tag: 'audit' },
-  { method: 'post', path: '/api/flags/{id}/notes', summary: 'Record a follow-up on a flag; `handled` marks it handled', body: flagNoteSchema, tag: 'audit' },
+  { method: 'post', path: '/api/flags/{id}/notes', summary: 'Record a follow-up on a flag; `handled` marks it handled, `sendToMember` also e-mails it to the flagged forager', body: flagNoteSchema, tag: 'audit' },
   { method: 'get', path: '/api/parcels/{id}/season-report', summary: 'The season report of a parcel (query: asOf, club)', tag: 'reports' },
   { method: 'get', path: '/api/parcels/{id}/season-report/csv', summary: 'The season report as CSV (RFC 4180)', tag: 'reports' },
   { method: 'post', path: '/api/parcels/{id}/season-report/send', summary: "E-mail the season report to the parcel's landowner", body: sendSeasonReportSchema, tag: 'reports' },

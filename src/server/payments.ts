@@ -129,7 +129,10 @@ export async function handleWebhook(rawBody: string, signature: string | null, n
     }
   });
   if (followUp === 'duplicate') return { received: true, duplicate: true };
-  if (followUp?.kind === 'receipt') await mailReceipt(followUp.paymentId, followUp.origin);
+  if (followUp?.kind === 'receipt') {
+    await mailReceipt(followUp.paymentId, followUp.origin);
+    await mailFeePaidToLandowner(followUp.paymentId, followUp.origin);
+  }
   if (followUp?.kind === 'refund') await refundLatePayment(followUp, now);
   return { received: true };
 }
@@ -229,16 +232,20 @@ async function refundLocked(tx: Tx, payment: Payment, { actorId, reason, now }: 
   return { outcome: 'refunded', paymentId: payment.id, amountMinor: payment.amountMinor, currency: payment.currency };
 }
 
-/** Sends one e-mail about a payment; a failed send is logged and never undoes the payment. */
-async function mailPayer(paymentId: string, purpose: string, compose: (n: PaymentNotice) => { subject: string; paragraphs: string[] }, origin?: string) {
+/** Sends one e-mail about a payment, to its payer unless told whom; a failed send is logged and never undoes the payment. */
+async function mailPayer(
+  paymentId: string, purpose: string, compose: (n: PaymentNotice) => { subject: string; paragraphs: string[] }, origin?: string,
+  { to, page }: { to?: (n: PaymentNotice) => string; page?: (n: PaymentNotice) => { label: string; path: string } } = {},
+) {
   const notice = await findPaymentNotice(db, { paymentId });
   if (!notice) return;
   const { subject, paragraphs } = compose(notice);
-  const action = origin ? { label: 'Open My permits', url: `${origin}/my-permits` } : undefined;
+  const link = page ? page(notice) : { label: 'Open My permits', path: '/my-permits' };
+  const action = origin ? { label: link.label, url: `${origin}${link.path}` } : undefined;
   try {
     await sendMail({
       purpose,
-      to: notice.payerEmail,
+      to: to ? to(notice) : notice.payerEmail,
       subject,
       text: `${subject}\n\n${paragraphs.join('\n\n')}\n${action ? `\n${action.label}: ${action.url}\n` : ''}`,
       html: mailHtml({ heading: subject, paragraphs, action }),
@@ -259,6 +266,22 @@ function mailReceipt(paymentId: string, origin?: string) {
       `Payment reference: ${n.paymentId}. Keep this e-mail as your receipt.`,
     ],
   }), origin);
+}
+
+/** The landowner is told a fee came in: who paid, how much, for which permit. */
+function mailFeePaidToLandowner(paymentId: string, origin?: string) {
+  return mailPayer(paymentId, 'fee-paid', (n) => {
+    const payer = n.payerName ?? n.payerEmail;
+    const holder = n.clubName ? `${n.clubName} (paid by ${payer})` : payer;
+    return {
+      subject: `Fee paid: ${formatMoney(n.amountMinor, n.currency)} from ${n.clubName ?? payer} for ${n.parcelName}`,
+      paragraphs: [
+        `${holder} paid the ${formatMoney(n.amountMinor, n.currency)} fee for their access permit at ${n.parcelName}, ${formatDate(n.startsOn)} – ${formatDate(n.endsOn)}.`,
+        n.permitState === 'active' ? 'The permit is now active.' : 'The permit becomes active once the terms are accepted and its first day has come.',
+        `Payment reference: ${n.paymentId}.`,
+      ],
+    };
+  }, origin, { to: (n) => n.ownerEmail, page: (n) => ({ label: 'Open the parcel', path: `/land/${n.parcelId}` }) });
 }
 
 function mailRefund(paymentId: string, reason: string, origin?: string) {

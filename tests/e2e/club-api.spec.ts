@@ -257,6 +257,23 @@ test.describe('flag notes', () => {
     const after = ((await (await steward.get(`/api/clubs/${ids.club}/flags`)).json()).flags as { id: string; handled: boolean }[]).find((f) => f.id === ids.flag);
     expect(after?.handled).toBe(false);
   });
+
+  test("given the landowner's note sent to the member too, Beth gets it with the flag's facts and the answer names her; without the box, nobody is e-mailed", async () => {
+    const subject = `A note about your Oyster mushroom entry on ${ids.parcelName}`;
+    const notes = async () => (await mailFor(beth, 'beth.lindqvist@example.org')).filter((m) => m.subject === subject);
+    const quiet = await walter.post(`/api/flags/${ids.flag}/notes`, { data: { note: 'Noted for the records.', handled: false } });
+    expect(await quiet.json()).toMatchObject({ sentTo: null });
+    const sent = await walter.post(`/api/flags/${ids.flag}/notes`, { data: { note: 'You are close to the day limit here; 150 g left.', handled: false, sendToMember: true } });
+    expect(sent.status(), await sent.text()).toBe(201);
+    expect(await sent.json()).toMatchObject({ sentTo: 'Beth Lindqvist' });
+    await expect.poll(async () => (await notes()).length, { message: 'the note e-mailed to Beth' }).toBe(1);
+    const [mail] = await notes();
+    expect(mail?.text).toContain('Walter Pelletier, the landowner, wrote about your entry of 850 g of Oyster mushroom');
+    expect(mail?.text).toContain('"You are close to the day limit here; 150 g left."');
+    // 850 g of a 1 kg day limit, worked by hand in this file's header: 0.85 kg, 85 %, nearing.
+    expect(mail?.text).toContain('0.85 kg of 1 kg per day (85 %), ◑ nearing');
+    expect(mail?.text).not.toContain('Noted for the records.');
+  });
 });
 
 test.describe('memberships', () => {

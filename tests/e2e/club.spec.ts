@@ -20,6 +20,9 @@ const stamp = Date.now();
 const parcelName = `Stewardship lot ${stamp}`;
 const memberEmail = `new-member-${stamp}@example.org`;
 
+/** The parcel's calendar day of an instant, as people there write it ("Dec 2, 2026"), by the browser runtime's own Intl, not ours. */
+const localDay = (at: Date) => new Intl.DateTimeFormat('en-US', { timeZone: 'America/New_York', year: 'numeric', month: 'short', day: 'numeric' }).format(at);
+
 let walter: APIRequestContext;
 let parcelId = '';
 
@@ -99,6 +102,7 @@ test('given a steward, a new member and a landowner, the club permit, a breach, 
   await form.getByLabel('Quantity').fill('1200');
   await expect(form.getByTestId('projection').locator('[data-scope="day"]')).toHaveAttribute('data-state', 'over');
   await form.getByText('This takes a limit over').click();
+  const savedAt = new Date();
   await form.getByRole('button', { name: 'Save entry' }).click();
   await expect(member.getByTestId('species').locator('[data-species="Oyster mushroom"]')).toHaveAttribute('data-state', 'over');
   await memberContext.close();
@@ -110,7 +114,17 @@ test('given a steward, a new member and a landowner, the club permit, a breach, 
   await expect(flag).toContainText('Breach');
   await flag.getByLabel('Follow-up note').fill('Spoke with the member; the extra was shared at the club walk. Reminded of the 1 kg day limit.');
   await flag.getByLabel('Mark as handled').check();
+  await flag.getByLabel(/^Also send this note to /).check();
   await flag.getByRole('button', { name: 'Record follow-up' }).click();
+  // The member gets the note with the flag's facts: 1200 g on a 1 kg day limit is 0.2 kg over, on the
+  // parcel's day (America/New_York), which is today there as the entry was saved a moment ago.
+  const noteSubject = `A note about your Oyster mushroom entry on ${parcelName}`;
+  await expect.poll(async () => (await mailFor(steward.request, memberEmail)).some((m) => m.subject === noteSubject), { message: 'the follow-up e-mail to the member' }).toBe(true);
+  const noteMail = (await mailFor(steward.request, memberEmail)).find((m) => m.subject === noteSubject);
+  expect(noteMail?.text).toContain('Marisol Kent, a steward of Three Ridges Foraging Society, wrote about your entry of 1,200 g of Oyster mushroom');
+  expect(noteMail?.text).toContain('"Spoke with the member; the extra was shared at the club walk. Reminded of the 1 kg day limit."');
+  expect(noteMail?.text).toContain('How much over: 0.2 kg over the limit of 1 kg per day (1.2 kg counted)');
+  expect([localDay(savedAt), localDay(new Date())].some((day) => noteMail?.text.includes(`counted on ${day}`)), noteMail?.text).toBe(true);
   await club.getByRole('button', { name: 'All', exact: true }).click();
   await expect(club.locator('[data-flag]').filter({ hasText: parcelName })).toHaveAttribute('data-handled', 'true');
   await expect(club.locator('[data-flag]').filter({ hasText: parcelName })).toContainText('Reminded of the 1 kg day limit');
@@ -124,11 +138,28 @@ test('given a steward, a new member and a landowner, the club permit, a breach, 
   await expect(report.getByTestId('breaches')).toHaveText('1');
   await expect(report.getByTestId('visits')).toHaveText('1');
   await expect(report).toContainText('Reminded of the 1 kg day limit');
+  // The season once as a heading, a row for the species taken with its total.
+  await expect(report.getByRole('heading', { name: /^Season [A-Z][a-z]{2} \d/ })).toHaveCount(1);
+  await expect(report.locator('[data-species="Oyster mushroom"]').getByTestId('taken')).toHaveText('1.2 kg');
+  await report.locator('[data-hydrated="true"]').waitFor();
   await report.getByRole('button', { name: 'Send to the landowner by e-mail' }).click();
+  // The page says it went, and to whom, without leaving it.
+  await expect(report.getByTestId('report-sent')).toHaveText('Sent to Walter Pelletier (landowner@example.org), with the CSV attached; a copy went to you (steward@example.org).');
   await expect
     .poll(async () => (await mailFor(steward.request, 'landowner@example.org')).some((m) => m.subject === `Season report for ${parcelName} from ${clubName}`))
     .toBe(true);
   const mail = (await mailFor(steward.request, 'landowner@example.org')).find((m) => m.subject === `Season report for ${parcelName} from ${clubName}`);
   expect(mail?.text).toContain('1 breach,');
+  expect(mail?.text).toContain('Oyster mushroom (Pleurotus ostreatus): 1.2 kg taken, 1 entry by 1 forager');
+  // The CSV rides along: parsed back, its tally record for the day limit says 1.2 of 1 kg, 120 %, over (worked in the header).
+  const [file] = mail?.attachments ?? [];
+  expect(file?.filename).toMatch(/^season-report-stewardship-lot-\d+-\d{4}-\d{2}-\d{2}\.csv$/);
+  expect(file?.contentType).toBe('text/csv');
+  const rows = Buffer.from(file?.contentBase64 ?? '', 'base64').toString('utf8').trim().split('\r\n').map((line) => line.split(','));
+  const [head, ...records] = rows;
+  const col = (name: string) => (head ?? []).indexOf(name);
+  const day = records.find((r) => r[col('section')] === 'tally' && r[col('scope')] === 'day');
+  expect([day?.[col('species')], day?.[col('limit')], day?.[col('unit')], day?.[col('used')], day?.[col('percent')], day?.[col('state')]]).toEqual(['Oyster mushroom', '1', 'kg', '1.2', '120', 'over']);
+  expect(records.filter((r) => r[col('section')] === 'breach')).toHaveLength(1);
   await steward.context().close();
 });

@@ -41,6 +41,12 @@ async function receiptsFor(request: APIRequestContext) {
   return (await mailFor(request, hattie)).filter((m) => m.subject.startsWith('Receipt:'));
 }
 
+/** Walter Pelletier owns Pelletier Hill Farm (data/demo/scenario.json). */
+const walter = 'landowner@example.org';
+async function feeNoticesFor(request: APIRequestContext) {
+  return (await mailFor(request, walter)).filter((m) => m.subject.startsWith('Fee paid:') && m.subject.includes('Hattie Brule'));
+}
+
 test('given a forager with an approved permit and an unpaid fee, it lists the fee as due and opens a checkout', async () => {
   const { fees } = (await (await api.get('/api/payments/due')).json()) as { fees: Fee[] };
   const fee = fees.find((f) => f.parcelName === 'Pelletier Hill Farm');
@@ -112,6 +118,13 @@ test('given the checkout in Chromium, Pay lands on the done page with the permit
   const [receipt] = await receiptsFor(page.request);
   expect(receipt?.text).toContain('$15.00');
   expect(receipt?.text).toContain('/my-permits');
+
+  // The landowner is told the fee came in: who paid, how much, for which parcel.
+  await expect.poll(async () => (await feeNoticesFor(page.request)).length, { message: "a fee-paid e-mail for the parcel's landowner" }).toBe(1);
+  const [notice] = await feeNoticesFor(page.request);
+  expect(notice?.subject).toBe('Fee paid: $15.00 from Hattie Brule for Pelletier Hill Farm');
+  expect(notice?.text).toContain('Hattie Brule paid the $15.00 fee for their access permit at Pelletier Hill Farm');
+  expect(notice?.text).toContain('The permit is now active.');
   const { fees } = (await (await page.request.get('/api/payments/due')).json()) as { fees: Fee[] };
   expect(fees.map((f) => f.permitId)).not.toContain(permitId);
 });
@@ -129,6 +142,7 @@ test('given a replayed event, the second delivery answers duplicate and nothing 
   expect(await (await postWebhook(body, signature)).json()).toEqual({ received: true, duplicate: true });
 
   expect(await receiptsFor(api)).toHaveLength(1);
+  expect(await feeNoticesFor(api)).toHaveLength(1);
   const done = await (await api.get(`/payments/done?session_id=${sessionId()}`)).text();
   expect(done).toContain('Payment received');
   expect(done).toContain('data-state="active"');

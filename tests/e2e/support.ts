@@ -1,7 +1,8 @@
 import { join } from 'node:path';
 import { expect, request as playwrightRequest, type APIRequestContext, type Browser, type Page } from '@playwright/test';
 
-type Caught = { id: string; to: string[]; subject: string; text: string };
+/** A caught mail; attachments carry their bytes in base64 (scripts/mail-catcher.ts). */
+type Caught = { id: string; to: string[]; subject: string; text: string; attachments?: { filename: string; contentType: string; contentBase64: string }[] };
 
 /** The messages the local mail catcher holds for one address, newest first (through the app's mailbox API). */
 export async function mailFor(request: APIRequestContext, email: string): Promise<Caught[]> {

@@ -91,3 +91,17 @@ describe('the local mail catcher', () => {
     expect(JSON.parse((await raw('GET', { ...here(), 'x-local-token': token })).body)).toHaveLength(1);
   });
 });
+
+describe('attachments', () => {
+  it('keeps a CSV sent as an attachment, byte for byte, with its name and type', async () => {
+    const csv = 'species,taken\r\n"Oyster mushroom, golden",1.2 kg\r\nRamps,30 plants\r\n';
+    await nodemailer
+      .createTransport({ host: '127.0.0.1', port: smtpPort, secure: false, ignoreTLS: true })
+      .sendMail({ from: 'app@tallywood.example', to: 'owner@example.org', subject: 'A report', text: 'See the file.', attachments: [{ filename: 'report.csv', contentType: 'text/csv; charset=utf-8', content: csv }] });
+    const shown = JSON.parse((await raw('GET', { ...here(), 'x-local-token': token })).body) as { subject: string; attachments: { filename: string; contentType: string; contentBase64: string }[] }[];
+    const report = shown.find((m) => m.subject === 'A report');
+    expect(report?.attachments).toHaveLength(1);
+    expect(report?.attachments[0]).toMatchObject({ filename: 'report.csv', contentType: 'text/csv' });
+    expect(Buffer.from(report?.attachments[0]?.contentBase64 ?? '', 'base64').toString('utf8')).toBe(csv);
+  });
+});

@@ -7,7 +7,7 @@ import type { FlagNoteView, FlagView } from '../../db/flags.queries';
 import { flagNoteSchema } from '../../lib/clubs.schemas';
 import { formatDate, formatInstantIn } from '../../lib/format';
 import { formatQuantities } from '../../lib/tally-words';
-import { flagKindMeanings, flagKindWords } from '../../lib/flag-words';
+import { flagKindMeanings, flagTitleWord } from '../../lib/flag-words';
 import { postJson, sendJson } from '../api-client';
 import { flagScopeLabels, formatUsage, isTallyState, stateSymbols, stateTones, stateWords } from './audit-view';
 
@@ -75,7 +75,7 @@ function FlagItem({ flag, onRecorded }: { flag: FlagView; onRecorded: () => Prom
     <li className={`card ${flag.kind !== 'nearing' && !flag.handled ? 'border-2 border-ember-600' : ''}`} data-flag={flag.id} data-kind={flag.kind} data-handled={flag.handled ? 'true' : 'false'}>
       <div className="flex flex-wrap items-baseline justify-between gap-2">
         <h3 id={`${id}-title`} className="text-base font-semibold">
-          {flagKindWords[flag.kind] ?? flag.kind}: {flag.commonName} on {flag.parcelName}
+          {flagTitleWord(flag.kind, flag.worstState)}: {flag.commonName} on {flag.parcelName}
         </h3>
         <span className={`pill ${flag.handled ? 'border-moss-400 text-moss-800' : 'border-2 border-ember-600 text-ember-700'}`} data-status={flag.handled ? 'handled' : 'open'}>
           <span aria-hidden="true">{flag.handled ? '✓ ' : '! '}</span>{flag.handled ? 'handled' : 'open'}
@@ -150,17 +150,25 @@ function FollowUpForm({ flag, onRecorded }: { flag: FlagView; onRecorded: () => 
   const { register, handleSubmit, setError, reset, formState } = useForm<Input, unknown, Output>({
     resolver: zodResolver(flagNoteSchema),
     // A note leaves a handled flag handled unless the box is cleared.
-    defaultValues: { note: '', handled: flag.handled },
+    defaultValues: { note: '', handled: flag.handled, sendToMember: false },
   });
   const { errors, isSubmitting } = formState;
+  const [told, setTold] = useState('');
 
   const onSubmit = handleSubmit(async (input) => {
+    setTold('');
     const result = await postJson(`/api/flags/${flag.id}/notes`, input);
     if (!result.ok) {
       setError(result.error.field === 'note' ? 'note' : 'root', { message: result.error.message });
       return;
     }
-    reset({ note: '', handled: input.handled });
+    const { sentTo } = result.data as { sentTo: string | null };
+    setTold(
+      input.sendToMember
+        ? sentTo ? `Note recorded and e-mailed to ${sentTo}.` : `Note recorded, but the e-mail to ${flag.foragerName} could not be sent; try again later or tell them yourself.`
+        : 'Note recorded.',
+    );
+    reset({ note: '', handled: input.handled, sendToMember: false });
     await onRecorded();
   });
 
@@ -184,7 +192,17 @@ function FollowUpForm({ flag, onRecorded }: { flag: FlagView; onRecorded: () => 
           {flag.handled ? 'Clear the box to reopen this flag.' : 'Leave it clear while more needs doing.'}
         </p>
       </div>
+      <div>
+        <label className="flex items-center gap-2 text-sm font-medium">
+          <input type="checkbox" className="h-4 w-4 accent-moss-600" aria-describedby={`${id}-send-help`} {...register('sendToMember')} />
+          Also send this note to {flag.foragerName}
+        </label>
+        <p id={`${id}-send-help`} className="mt-1 text-xs text-loam-600">
+          They get it by e-mail with the flag's facts: species, parcel, the day it counts on and how much over.
+        </p>
+      </div>
       <button type="submit" className="button" disabled={isSubmitting}>{isSubmitting ? 'Saving…' : 'Record follow-up'}</button>
+      <p className="text-sm text-moss-800" role="status" data-testid="follow-up-status">{told}</p>
     </form>
   );
 }

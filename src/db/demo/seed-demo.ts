@@ -182,7 +182,9 @@ async function seedDemo(tx: Tx, demo: Demo) {
         acceptedTermsId: p.termsVersionAccepted ? lookup(termsIds, `${p.parcelSlug}#${p.termsVersionAccepted}`, 'the terms') : null,
         termsAcceptedAt: p.termsVersionAccepted && last ? new Date(activatedAt ?? last.at) : null,
         termsAcceptedBy: p.termsVersionAccepted ? (requester ?? holderUserId) : null,
-        requestNote: p.note,
+        // What the requester wrote when asking (the history's first reason) is what a request card quotes;
+        // the scenario's `note` describes the permit for whoever reads the file and stays there.
+        requestNote: requesterEmail ? (history[0]?.reason ?? '') : p.note,
         requestedBy: requester,
         createdAt: history[0] ? new Date(history[0].at) : new Date(),
         updatedAt: last ? new Date(last.at) : new Date(),

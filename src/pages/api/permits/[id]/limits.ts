@@ -1,17 +1,25 @@
 import { db } from '../../../../db';
-import { findPermitForOwner } from '../../../../db/permits.queries';
+import { findPermitForOwner, listPermitsBindingLimits } from '../../../../db/permits.queries';
 import { tightenPermit } from '../../../../db/permits.commands';
 import { notFound } from '../../../../lib/errors';
 import { permitLimitSchema } from '../../../../lib/permits.schemas';
 import { endpoint, guard, idParam, json, readJson } from '../../../../server/http';
+import { noticeLimitsTightened } from '../../../../server/notices';
 
-/** Sets one of the permit's own limits, which must be tighter than the parcel's (or a club-wide cap). */
-export const POST = endpoint(async ({ locals, params, request }) => {
+/**
+ * Sets one of the permit's own limits, which must be tighter than the parcel's (or a club-wide cap);
+ * the holder is told of a limit that got tighter.
+ */
+export const POST = endpoint(async ({ locals, params, request, url }) => {
   const actor = guard(locals.actor, 'parcel:list-own');
   const permitId = idParam(params.id, 'Permit');
-  if (!(await findPermitForOwner(db, { permitId, ownerId: actor.id }))) throw notFound('Permit');
+  const permit = await findPermitForOwner(db, { permitId, ownerId: actor.id });
+  if (!permit) throw notFound('Permit');
   guard(actor, 'permit:grant', { ownerId: actor.id });
   const limit = await readJson(request, permitLimitSchema);
+  const scope = { parcelId: permit.parcelId, ownerId: actor.id, permitId };
+  const before = await listPermitsBindingLimits(db, scope);
   await db.transaction((tx) => tightenPermit(tx, { permitId, ownerId: actor.id, limit }));
+  await noticeLimitsTightened({ before, after: await listPermitsBindingLimits(db, scope), origin: url.origin });
   return json({ limit }, 201);
 });

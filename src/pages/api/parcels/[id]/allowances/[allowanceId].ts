@@ -5,10 +5,10 @@ import { endpoint, idParam, json } from '../../../../../server/http';
 import { ownedParcel } from '../../../../../server/parcel-access';
 import { saveAllowanceRequest } from '../../../../../server/allowance-requests';
 
-/** Changes one allowance in place (seasons, methods, limits); its species stays. */
-export const PUT = endpoint(async ({ locals, params, request }) => {
+/** Changes one allowance in place (seasons, methods, limits); its species stays. Holders whose limits got tighter are told. */
+export const PUT = endpoint(async ({ locals, params, request, url }) => {
   const allowanceId = idParam(params.allowanceId, 'Allowance');
-  return json({ allowance: await saveAllowanceRequest(locals, params, request, { kind: 'existing', allowanceId }) });
+  return json({ allowance: await saveAllowanceRequest(locals, params, request, { kind: 'existing', allowanceId }, url.origin) });
 });
 
 export const DELETE = endpoint(async ({ locals, params }) => {
