@@ -41,6 +41,11 @@ for (const width of widths) {
     await expect(page.locator('[data-status="loading"]')).toHaveCount(0);
     const { scrollWidth, innerWidth } = await overflow(page);
     expect(scrollWidth).toBeLessThanOrEqual(innerWidth);
+    // Nor does the audit's table need scrolling sideways inside its frame to reach a column.
+    const table = page.locator('table:has(caption:text("Tallies for the season"))');
+    await expect(table).toBeVisible();
+    const frame = await table.evaluate((t) => ({ scrollWidth: (t.parentElement as HTMLElement).scrollWidth, clientWidth: (t.parentElement as HTMLElement).clientWidth }));
+    expect(frame.scrollWidth).toBeLessThanOrEqual(frame.clientWidth);
     await page.context().close();
   });
 }

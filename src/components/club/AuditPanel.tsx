@@ -69,8 +69,36 @@ export default function AuditPanel({ auditUrl, entriesUrl, initialAsOf, showPosi
   );
 }
 
+type LabelProps = { x?: number | string; y?: number | string; width?: number | string; height?: number | string; value?: unknown };
+const num = (v: number | string | undefined) => Number(v ?? 0);
+
+/** A bar's caption on one line just past its end, however short the bar: it never wraps onto its neighbours. */
+function BarCaption({ x, y, width, height, value }: LabelProps) {
+  return <text x={num(x) + num(width) + 6} y={num(y) + num(height) / 2} dominantBaseline="central" fontSize={12} fill="#1f2f1e">{String(value ?? '')}</text>;
+}
+
+/** On a narrow chart, a bar's name on its own line above it, cut short to the phone's width (the tooltip has it whole). */
+function BarName({ x, y, value }: LabelProps) {
+  const name = String(value ?? '');
+  return <text x={num(x)} y={num(y) - 5} fontSize={12} fill="#293f27">{name.length > 46 ? `${name.slice(0, 45)}…` : name}</text>;
+}
+
+/** True below Tailwind's `sm` breakpoint (640 px), where the chart puts names above bars. */
+function useNarrow() {
+  const [narrow, setNarrow] = useState(false);
+  useEffect(() => {
+    const query = window.matchMedia('(max-width: 639px)');
+    const update = () => setNarrow(query.matches);
+    update();
+    query.addEventListener('change', update);
+    return () => query.removeEventListener('change', update);
+  }, []);
+  return narrow;
+}
+
 function AuditChart({ bars }: { bars: AuditChartBar[] }) {
   const uid = useId().replace(/[^\w-]/g, '');
+  const narrow = useNarrow();
   const ceiling = chartCeiling(bars.map((b) => b.percent));
   const ticks = Array.from({ length: ceiling / 20 + 1 }, (_, i) => i * 20);
   const data = bars.map((b) => ({
@@ -88,7 +116,7 @@ function AuditChart({ bars }: { bars: AuditChartBar[] }) {
     + (highest ? ` Highest: ${highest.parcelName}, ${highest.commonName}, ${auditScopeLabels[highest.scope]}, ${formatPercent(highest.percent)} ${stateWords[highest.state]}.` : '');
 
   return (
-    <figure className="card mt-4" data-testid="audit-chart">
+    <figure className="card mt-4 overflow-hidden" data-testid="audit-chart">
       <figcaption className="font-semibold text-moss-800">Share of each limit used</figcaption>
       <svg width="0" height="0" className="absolute" aria-hidden="true" focusable="false">
         <defs>
@@ -103,17 +131,19 @@ function AuditChart({ bars }: { bars: AuditChartBar[] }) {
           ))}
         </defs>
       </svg>
-      <div role="img" aria-label={summary} style={{ height: data.length * 30 + 60 }} className="mt-2">
+      <div role="img" aria-label={summary} style={{ height: data.length * (narrow ? 46 : 30) + 60 }} className="mt-2">
         <ResponsiveContainer width="100%" height="100%">
-          <BarChart data={data} layout="vertical" margin={{ top: 24, right: 120, bottom: 4, left: 4 }}>
+          <BarChart data={data} layout="vertical" margin={{ top: 24, right: narrow ? 96 : 120, bottom: 4, left: 4 }}>
             <CartesianGrid horizontal={false} stroke="#eee7dd" />
-            <XAxis type="number" domain={[0, ceiling]} ticks={ticks} allowDataOverflow tickFormatter={(v: number) => `${v} %`} tick={{ fontSize: 12, fill: '#5c4431' }} />
-            <YAxis type="category" dataKey="name" width={240} interval={0} tick={{ fontSize: 12, fill: '#293f27' }} />
+            <XAxis type="number" domain={[0, ceiling]} ticks={narrow ? ticks.filter((t) => t % 40 === 0) : ticks} allowDataOverflow tickFormatter={(v: number) => `${v} %`} tick={{ fontSize: 12, fill: '#5c4431' }} />
+            {/* On a phone the names go above their bars, so the bars keep the width. */}
+            <YAxis type="category" dataKey="name" width={narrow ? 0 : 240} hide={narrow} interval={0} tick={{ fontSize: 12, fill: '#293f27' }} />
             <ReferenceLine x={100} stroke="#86391a" strokeDasharray="5 3" strokeWidth={2} label={{ value: 'limit, 100 %', position: 'top', fill: '#86391a', fontSize: 12 }} />
             <Tooltip cursor={{ fill: '#f8f5f1' }} formatter={(_v, _n, item) => [(item.payload as { usage: string }).usage, 'used']} />
             <Bar dataKey="value" barSize={18} isAnimationActive={false}>
               {data.map((d) => <Cell key={d.key} fill={`url(#${uid}-${d.state})`} stroke={stateFills[d.state].edge} />)}
-              <LabelList dataKey="caption" position="right" fill="#1f2f1e" fontSize={12} />
+              <LabelList dataKey="caption" content={BarCaption} />
+              {narrow && <LabelList dataKey="name" content={BarName} />}
             </Bar>
           </BarChart>
         </ResponsiveContainer>
@@ -152,8 +182,8 @@ function TallyCell({ tallies }: { tallies: Tally[] }) {
   return (
     <>
       {tallies.map((tally) => (
-        <span key={tally.measure} className="block min-w-[9rem]" data-scope={tally.scope} data-measure={tally.measure} data-state={tally.state}>
-          <span className="block whitespace-nowrap">{formatTally(tally)}</span>
+        <span key={tally.measure} className="block" data-scope={tally.scope} data-measure={tally.measure} data-state={tally.state}>
+          <span className="block">{formatTally(tally)}</span>
           <StateMark state={tally.state} />{tally.limit.fromPermit && <span className="ml-1 text-xs text-loam-600">permit's limit</span>}
         </span>
       ))}
@@ -161,32 +191,74 @@ function TallyCell({ tallies }: { tallies: Tally[] }) {
   );
 }
 
-function buildColumns(scopes: LimitScope[]) {
+/** The tally a row is closest to its limit on, which the table shows; the rest are in the row's details. */
+const highestTally = (r: AuditRow): Tally | null => r.tallies.reduce<Tally | null>((top, t) => (!top || t.percent > top.percent ? t : top), null);
+
+/** Few, wide columns that fit a phone: who and what, the limit closest to its end, the entries. Each limit's tally is in the details. */
+function buildColumns() {
   return [
-    column.accessor('parcelName', { id: 'parcel', header: 'Parcel' }),
     column.accessor('commonName', {
-      id: 'species', header: 'Species',
-      cell: ({ row }) => <>{row.original.commonName}<span className="block text-xs italic text-loam-600">{row.original.scientificName}</span></>,
+      id: 'species', header: 'Species and parcel',
+      cell: ({ row }) => (
+        <>
+          <span className="block font-medium">{row.original.commonName}</span>
+          <span className="block text-xs italic text-loam-600">{row.original.scientificName}</span>
+          <span className="block text-xs text-loam-700">{row.original.parcelName}</span>
+          <span className="mt-1 block text-sm sm:hidden">{row.original.foragerName}</span>
+        </>
+      ),
     }),
-    column.accessor('foragerName', { id: 'forager', header: 'Forager' }),
-    column.accessor('holderName', { id: 'holder', header: 'Permit holder' }),
-    column.accessor((r) => r.season.start, { id: 'season', header: 'Season dates', cell: ({ row }) => <span className="whitespace-nowrap">{formatSeason(row.original.season)}</span> }),
-    ...scopes.map((scope) => column.accessor((r) => Math.max(-1, ...talliesOfScope(r, scope).map((t) => t.percent)), {
-      id: `scope-${scope}`, header: capitalise(auditScopeLabels[scope]), sortDescFirst: true,
-      cell: ({ row }) => <TallyCell tallies={talliesOfScope(row.original, scope)} />,
-    })),
+    column.accessor('foragerName', {
+      id: 'forager', header: 'Forager',
+      cell: ({ row }) => <>{row.original.foragerName}{row.original.holderName !== row.original.foragerName && <span className="block text-xs text-loam-600">under {row.original.holderName}</span>}</>,
+    }),
+    column.accessor((r) => highestTally(r)?.percent ?? -1, {
+      id: 'highest', header: 'Closest to a limit', sortDescFirst: true,
+      cell: ({ row }) => {
+        const top = highestTally(row.original);
+        if (!top) return <span className="text-loam-600">no limit</span>;
+        return (
+          <span className="block" data-scope={top.scope} data-state={top.state}>
+            <span className="block text-xs text-loam-700">{capitalise(auditScopeLabels[top.scope])}</span>
+            <span className="block">{formatTally(top)}</span>
+            <StateMark state={top.state} />
+          </span>
+        );
+      },
+    }),
     column.accessor((r) => rankOf(r.state), { id: 'state', header: 'Worst state', sortDescFirst: true, filterFn: stateMatches, cell: ({ row }) => <StateMark state={row.original.state} /> }),
-    column.accessor('entries', { header: 'Entries', sortDescFirst: true }),
-    column.accessor('breaches', {
-      header: 'Breaches', sortDescFirst: true,
-      cell: ({ getValue }) => (getValue() > 0 ? <span className="pill border-2 border-ember-600 text-ember-700">{getValue()} breach{getValue() === 1 ? '' : 'es'}</span> : 0),
+    column.accessor('entries', {
+      header: 'Entries', sortDescFirst: true,
+      cell: ({ row }) => <>{row.original.entries}{row.original.breaches > 0 && <span className="mt-1 block"><span className="pill border-2 border-ember-600 text-ember-700">{row.original.breaches} breach{row.original.breaches === 1 ? '' : 'es'}</span></span>}</>,
     }),
   ];
 }
 
+/** Columns a phone leaves out: the worst state (the closest limit shows it), the forager (under the species) and the entries (in the details). */
+const narrowClass = (columnId: string): string | undefined => (columnId === 'state' ? 'hidden md:table-cell' : columnId === 'entries' || columnId === 'forager' ? 'hidden sm:table-cell' : undefined);
+
+/** A row's details: its season, each limit's tally, then the entries behind it. */
+function RowDetails({ row, scopes, load, showPositions }: { row: AuditRow; scopes: LimitScope[]; load: Load<AuditEntry[]>; showPositions: boolean }) {
+  return (
+    <div className="space-y-3">
+      <p className="text-sm">Season {formatSeason(row.season)}{row.holderName ? ` · permit of ${row.holderName}` : ''} · {row.entries} {row.entries === 1 ? 'entry' : 'entries'}{row.breaches > 0 ? `, ${row.breaches} ${row.breaches === 1 ? 'breach' : 'breaches'}` : ''}</p>
+      <dl className="grid grid-cols-1 gap-x-6 gap-y-2 text-sm sm:grid-cols-2 lg:grid-cols-3" data-testid="row-tallies">
+        {scopes.filter((scope) => talliesOfScope(row, scope).length > 0).map((scope) => (
+          <div key={scope}>
+            <dt className="font-semibold">{capitalise(auditScopeLabels[scope])}</dt>
+            <dd><TallyCell tallies={talliesOfScope(row, scope)} /></dd>
+          </div>
+        ))}
+      </dl>
+      <div className="overflow-x-auto"><EntryList load={load} showPositions={showPositions} /></div>
+    </div>
+  );
+}
+
 function AuditTable({ rows, asOf, entriesUrl, showPositions }: { rows: AuditRow[]; asOf: string | null; entriesUrl: string; showPositions: boolean }) {
   const id = useId();
-  const columns = useMemo(() => buildColumns(scopesPresent(rows)), [rows]);
+  const columns = useMemo(() => buildColumns(), []);
+  const scopes = useMemo(() => scopesPresent(rows), [rows]);
   const [sorting, setSorting] = useState<SortingState>([]);
   const [columnFilters, setColumnFilters] = useState<ColumnFiltersState>([]);
   const [globalFilter, setGlobalFilter] = useState('');
@@ -235,7 +307,7 @@ function AuditTable({ rows, asOf, entriesUrl, showPositions }: { rows: AuditRow[
       </div>
       <p className="mt-2 text-sm text-loam-700" aria-live="polite" data-testid="audit-count">{shown.length} of {rows.length} {rows.length === 1 ? 'row' : 'rows'}.</p>
       <div className="relative mt-2 overflow-x-auto rounded-lg border border-loam-200 bg-white">
-        <table className="table min-w-[64rem]">
+        <table className="table">
           <caption className="sr-only">Tallies for the season on {asOf ? formatDate(asOf) : 'today'}, one row per parcel, species and forager. Select a column heading to sort.</caption>
           <thead>
             {table.getHeaderGroups().map((group) => (
@@ -243,15 +315,15 @@ function AuditTable({ rows, asOf, entriesUrl, showPositions }: { rows: AuditRow[
                 {group.headers.map((header) => {
                   const sorted = header.column.getIsSorted();
                   return (
-                    <th key={header.id} scope="col" aria-sort={ariaSort(sorted)}>
-                      <button type="button" className="inline-flex items-center gap-1 whitespace-nowrap font-semibold hover:underline" onClick={header.column.getToggleSortingHandler()}>
+                    <th key={header.id} scope="col" aria-sort={ariaSort(sorted)} className={narrowClass(header.column.id)}>
+                      <button type="button" className="inline-flex items-center gap-1 text-left font-semibold hover:underline" onClick={header.column.getToggleSortingHandler()}>
                         {flexRender(header.column.columnDef.header, header.getContext())}
                         <span aria-hidden="true" className="text-xs text-loam-600">{sorted === 'asc' ? '▲' : sorted === 'desc' ? '▼' : '↕'}</span>
                       </button>
                     </th>
                   );
                 })}
-                <th scope="col"><span className="sr-only">Entries behind the row</span></th>
+                <th scope="col" className="relative w-[6.5rem]"><span className="sr-only">Each limit and the entries behind the row</span></th>
               </tr>
             ))}
           </thead>
@@ -263,16 +335,16 @@ function AuditTable({ rows, asOf, entriesUrl, showPositions }: { rows: AuditRow[
               return (
                 <Fragment key={row.id}>
                   <tr data-row={row.id} data-state={row.original.state ?? 'none'} className={row.original.state === 'over' ? 'bg-ember-50' : ''}>
-                    {row.getVisibleCells().map((cell) => <td key={cell.id}>{flexRender(cell.column.columnDef.cell, cell.getContext())}</td>)}
+                    {row.getVisibleCells().map((cell) => <td key={cell.id} className={narrowClass(cell.column.id)}>{flexRender(cell.column.columnDef.cell, cell.getContext())}</td>)}
                     <td>
-                      <button type="button" className="button-quiet whitespace-nowrap" aria-expanded={detail ? 'true' : 'false'} aria-controls={detail ? panelId : undefined} onClick={() => void toggle(row.original)}>
-                        {detail ? 'Hide entries' : 'Show entries'}
+                      <button type="button" className="button-quiet px-2" aria-expanded={detail ? 'true' : 'false'} aria-controls={detail ? panelId : undefined} onClick={() => void toggle(row.original)}>
+                        {detail ? 'Hide' : 'Details'}
                       </button>
                     </td>
                   </tr>
                   {detail && (
                     <tr id={panelId} className="bg-loam-50" data-entries-for={row.id}>
-                      <td colSpan={columns.length + 1}><EntryList load={detail} showPositions={showPositions} /></td>
+                      <td colSpan={columns.length + 1}><RowDetails row={row.original} scopes={scopes} load={detail} showPositions={showPositions} /></td>
                     </tr>
                   )}
                 </Fragment>
