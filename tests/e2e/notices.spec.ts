@@ -28,7 +28,7 @@ test.describe.configure({ mode: 'serial' });
 test.beforeAll(async () => {
   [walter, beth, steward] = await Promise.all([walterEmail, bethEmail, stewardEmail].map(apiAs));
   const created = await walter.post('/api/parcels', {
-    data: { name: parcelName, timeZone: 'America/New_York', nearingThresholdPercent: 80, openToRequests: true, description: '', boundary: square(-72.97, 43.93) },
+    data: { name: parcelName, timeZone: 'America/New_York', nearingThresholdPercent: 80, openToRequests: false, description: '', boundary: square(-72.97, 43.93) },
   });
   expect(created.status(), await created.text()).toBe(201);
   parcelId = (await created.json()).parcel.id;
@@ -37,6 +37,14 @@ test.beforeAll(async () => {
   const { species } = (await (await walter.get('/api/species')).json()) as { species: { id: string; commonName: string }[] };
   chagaId = species.find((s) => s.commonName === 'Chaga')?.id ?? '';
   expect(chagaId).not.toBe('');
+  // Opening a parcel to requests needs an allowance and terms: oyster mushrooms, so chaga's limits start unset.
+  const oysterId = species.find((s) => s.commonName === 'Oyster mushroom')?.id;
+  const allowed = await walter.post(`/api/parcels/${parcelId}/allowances`, { data: { speciesId: oysterId, seasons: [{ start: '01-01', end: '12-31' }], methods: ['pick'], limits: [{ scope: 'day', quantity: '1', unit: 'kg' }] } });
+  expect(allowed.status(), await allowed.text()).toBe(201);
+  const terms = await walter.post(`/api/parcels/${parcelId}/terms`, { data: { body: 'Pick oysters by hand; leave the small ones.' } });
+  expect(terms.status(), await terms.text()).toBeLessThan(300);
+  const opened = await walter.patch(`/api/parcels/${parcelId}`, { data: { openToRequests: true } });
+  expect(opened.status(), await opened.text()).toBe(200);
 });
 
 test.afterAll(async () => Promise.all([walter, beth, steward].map((c) => c?.dispose())));

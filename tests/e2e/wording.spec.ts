@@ -26,7 +26,7 @@ test("given the club's request waiting, its card quotes only what the requester 
 
 test('given a permit that accepted an older terms version, the parcel says which one and that a newer one is not yet accepted', async ({ browser }) => {
   const page = await pageAs(browser, 'landowner@example.org');
-  await page.goto(`/land/${cobbleRidge}`);
+  await page.goto(`/land/${cobbleRidge}/permits`);
   const permits = page.getByTestId('permits');
   const expiredClub = permits.locator('li[data-permit]').filter({ hasText: 'Three Ridges Foraging Society (club)' }).filter({ has: page.locator('[data-state="expired"]') });
   await expect(expiredClub.getByTestId('permit-terms')).toHaveText('accepted terms version 1; version 2 is newer and not yet accepted');

@@ -163,7 +163,8 @@ export default function LedgerTable({ entries, onCorrected }: LedgerTableProps) 
         Showing {rows.length} of {entries.length} {entries.length === 1 ? 'entry' : 'entries'}.
       </p>
       <div className="relative mt-2 overflow-x-auto rounded-lg border border-loam-200 bg-white">
-        <table className="table">
+        {/* A long word (a parcel's name, a reason) breaks rather than widen the table past its frame. */}
+        <table className="table [&_td]:[overflow-wrap:anywhere]">
           <caption className="sr-only">Your harvest entries, newest first; corrections sit under the entry they correct. Select a column heading to sort; open a row's details to see its photo or correct it.</caption>
           <thead>
             {table.getHeaderGroups().map((group) => (
