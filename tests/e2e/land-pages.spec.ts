@@ -118,6 +118,8 @@ test('given an allowance, a limit is changed in place and shown with its history
 /** Clicks Remove in `item`, declines the question, then accepts it; the item stays, then goes. */
 async function removeWithConfirmation(page: Page, list: string, text: string, question: RegExp) {
   const item = page.getByTestId(list).locator('li').filter({ hasText: text });
+  // The Remove buttons ask only once their islands are hydrated (Astro drops `ssr` from each then).
+  await expect(page.locator('astro-island[ssr]')).toHaveCount(0);
   let asked = '';
   page.once('dialog', (dialog) => {
     asked = dialog.message();
@@ -164,6 +166,8 @@ test('given a new parcel with no allowance and no terms, its pages say what is m
   await expect(settings).toContainText('Not possible yet: the parcel needs an allowance');
   await open.check();
   await settings.getByRole('button', { name: 'Save settings' }).click();
+  // The box is described by its error once the answer arrives (until then, by its help text).
+  await expect(open).toHaveAttribute('aria-describedby', /-error$/);
   await expect(page.locator(`#${await open.getAttribute('aria-describedby')}`)).toContainText('Before foragers can ask for access, the parcel needs an allowance');
   expect((await (await walter.get(`/api/parcels/${id}`)).json()).parcel.openToRequests).toBe(false);
 

@@ -25,6 +25,10 @@ const square = (west: number, south: number, size = 0.001) => ({
 
 test.describe.configure({ mode: 'serial' });
 
+/** A day on the parcel's calendar (America/New_York, IANA tz data) `days` from now: requests ask for dates to come, whenever the run is. */
+const parcelDay = (days: number) =>
+  new Intl.DateTimeFormat('en-CA', { timeZone: 'America/New_York', year: 'numeric', month: '2-digit', day: '2-digit' }).format(new Date(Date.now() + days * 86_400_000));
+
 test.beforeAll(async () => {
   [walter, beth, steward] = await Promise.all([walterEmail, bethEmail, stewardEmail].map(apiAs));
   const created = await walter.post('/api/parcels', {
@@ -64,7 +68,7 @@ async function newestMail(request: APIRequestContext, email: string, subject: st
 }
 
 test('given an approved request with a fee and a message, the approval e-mail states the fee in dollars and quotes the message', async () => {
-  const asked = await beth.post('/api/access-requests', { data: { parcelId, startsOn: '2027-01-01', endsOn: '2027-12-31', note: 'Chaga from the birches by the road, please.' } });
+  const asked = await beth.post('/api/access-requests', { data: { parcelId, startsOn: parcelDay(30), endsOn: parcelDay(390), note: 'Chaga from the birches by the road, please.' } });
   expect(asked.status(), await asked.text()).toBe(201);
   const permitId = (await asked.json()).permit.id as string;
   const decided = await walter.post(`/api/permits/${permitId}/decision`, { data: { decision: 'approve', feeMinor: 2500, message: 'Park by the gate, not on the verge.' } });
@@ -76,7 +80,7 @@ test('given an approved request with a fee and a message, the approval e-mail st
 });
 
 test('given an approved club request with no fee and no message, the stewards read "There is no fee" and that nothing was added', async () => {
-  const asked = await steward.post('/api/access-requests', { data: { parcelId, clubId, startsOn: '2027-01-01', endsOn: '2027-12-31', note: 'For the club, chaga only.' } });
+  const asked = await steward.post('/api/access-requests', { data: { parcelId, clubId, startsOn: parcelDay(30), endsOn: parcelDay(390), note: 'For the club, chaga only.' } });
   expect(asked.status(), await asked.text()).toBe(201);
   const permitId = (await asked.json()).permit.id as string;
   const decided = await walter.post(`/api/permits/${permitId}/decision`, { data: { decision: 'approve', feeMinor: 0 } });

@@ -30,13 +30,15 @@ type Answer = { status: number; body: string; ms: number };
  * (or with the `content-length` given, true or not). Resolves with the answer even when the server
  * answers before it has read the whole body. The server cuts a refused body's connection, and now and
  * then the kernel's reset overtakes the answer (a known limit, noted in DEVELOPERS.md): the request
- * is then sent once more, as a client that saw its connection reset would, and the count is printed.
+ * is then sent again, up to three times, as a client that saw its connection reset would, and each retry is printed.
  */
 async function rawPost(path: string, request: { headers: Record<string, string>; chunks: () => Iterable<Buffer> }): Promise<Answer> {
-  const first = await rawPostOnce(path, request.headers, request.chunks());
-  if (first.status !== 0) return first;
-  console.log(`request-limits: ${path} was reset before its answer; sent once more`);
-  return rawPostOnce(path, request.headers, request.chunks());
+  let answer = await rawPostOnce(path, request.headers, request.chunks());
+  for (let again = 1; answer.status === 0 && again <= 3; again += 1) {
+    console.log(`request-limits: ${path} was reset before its answer; sent again (${again} of 3)`);
+    answer = await rawPostOnce(path, request.headers, request.chunks());
+  }
+  return answer;
 }
 
 function rawPostOnce(path: string, headers: Record<string, string>, chunks: Iterable<Buffer>): Promise<Answer> {
