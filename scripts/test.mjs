@@ -41,6 +41,22 @@ for (const instant of instants) {
   }
 }
 
+/**
+ * `npm test -- <files>` runs only the named test files (each `*.test.ts` by vitest, each `*.spec.ts` by
+ * Playwright, a runner with none named is skipped), after the same set-up and type check. For working
+ * on a few tests; a whole `npm test` is what lands.
+ */
+const only = process.argv.slice(2);
+const vitestOnly = only.filter((file) => file.endsWith('.test.ts'));
+const playwrightOnly = only.filter((file) => file.endsWith('.spec.ts'));
+const unknown = only.filter((file) => !file.endsWith('.test.ts') && !file.endsWith('.spec.ts'));
+if (unknown.length > 0) {
+  console.error(`[tallywood] npm test -- takes test files (*.test.ts, *.spec.ts); not: ${unknown.join(', ')}`);
+  process.exit(2);
+}
+const runVitest = only.length === 0 || vitestOnly.length > 0;
+const runPlaywright = only.length === 0 || playwrightOnly.length > 0;
+
 ensureDependencies();
 ensurePostgres();
 ensureChromium();
@@ -147,9 +163,9 @@ try {
   stopFakes = await startFakes();
   const main = prepareDatabase({ dir: join(localDir, 'pg-test'), port: pgPort });
   step('type check (astro check)', bin('astro'), ['check'], main.env);
-  step('unit and integration tests (vitest)', bin('vitest'), ['run', '--config', 'tests/vitest.config.ts'], main.env);
-  const built = step('build', bin('astro'), ['build'], main.env);
-  if (failures.length === 0 && built) step('end-to-end tests (Playwright, Chromium)', bin('playwright'), ['test', '--config', 'tests/playwright.config.ts'], main.env);
+  if (runVitest) step('unit and integration tests (vitest)', bin('vitest'), ['run', '--config', 'tests/vitest.config.ts', ...vitestOnly], main.env);
+  const built = runPlaywright && step('build', bin('astro'), ['build'], main.env);
+  if (failures.length === 0 && built) step('end-to-end tests (Playwright, Chromium)', bin('playwright'), ['test', '--config', 'tests/playwright.config.ts', ...playwrightOnly], main.env);
   main.stop();
 
   for (const [n, instant] of (failures.length === 0 ? instants : []).entries()) {
@@ -161,8 +177,8 @@ try {
     // A cluster and a port of its own for each instant: nothing of one run's server can linger into the next.
     const shifted = prepareDatabase({ dir: join(localDir, `pg-test-shifted-${n}`), port: shiftedPgPort + n, clock });
     try {
-      step(`unit and integration tests ${label}`, bin('vitest'), ['run', '--config', 'tests/vitest.config.ts'], shifted.env);
-      step(`end-to-end tests ${label}`, bin('playwright'), ['test', '--config', 'tests/playwright.config.ts'], shifted.env);
+      if (runVitest) step(`unit and integration tests ${label}`, bin('vitest'), ['run', '--config', 'tests/vitest.config.ts', ...vitestOnly], shifted.env);
+      if (runPlaywright) step(`end-to-end tests ${label}`, bin('playwright'), ['test', '--config', 'tests/playwright.config.ts', ...playwrightOnly], shifted.env);
     } finally {
       shifted.stop();
     }
