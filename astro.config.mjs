@@ -122,6 +122,8 @@ export default defineConfig({
       /** The local mail catcher's HTTP API, read by the mailbox page. */
       MAIL_CATCHER_HTTP_URL: envField.string({ context: 'server', access: 'public', default: 'http://127.0.0.1:2580' }),
       /** Folder behind the default upload storage; share it (or swap the storage) for several instances. */
+      /** The least level the JSON log writes (src/server/log.ts); read when the server starts. */
+      LOG_LEVEL: envField.enum({ context: 'server', access: 'secret', values: ['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent'], default: 'info' }),
       UPLOADS_DIR: envField.string({ context: 'server', access: 'public', default: '.local/uploads' }),
       MAIL_FROM: envField.string({ context: 'server', access: 'public', default: 'Tallywood <no-reply@tallywood.example>' }),
       /** Sign-in e-mails one address may be sent in an hour. */

@@ -1,3 +1,4 @@
+import type { APIContext, MiddlewareNext } from 'astro';
 import { defineMiddleware } from 'astro:middleware';
 import { db } from './db';
 import { findActorBySession } from './db/accounts.queries';
@@ -5,6 +6,7 @@ import { closeStaleVisits } from './db/field.commands';
 import { advancePermitsByDate } from './db/permits.lifecycle';
 import { mayEver, type Action } from './lib/permissions';
 import { sessionCookieName } from './server/auth';
+import { log } from './server/log';
 
 /** Pages and the action a visitor's roles must allow to open them. API routes guard themselves. */
 const pageRules: [prefix: string, action: Action][] = [
@@ -30,11 +32,35 @@ let lastAdvance = 0;
 function advancePermitsNow(now: Date) {
   if (now.getTime() - lastAdvance < advanceEveryMs) return;
   lastAdvance = now.getTime();
-  db.transaction((tx) => advancePermitsByDate(tx, { now })).catch((error) => console.error('advancing permits by date failed:', error));
-  closeStaleVisits(db, { now }).catch((error) => console.error('closing stale visits failed:', error));
+  db.transaction((tx) => advancePermitsByDate(tx, { now })).catch((error) => log.error({ err: error }, 'advancing permits by date failed'));
+  closeStaleVisits(db, { now }).catch((error) => log.error({ err: error }, 'closing stale visits failed'));
 }
 
+/**
+ * Each request gets an id, returned in `x-request-id` so a person can quote it, and one log line
+ * when it is answered: method, route pattern, status and milliseconds (src/server/log.ts says what
+ * never goes in). Map tiles, many and public, are logged at debug level only.
+ */
 export const onRequest = defineMiddleware(async (context, next) => {
+  const started = performance.now();
+  const requestId = crypto.randomUUID();
+  context.locals.log = log.child({ requestId });
+  const response = await answer(context, next).catch((error: unknown) => {
+    context.locals.log.error({ err: error, route: context.routePattern }, 'request failed');
+    throw error;
+  });
+  const line = { method: context.request.method, route: context.routePattern, status: response.status, ms: Math.round((performance.now() - started) * 10) / 10 };
+  if (context.url.pathname.startsWith('/tiles/')) context.locals.log.debug(line, 'answered');
+  else context.locals.log.info(line, 'answered');
+  try {
+    response.headers.set('x-request-id', requestId);
+  } catch {
+    // A response with immutable headers (Response.redirect) goes without the id.
+  }
+  return response;
+});
+
+async function answer(context: APIContext, next: MiddlewareNext): Promise<Response> {
   // Map tiles are public and many: no session lookup for them.
   if (context.url.pathname.startsWith('/tiles/')) {
     context.locals.actor = null;
@@ -51,4 +77,4 @@ export const onRequest = defineMiddleware(async (context, next) => {
     if (!mayEver(context.locals.actor, rule[1])) return context.rewrite('/forbidden');
   }
   return next();
-});
+}

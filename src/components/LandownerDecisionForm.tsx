@@ -1,12 +1,14 @@
 import { useState } from 'react';
 import { landownerDecisionSchema } from '../lib/accounts.schemas';
 import { postJson } from './api-client';
+import { useHydrated } from './useHydrated';
 
 /**
  * The admin's answer to a landowner: verify, or decline with a reason. Nothing is sent until the
  * admin confirms; the landowner is then e-mailed the outcome.
  */
 export default function LandownerDecisionForm({ userId, name, email }: { userId: string; name: string; email: string }) {
+  const hydrated = useHydrated();
   const [outcome, setOutcome] = useState<'verified' | 'declined'>('verified');
   const [reason, setReason] = useState('');
   const [confirming, setConfirming] = useState(false);
@@ -34,7 +36,7 @@ export default function LandownerDecisionForm({ userId, name, email }: { userId:
 
   if (confirming) {
     return (
-      <div role="alertdialog" aria-labelledby="confirm-heading" className="space-y-3 rounded-md border border-ember-500 bg-ember-50 p-4" data-hydrated="true">
+      <div role="alertdialog" aria-labelledby="confirm-heading" className="space-y-3 rounded-md border border-ember-500 bg-ember-50 p-4" data-hydrated={hydrated ? 'true' : undefined}>
         <p id="confirm-heading" className="font-semibold">
           {outcome === 'verified' ? `Verify ${name} as a landowner?` : `Decline to verify ${name}?`}
         </p>
@@ -52,7 +54,7 @@ export default function LandownerDecisionForm({ userId, name, email }: { userId:
   }
 
   return (
-    <form className="space-y-4" noValidate data-hydrated="true" onSubmit={(e) => { e.preventDefault(); review(); }}>
+    <form className="space-y-4" noValidate data-hydrated={hydrated ? 'true' : undefined} onSubmit={(e) => { e.preventDefault(); review(); }}>
       <fieldset className="space-y-2">
         <legend className="field-label">Outcome</legend>
         <label className="flex items-center gap-2 text-sm">

@@ -2,8 +2,10 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { useForm } from 'react-hook-form';
 import { signInSchema, type SignInInput } from '../lib/accounts.schemas';
 import { postJson } from './api-client';
+import { useHydrated } from './useHydrated';
 
 export default function SignInForm() {
+  const hydrated = useHydrated();
   const { register, handleSubmit, setError, formState } = useForm<SignInInput>({ resolver: zodResolver(signInSchema) });
   const { errors, isSubmitting } = formState;
 
@@ -18,7 +20,7 @@ export default function SignInForm() {
   });
 
   return (
-    <form onSubmit={onSubmit} noValidate className="space-y-4" data-hydrated="true">
+    <form method="post" onSubmit={onSubmit} noValidate className="space-y-4" data-hydrated={hydrated ? 'true' : undefined}>
       <div>
         <label htmlFor="email" className="field-label">E-mail address</label>
         <input

@@ -3,11 +3,13 @@ import { useForm } from 'react-hook-form';
 import type { z } from 'zod';
 import { signUpSchema } from '../lib/accounts.schemas';
 import { postJson } from './api-client';
+import { useHydrated } from './useHydrated';
 
 type Input = z.input<typeof signUpSchema>;
 type Output = z.output<typeof signUpSchema>;
 
 export default function SignUpForm() {
+  const hydrated = useHydrated();
   const { register, handleSubmit, setError, formState, watch } = useForm<Input, unknown, Output>({
     resolver: zodResolver(signUpSchema),
     defaultValues: { managesLand: false },
@@ -26,7 +28,7 @@ export default function SignUpForm() {
   });
 
   return (
-    <form onSubmit={onSubmit} noValidate className="space-y-4" data-hydrated="true">
+    <form method="post" onSubmit={onSubmit} noValidate className="space-y-4" data-hydrated={hydrated ? 'true' : undefined}>
       <div>
         <label htmlFor="name" className="field-label">Your name</label>
         <input id="name" autoComplete="name" className="field-input" aria-invalid={errors.name ? 'true' : 'false'} {...register('name')} />

@@ -1,4 +1,5 @@
 import { mailHtml, sendMail } from './mail';
+import { log } from './log';
 
 /**
  * The e-mail that tells a landowner how an admin answered their ask to be verified. A failed send is
@@ -26,6 +27,6 @@ export async function noticeLandownerDecision({ to, name, origin, verified, reas
       html: mailHtml({ heading, paragraphs, action }),
     });
   } catch (error) {
-    console.error(`could not send the landowner decision to ${to}:`, error);
+    log.error({ err: error }, 'could not send the landowner decision');
   }
 }

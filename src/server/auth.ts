@@ -8,6 +8,7 @@ import { accounts, sessions, users, verificationTokens } from '../db/schema';
 import { AppError } from '../lib/errors';
 import { mailHtml, sendMail } from './mail';
 import { spend } from './rate-limits';
+import { log } from './log';
 
 /**
  * Carries the requester's address from our sign-in endpoint into the mail record, in the process
@@ -75,8 +76,8 @@ export const authConfig: AuthConfig = {
     // A used or expired link is the visitor's mistake, shown to them on /sign-in/problem: one line here, no stack.
     error(error) {
       const type = (error as { type?: string }).type ?? error.name;
-      if (userMistakes.has(type)) console.warn(`sign-in link refused (${type}): ${error.message.split('\n')[0]}`);
-      else console.error(error);
+      if (userMistakes.has(type)) log.warn({ type }, 'sign-in link refused');
+      else log.error({ err: error }, 'sign-in failed');
     },
   },
 };

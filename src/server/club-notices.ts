@@ -7,6 +7,7 @@ import { formatDate } from '../lib/format';
 import { seasonReportCsv, seasonReportFileName } from '../lib/season-report-csv';
 import { entriesWords, reportLayout, reportTallyLine, seasonHeading, untakenLine } from '../lib/season-report-words';
 import { formatQuantities } from '../lib/tally-words';
+import { log } from './log';
 
 /** An invitation to a club, with the way in: sign in with the invited address, then open Club. */
 export async function noticeClubInvitation({ membershipId, email, origin, newAccount }: { membershipId: string; email: string; origin: string; newAccount: boolean }) {
@@ -23,7 +24,7 @@ export async function noticeClubInvitation({ membershipId, email, origin, newAcc
   try {
     await sendMail({ purpose: 'club-invitation', to: email, subject: heading, text: `${heading}\n\n${paragraphs.join('\n\n')}\n\nOpen Club: ${url}\n`, html: mailHtml({ heading, paragraphs, action: { label: 'Open Club', url } }) });
   } catch (error) {
-    console.error(`could not send the club invitation to ${email}:`, error);
+    log.error({ err: error }, 'could not send the club invitation');
   }
 }
 

@@ -3,6 +3,7 @@ import { entryNoticeFacts } from '../db/field-notices.queries';
 import { flagMemberFacts } from '../db/flags.queries';
 import { memberNoteMail, noticeMail } from '../lib/flag-words';
 import { mailHtml, sendMail } from './mail';
+import { log } from './log';
 
 /**
  * Tells the landowner (and the stewards of a club permit) at once about an entry that went over a
@@ -25,7 +26,7 @@ export async function noticeBreach({ entryId, origin }: { entryId: string; origi
         html: mailHtml({ heading: mail.heading, paragraphs: mail.paragraphs, action: { label: 'Open the parcel', url: mail.url } }),
       });
     } catch (error) {
-      console.error(`could not send ${mail.purpose} mail to ${to}:`, error);
+      log.error({ err: error, purpose: mail.purpose }, 'could not send a mail');
     }
   }
 }
@@ -48,7 +49,7 @@ export async function sendFlagNoteToMember({ flagId, authorId, note, origin }: {
     });
     return facts.foragerName;
   } catch (error) {
-    console.error(`could not send the flag note for flag ${flagId}:`, error);
+    log.error({ err: error, flagId }, 'could not send the flag note');
     return null;
   }
 }

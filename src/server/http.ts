@@ -6,6 +6,7 @@ import { jsonDepth, maxJsonDepth } from '../lib/json-depth';
 import { readCapped } from './request-body';
 import { decide, type Action, type Resource } from '../lib/permissions';
 import type { Actor } from '../lib/actor';
+import { log } from './log';
 
 export function json(body: unknown, status = 200, headers: HeadersInit = {}) {
   return new Response(JSON.stringify(body), { status, headers: { 'content-type': 'application/json', ...headers } });
@@ -20,12 +21,12 @@ export function endpoint(handler: (context: APIContext) => Promise<Response>): A
       if (error instanceof AppError) return json(error.toJSON(), error.status, { ...retryAfter(error), ...closeUnreadBody(error) });
       const refused = fromDatabaseRefusal(error);
       if (refused) return json(refused.toJSON(), refused.status);
-      console.error(error);
+      (context.locals.log ?? log).error({ err: error, route: context.routePattern }, 'endpoint failed');
       if (lostDatabaseConnection(error)) {
         const lost = context.request.method === 'GET' || context.request.method === 'HEAD' ? databaseUnavailable() : resultUnknown();
         return json(lost.toJSON(), lost.status, { 'retry-after': '5' });
       }
-      return json({ error: { code: 'internal', message: 'Something went wrong on our side. Try again in a moment; if it keeps happening, tell us what you were doing.' } }, 500);
+      return json({ error: { code: 'internal', message: 'Something went wrong on our side. Try again in a moment; if it keeps happening, tell us what you were doing and quote this request id.', requestId: context.locals.log?.bindings().requestId } }, 500);
     }
   };
 }

@@ -3,6 +3,7 @@ import { permitContacts } from '../db/permits.queries';
 import { formatMoney } from '../lib/format';
 import { limitChangeLine, tightenedLimits, type NamedLimit } from '../lib/limit-changes';
 import { mailHtml, sendMail } from './mail';
+import { log } from './log';
 
 /**
  * The e-mails about permits: a request to the landowner, the decision to the requester, an
@@ -20,7 +21,7 @@ async function send(to: string[], purpose: string, subject: string, heading: str
         html: mailHtml({ heading, paragraphs, action }),
       });
     } catch (error) {
-      console.error(`could not send ${purpose} mail to ${address}:`, error);
+      log.error({ err: error, purpose }, 'could not send a mail');
     }
   }
 }

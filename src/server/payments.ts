@@ -11,6 +11,7 @@ import type { Payment } from '../db/schema';
 import { AppError, conflict, forbidden, notFound } from '../lib/errors';
 import { formatDate, formatMoney } from '../lib/format';
 import { mailHtml, sendMail } from './mail';
+import { log } from './log';
 
 /** The provider's SDK, pointed at STRIPE_API_URL: the local fake by default, `https://api.stripe.com` for real money. */
 export const stripe = createStripeClient(STRIPE_API_URL, STRIPE_SECRET_KEY);
@@ -38,7 +39,7 @@ async function provider<T>(call: () => Promise<T>): Promise<T> {
 
 function throwProviderError(error: unknown): never {
   if (!(error instanceof Stripe.errors.StripeError)) throw error;
-  console.error('payment provider error:', error.type, error.message);
+  log.error({ type: error.type, message: error.message }, 'payment provider error');
   throw new AppError(502, 'payments-unavailable', 'The payment service did not accept the request just now; nothing was charged or refunded. Try again in a minute.');
 }
 
@@ -153,7 +154,7 @@ async function settleCheckout(tx: Tx, session: Stripe.Checkout.Session, now: Dat
   const mismatch = checkoutMismatch(session, payment);
   if (mismatch) {
     // Signed by the provider yet not what we asked for: nothing is settled, and staff must look.
-    console.error(`payment ${payment.id}: checkout ${session.id} was not settled: ${mismatch}`);
+    log.error({ paymentId: payment.id, checkoutId: session.id, mismatch }, 'checkout was not settled');
     return null;
   }
   const intent = typeof session.payment_intent === 'string' ? session.payment_intent : (session.payment_intent?.id ?? null);
@@ -190,7 +191,7 @@ async function refundLatePayment({ paymentId, origin }: { paymentId: string; ori
     });
     if (refunded) await mailRefund(paymentId, reason, origin);
   } catch (error) {
-    console.error(`payment ${paymentId} needs a refund by hand:`, error);
+    log.error({ err: error, paymentId }, 'payment needs a refund by hand');
   }
 }
 
@@ -251,7 +252,7 @@ async function mailPayer(
       html: mailHtml({ heading: subject, paragraphs, action }),
     });
   } catch (error) {
-    console.error(`could not send the ${purpose} mail for payment ${paymentId}:`, error);
+    log.error({ err: error, paymentId, purpose }, 'could not send a payment mail');
   }
 }
 

@@ -3,6 +3,7 @@ import type { JSONWebKeySet } from 'jose';
 import { PERMIT_SIGNING_KEY, TALLYWOOD_LOCAL_MODE } from 'astro:env/server';
 import { signPermitStatement, type PermitStatement } from '../lib/permit-statement';
 import { parseSigningKey, publicJwkOf } from './signing-key';
+import { log } from './log';
 
 /**
  * The key that signs permit cards, from PERMIT_SIGNING_KEY. A deployment refuses to start without it
@@ -19,7 +20,7 @@ function loadSigner(): Promise<Signer> {
     let key: KeyObject;
     if (PERMIT_SIGNING_KEY) key = parseSigningKey(PERMIT_SIGNING_KEY);
     else if (TALLYWOOD_LOCAL_MODE) {
-      console.warn('PERMIT_SIGNING_KEY is not set: permit cards are signed with a key that lasts until this server stops.');
+      log.warn('PERMIT_SIGNING_KEY is not set: permit cards are signed with a key that lasts until this server stops.');
       key = generateKeyPairSync('ed25519').privateKey;
     } else throw new Error('PERMIT_SIGNING_KEY is not set');
     return { key, jwk: await publicJwkOf(key) };

@@ -233,9 +233,45 @@ test('given a sign-in link opened a second time, the visitor is told it was used
     const again = await raw(`${server.url}${path}`);
     expect(again.status).toBe(302);
     expect(again.location).toContain('/sign-in/problem?error=Verification');
-    await expect.poll(() => server.output()).toContain('sign-in link refused (Verification)');
+    await expect.poll(() => server.output()).toContain('"msg":"sign-in link refused"');
     const logged = server.output().split('\n').filter((line) => /Verification|^\s+at /.test(line));
     expect(logged).toHaveLength(1);
+    expect(JSON.parse(logged[0])).toMatchObject({ level: 40, type: 'Verification', msg: 'sign-in link refused' });
+  } finally {
+    await server.stop();
+  }
+});
+
+test('given requests with a name, an e-mail address and a position, the log has a JSON line for each with its id, route, status and time, and none of those personal facts', async () => {
+  const server = await serve({});
+  try {
+    const email = `log-reader-${randomUUID().slice(0, 8)}@example.org`;
+    const name = `Quillon Marsh ${randomUUID().slice(0, 4)}`;
+    const signUp = await raw(`${server.url}/api/sign-up`, { method: 'POST', headers: { 'content-type': 'application/json' }, body: JSON.stringify({ email, name, managesLand: false }) });
+    expect(signUp.status, signUp.body).toBe(201);
+    const state = JSON.parse(readFileSync(sessionFile('forager@example.org'), 'utf8')) as { cookies: { name: string; value: string }[] };
+    const cookie = state.cookies.map((c) => `${c.name}=${c.value}`).join('; ');
+    // An unusual position, so that its digits cannot appear in a log line by chance.
+    const position = { longitude: -71.123457, latitude: 43.987653, accuracyM: 7 };
+    const checkIn = await raw(`${server.url}/api/check-ins`, { method: 'POST', headers: { 'content-type': 'application/json', origin: server.url, cookie }, body: JSON.stringify(position) });
+    expect(checkIn.status, checkIn.body).toBeLessThan(500);
+    const parcel = await raw(`${server.url}/api/parcels/00000000-0000-4000-8000-000000000000`, { headers: { cookie } });
+    expect(parcel.status).toBeGreaterThanOrEqual(400);
+
+    await expect.poll(() => server.output().split('\n').filter((line) => line.includes('"route":"/api/check-ins"')).length).toBeGreaterThan(0);
+    const lines = server.output().split('\n').filter((line) => line.startsWith('{')).map((line) => JSON.parse(line) as Record<string, unknown>);
+    const answered = lines.filter((line) => line.msg === 'answered');
+    expect(answered.map((line) => line.route)).toEqual(expect.arrayContaining(['/api/sign-up', '/api/check-ins', '/api/parcels/[id]']));
+    for (const line of answered) {
+      expect(line.requestId).toMatch(/^[0-9a-f-]{36}$/);
+      expect(typeof line.status).toBe('number');
+      expect(typeof line.ms).toBe('number');
+    }
+    expect(answered.find((line) => line.route === '/api/parcels/[id]')?.status).toBe(parcel.status);
+    // Request ids are each request's own.
+    expect(new Set(answered.map((line) => line.requestId)).size).toBe(answered.length);
+    const everything = server.output();
+    for (const secret of [email, name, '71.123457', '43.987653', state.cookies[0]?.value ?? 'no-cookie']) expect(everything).not.toContain(secret);
   } finally {
     await server.stop();
   }

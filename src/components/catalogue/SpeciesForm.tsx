@@ -4,6 +4,7 @@ import { lookalikeDangers, speciesKinds, speciesSchema, type SpeciesFormInput, t
 import { methods } from '../../lib/land.schemas';
 import { unitCodes, units } from '../../lib/units';
 import { sendJson } from '../api-client';
+import { useHydrated } from '../useHydrated';
 
 const methodLabels: Record<(typeof methods)[number], string> = {
   cut: 'cut above ground', pick: 'pick', dig: 'dig roots or bulbs', strip: 'strip bark', 'gather-fallen': 'gather fallen',
@@ -16,6 +17,7 @@ const blank: SpeciesFormInput = {
 
 /** The admin's form for a species and its cautions, each with its source. Adds a species, or changes one (`speciesId`). */
 export default function SpeciesForm({ speciesId, initial }: { speciesId?: string; initial?: SpeciesFormInput }) {
+  const hydrated = useHydrated();
   const { register, control, handleSubmit, setError, formState } = useForm<SpeciesFormInput, unknown, SpeciesInput>({
     resolver: zodResolver(speciesSchema),
     defaultValues: initial ?? blank,
@@ -37,7 +39,7 @@ export default function SpeciesForm({ speciesId, initial }: { speciesId?: string
   const fieldError = (message: string | undefined) => message && <p role="alert" className="field-error">{message}</p>;
 
   return (
-    <form onSubmit={onSubmit} noValidate className="space-y-5" data-hydrated="true" data-testid="species-form">
+    <form onSubmit={onSubmit} noValidate className="space-y-5" data-hydrated={hydrated ? 'true' : undefined} data-testid="species-form">
       <div className="grid gap-4 sm:grid-cols-2">
         <div>
           <label htmlFor="species-common" className="field-label">Common name</label>

@@ -11,6 +11,7 @@ import { fieldSentMessage, queuedRecords, savedPack, savePack, type QueuedRecord
 /** Sending what the phone kept is loaded when there is something to send or keep, not with the page. */
 const sync = () => import('./sync');
 import PackStatus from './PackStatus';
+import { useHydrated } from '../useHydrated';
 
 // Not needed for the first verdict, so loaded when a verdict shows them (the service worker keeps them for offline use).
 const HarvestPanel = lazy(() => import('./HarvestPanel'));
@@ -38,6 +39,7 @@ function countedNow(queue: QueuedRecord[], pack: FieldPack): CountedEntry[] {
 
 /** The Field screen: check in, the verdict, what remains, and the harvest form. Phone first, and it works with no signal once the pack is on the phone. */
 export default function FieldApp({ tiles, parcels, userId }: { tiles: ParcelMapProps['tiles']; parcels: MapFeature[]; userId: string }) {
+  const hydrated = useHydrated();
   const [pack, setPack] = useState<FieldPack | null>(null);
   const [packBusy, setPackBusy] = useState(false);
   const [tileProgress, setTileProgress] = useState<{ done: number; of: number } | null>(null);
@@ -237,7 +239,7 @@ export default function FieldApp({ tiles, parcels, userId }: { tiles: ParcelMapP
   const waiting = queue.filter((r) => r.state === 'waiting' && r.kind === 'entry').length;
 
   return (
-    <div className="lg:grid lg:grid-cols-[minmax(0,1fr)_26rem] lg:items-start lg:gap-6" data-hydrated="true">
+    <div className="lg:grid lg:grid-cols-[minmax(0,1fr)_26rem] lg:items-start lg:gap-6" data-hydrated={hydrated ? 'true' : undefined}>
       <div className="min-w-0 space-y-4">
         <PackStatus pack={pack} now={now} busy={packBusy} tiles={tileProgress} maxAgeDays={packMaxAgeDays} onGet={() => void getPack({ told: true })} />
         <div className="flex flex-wrap gap-3">

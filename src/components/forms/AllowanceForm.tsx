@@ -5,6 +5,7 @@ import type { z } from 'zod';
 import { allowanceSchema, methods, parcelLimitScopes } from '../../lib/land.schemas';
 import { unitCodes, units } from '../../lib/units';
 import { sendJson } from '../api-client';
+import { useHydrated } from '../useHydrated';
 
 type Input = z.input<typeof allowanceSchema>;
 type Output = z.output<typeof allowanceSchema>;
@@ -41,6 +42,7 @@ export default function AllowanceForm({ action, species, existing = [], editing,
   /** Keeps ids unique when several forms share a page. */
   idPrefix?: string;
 }) {
+  const hydrated = useHydrated();
   const initialTarget = existing.find((a) => a.allowanceId === editing);
   const firstFree = species.find((s) => !existing.some((a) => a.speciesId === s.id)) ?? species[0];
   const [target, setTarget] = useState<ExistingAllowance | undefined>(initialTarget);
@@ -79,7 +81,7 @@ export default function AllowanceForm({ action, species, existing = [], editing,
 
   const id = (name: string) => `${idPrefix}-${name}`;
   return (
-    <form onSubmit={onSubmit} noValidate className="space-y-4" data-hydrated="true" data-testid={editing ? `allowance-edit-${editing}` : 'allowance-form'}>
+    <form onSubmit={onSubmit} noValidate className="space-y-4" data-hydrated={hydrated ? 'true' : undefined} data-testid={editing ? `allowance-edit-${editing}` : 'allowance-form'}>
       <div>
         <label htmlFor={id('species')} className="field-label">Species</label>
         <select id={id('species')} className="field-input" disabled={Boolean(editing)} aria-describedby={target && !editing ? id('species-note') : undefined} {...speciesField}>

@@ -2,6 +2,7 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { useForm, type FieldValues, type Path, type Resolver } from 'react-hook-form';
 import { sendJson } from '../api-client';
 import { formSchemas, type FormSchemaName } from './form-schemas';
+import { useHydrated } from '../useHydrated';
 
 /** One field of a flat form; `name` may be a dot path (holder.email). */
 export type FieldSpec = {
@@ -35,6 +36,7 @@ const get = (values: unknown, path: string): unknown => path.split('.').reduce<u
  * from the server shown beside the field they name.
  */
 export default function SimpleForm({ schema, action, method = 'POST', fields, submitLabel, defaults = {}, then = 'reload', testId }: SimpleFormProps) {
+  const hydrated = useHydrated();
   const { register, handleSubmit, setError, watch, formState } = useForm<FieldValues>({
     resolver: zodResolver(formSchemas[schema] as never) as unknown as Resolver<FieldValues>,
     defaultValues: defaults,
@@ -55,7 +57,7 @@ export default function SimpleForm({ schema, action, method = 'POST', fields, su
   });
 
   return (
-    <form onSubmit={onSubmit} noValidate className="space-y-3" data-hydrated="true" data-testid={testId}>
+    <form onSubmit={onSubmit} noValidate className="space-y-3" data-hydrated={hydrated ? 'true' : undefined} data-testid={testId}>
       {visible.map((f) => {
         const id = `${testId ?? schema}-${f.name.replace(/\./g, '-')}`;
         const message = (get(errors, f.name) as { message?: string } | undefined)?.message;

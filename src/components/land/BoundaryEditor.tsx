@@ -4,6 +4,7 @@ import ParcelMap, { type ParcelMapProps } from '../map/ParcelMap';
 import { sendJson, type ApiResult } from '../api-client';
 import { formatArea } from '../../lib/format';
 import type { BoundaryGeometry } from '../../lib/land.schemas';
+import { useHydrated } from '../useHydrated';
 
 type Problem = { code: string; message: string; at?: [number, number] };
 type Warning = { code: string; message: string };
@@ -43,6 +44,7 @@ function merged(features: Checked[]): BoundaryGeometry {
  * is the authority) and the result is previewed, with problems marked where they are, before saving.
  */
 export default function BoundaryEditor({ mode, parcelId, tiles, initial, context }: Props) {
+  const hydrated = useHydrated();
   const [source, setSource] = useState<'draw' | 'upload'>('draw');
   const [drawn, setDrawn] = useState<BoundaryGeometry | null>(initial ?? null);
   const [checked, setChecked] = useState<Checked[]>([]);
@@ -118,7 +120,7 @@ export default function BoundaryEditor({ mode, parcelId, tiles, initial, context
 
   const canSave = chosen.length > 0 && chosen.every((c) => c.ok) && (mode === 'edit' || fields.name.trim() !== '');
   return (
-    <div className="space-y-4" data-testid={`boundary-editor-${mode}`} data-hydrated="true">
+    <div className="space-y-4" data-testid={`boundary-editor-${mode}`} data-hydrated={hydrated ? 'true' : undefined}>
       {mode !== 'zone' && (
         <div role="tablist" className="flex gap-2">
           <button type="button" role="tab" aria-selected={source === 'draw'} className={source === 'draw' ? 'button' : 'button-quiet'} onClick={() => setSource('draw')}>Draw on the map</button>

@@ -22,7 +22,7 @@ export const POST = endpoint(async ({ locals, params, request, url }) => {
   // The revocation stands whatever the provider says; a refund that fails is reported, not hidden.
   const refund = beforeStart
     ? await refundPermitFee(db, { permitId, actorId: actor.id, reason, origin: url.origin, now }).catch((error) => {
-        console.error('refund after revocation failed:', error);
+        locals.log.error({ err: error, permitId }, 'refund after revocation failed');
         return { outcome: 'failed' as const };
       })
     : null;

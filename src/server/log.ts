@@ -1,0 +1,21 @@
+import { LOG_LEVEL } from 'astro:env/server';
+import pino from 'pino';
+
+/**
+ * The server's log: one JSON object a line on standard output (pino), for a log collector to read.
+ * Every request gets a line with its id, method, route pattern, status and time taken
+ * (src/middleware.ts); a failure is logged with the id of the request it happened in.
+ *
+ * No personal data and no positions: lines name routes by their pattern (`/api/parcels/[id]`), never
+ * the address asked for with its query, and never e-mail addresses, names, bodies or coordinates.
+ * Errors keep their message and stack, which our own code writes without those.
+ * LOG_LEVEL sets the least level written (default `info`; `silent` writes nothing).
+ */
+export const log = pino({
+  level: LOG_LEVEL,
+  base: { service: 'tallywood' },
+  timestamp: pino.stdTimeFunctions.isoTime,
+  serializers: { err: pino.stdSerializers.err },
+});
+
+export type Log = typeof log;
