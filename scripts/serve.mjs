@@ -25,6 +25,24 @@ const server = createServer((req, res) => {
   trustedHeaders(req.headers, req.socket.remoteAddress, trusted);
   handler(req, res);
 });
+
+/**
+ * Lingering close (RFC 9112 §9.6). A refused upload (413, 415) is answered before its body has
+ * arrived, on a connection that then closes. Closing the socket while the client is still sending
+ * makes the kernel reset the connection, and the reset can erase the answer before the client reads
+ * it. So a closing connection sends its answer and its FIN, then reads and drops whatever still
+ * comes, until the client closes its side or for at most two seconds.
+ */
+const lingerMs = 2000;
+server.on('connection', (socket) => {
+  socket.destroySoon = function lingeringClose() {
+    if (this.writable) this.end();
+    this.resume();
+    const timer = setTimeout(() => this.destroy(), lingerMs).unref();
+    this.once('close', () => clearTimeout(timer));
+    this.once('end', () => (this.writableFinished ? this.destroy() : this.once('finish', () => this.destroy())));
+  };
+});
 server.listen(port, host, () => {
   const proxies = trusted.size > 0 ? `forwarded headers only from ${[...trusted].join(', ')}` : 'no forwarded headers';
   console.log(`Tallywood is serving http://${host}:${port} (trusting ${proxies})`);
