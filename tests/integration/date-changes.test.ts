@@ -12,7 +12,7 @@ import { createThrowawayDatabase, insertUser, migrationsFolder, one, referenceBo
  * The `date-changes` job at injected instants on a database of its own: a permit begins at its
  * parcel's local midnight and a visit left open closes at the end of its parcel-local day, whatever
  * the UTC date. Offsets and the 2026 changes are the IANA tz data's (REFERENCES §6: `zdump -v` of
- * the system's tzdata): America/New_York is EDT (UTC−4) until 2026-11-01T06:00Z, then EST (UTC−5);
+ * the system’s tzdata): America/New_York is EDT (UTC−4) until 2026-11-01T06:00Z, then EST (UTC−5);
  * Pacific/Auckland is NZDT (UTC+13) from 2026-09-26T14:00Z to 2027-04-03T14:00Z.
  * The last test starts the queue itself, as the server does, signed in as the app's role.
  */
