@@ -47,9 +47,21 @@ server.listen(port, host, () => {
   const proxies = trusted.size > 0 ? `forwarded headers only from ${[...trusted].join(', ')}` : 'no forwarded headers';
   console.log(`Tallywood is serving http://${host}:${port} (trusting ${proxies})`);
 });
+// On SIGINT or SIGTERM: stop taking requests and jobs, let a job being run finish
+// (src/server/startup.ts leaves the function that stops the queue), then exit. A second signal exits at once.
+let stopping = false;
 for (const signal of ['SIGINT', 'SIGTERM']) {
-  process.on(signal, () => {
-    server.close(() => process.exit(0));
+  process.on(signal, async () => {
+    if (stopping) process.exit(1);
+    stopping = true;
+    const closed = new Promise((done) => server.close(done));
     server.closeAllConnections();
+    const stopJobs = globalThis[Symbol.for('tallywood.shutdown')];
+    try {
+      await Promise.all([closed, typeof stopJobs === 'function' ? stopJobs() : undefined]);
+    } catch (error) {
+      console.error('the job queue did not stop cleanly:', error instanceof Error ? error.message : error);
+    }
+    process.exit(0);
   });
 }

@@ -2,8 +2,6 @@ import type { APIContext, MiddlewareNext } from 'astro';
 import { defineMiddleware } from 'astro:middleware';
 import { db } from './db';
 import { findActorBySession } from './db/accounts.queries';
-import { closeStaleVisits } from './db/field.commands';
-import { advancePermitsByDate } from './db/permits.lifecycle';
 import { mayEver, type Action } from './lib/permissions';
 import { sessionCookieName } from './server/auth';
 import { log } from './server/log';
@@ -22,19 +20,6 @@ const pageRules: [prefix: string, action: Action][] = [
   ['/catalogue', 'catalogue:read'],
   ['/accounts', 'account:list'],
 ];
-
-/**
- * Permits start and expire by date. Any instance may move them (the rows are locked, the moves
- * idempotent), so each does so at most every few minutes while it serves requests.
- */
-const advanceEveryMs = 5 * 60 * 1000;
-let lastAdvance = 0;
-function advancePermitsNow(now: Date) {
-  if (now.getTime() - lastAdvance < advanceEveryMs) return;
-  lastAdvance = now.getTime();
-  db.transaction((tx) => advancePermitsByDate(tx, { now })).catch((error) => log.error({ err: error }, 'advancing permits by date failed'));
-  closeStaleVisits(db, { now }).catch((error) => log.error({ err: error }, 'closing stale visits failed'));
-}
 
 /**
  * Each request gets an id, returned in `x-request-id` so a person can quote it, and one log line
@@ -66,7 +51,6 @@ async function answer(context: APIContext, next: MiddlewareNext): Promise<Respon
     context.locals.actor = null;
     return next();
   }
-  advancePermitsNow(new Date());
   const token = context.cookies.get(sessionCookieName(context.url))?.value;
   context.locals.actor = token ? await findActorBySession(db, { sessionToken: token, now: new Date() }) : null;
 

@@ -40,7 +40,7 @@ export const missingLabels: Record<Missing, string> = {
 
 /**
  * How a permit stands on a day, as a permit card's check answers it: `active`, `expired` (its last
- * day has passed, even before the hourly move records it), `revoked` (with the parcel-local day it
+ * day has passed, even before the date-changes job records it), `revoked` (with the parcel-local day it
  * was revoked), or another state, which a card is never made for.
  */
 export type PermitStanding =

@@ -1,7 +1,10 @@
 import {
-  AUTH_SECRET, PERMIT_SIGNING_KEY, PUBLIC_HOSTNAME, SMTP_URL, STRIPE_API_URL, STRIPE_SECRET_KEY, STRIPE_WEBHOOK_SECRET, TALLYWOOD_LOCAL_MODE, TRUSTED_PROXIES,
+  AUTH_SECRET, DATABASE_URL, PERMIT_SIGNING_KEY, PUBLIC_HOSTNAME, SMTP_URL, STRIPE_API_URL, STRIPE_SECRET_KEY, STRIPE_WEBHOOK_SECRET, TALLYWOOD_LOCAL_MODE, TRUSTED_PROXIES,
 } from 'astro:env/server';
+import { db } from '../db';
 import { deploymentProblems } from './deployment';
+import { startJobs, stopJobs } from './jobs/queue';
+import { log } from './log';
 
 /*
  * Imported by the built server entry (astro.config.mjs, startupCheck) before it starts listening:
@@ -23,3 +26,21 @@ if (problems.length > 0) {
   console.error(`Tallywood will not start until this is set:\n${problems.map((p) => `  - ${p}`).join('\n')}`);
   process.exit(1);
 }
+
+/*
+ * The job queue (src/server/jobs/) starts with the server. If the database does not answer yet, it is
+ * tried again every minute; requests are served meanwhile. scripts/serve.mjs stops it on SIGTERM or
+ * SIGINT through the function left under `Symbol.for('tallywood.shutdown')`: a job being run finishes first.
+ */
+let retry: NodeJS.Timeout | undefined;
+function startQueue() {
+  startJobs({ db, databaseUrl: DATABASE_URL, log }).catch((error: unknown) => {
+    log.error({ err: error }, 'jobs: the queue did not start; trying again in a minute');
+    retry = setTimeout(startQueue, 60_000).unref();
+  });
+}
+startQueue();
+(globalThis as Record<symbol, unknown>)[Symbol.for('tallywood.shutdown')] = async () => {
+  clearTimeout(retry);
+  await stopJobs();
+};

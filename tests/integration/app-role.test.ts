@@ -145,6 +145,21 @@ describe('the records, as the app', () => {
     }
   });
 
+  it("given the job queue's schema (0017), it refuses the app to make or alter anything there, and lets it run create_queue, which makes the queue's table as its owner", async () => {
+    for (const statement of [
+      'create table pgboss.probe (id integer)',
+      'alter table pgboss.job add column probe integer',
+      'truncate pgboss.job',
+      "create function pgboss.probe() returns integer language sql as 'select 1'",
+    ]) {
+      expect(await refusal(client(), statement), statement).toMatchObject({ code: insufficientPrivilege });
+    }
+    const [row] = await client()`
+      select has_function_privilege('pgboss.create_queue(text, json)', 'execute') as may,
+        (select prosecdef from pg_proc where oid = 'pgboss.create_queue(text, json)'::regprocedure) as as_owner`;
+    expect(row).toEqual({ may: true, as_owner: true });
+  });
+
   it('given the trigger that keeps the totals, it refuses the app to run it from a trigger of its own', async () => {
     const [row] = await client()`select has_function_privilege('add_to_harvest_totals()', 'execute') as may`;
     expect(row?.may).toBe(false);

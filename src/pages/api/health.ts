@@ -1,19 +1,29 @@
 import { db } from '../../db';
 import { migrationStatus, postgisVersion } from '../../db/migrations';
 import { endpoint, json } from '../../server/http';
+import { readQueueHealth } from '../../server/jobs/queue-health';
 import { log } from '../../server/log';
 
 /**
  * For load balancers and people: is the database there, with PostGIS and every migration? Anyone
- * may ask, so the answer is a status word only; what went wrong, with versions and counts, goes to
- * the server's log.
+ * may ask, so the answer is a status word and three counts only; what went wrong, with versions and
+ * counts, goes to the server's log. The counts are the job queue's (src/server/jobs/): jobs due and
+ * not yet taken, jobs that failed after their retries, and how many seconds ago one last completed
+ * (null when none has). `queue` is null when its tables could not be read, which is logged.
  */
 export const GET = endpoint(async () => {
   try {
-    const [postgis, migrations] = await Promise.all([postgisVersion(db), migrationStatus(db)]);
+    const [postgis, migrations, queue] = await Promise.all([
+      postgisVersion(db),
+      migrationStatus(db),
+      readQueueHealth(db).catch((error: unknown) => {
+        log.error({ err: error }, 'health: the job queue could not be read');
+        return null;
+      }),
+    ]);
     const status = postgis === null ? 'postgis-missing' : migrations.upToDate ? 'ready' : 'migrations-pending';
     if (status !== 'ready') log.error({ status, postgis, applied: migrations.applied, known: migrations.known }, 'health: not ready');
-    return json({ ok: status === 'ready', status }, status === 'ready' ? 200 : 503);
+    return json({ ok: status === 'ready', status, queue }, status === 'ready' ? 200 : 503);
   } catch (error) {
     log.error({ err: error }, 'health: the database did not answer');
     return json({ ok: false, status: 'database-unreachable' }, 503);

@@ -1,0 +1,100 @@
+import PgBoss from 'pg-boss';
+import type { Db } from '../../db/client';
+import type { Log } from '../log';
+import { dateChanges } from './date-changes';
+import type { JobDefinition } from './registry';
+
+/**
+ * Work that runs on time, not on requests, through a job queue kept in PostgreSQL (pg-boss 10, schema
+ * `pgboss`, made by drizzle/0017_job_queue.sql). Each app process that calls startJobs works every
+ * queue here and keeps its schedule.
+ *
+ * Several processes on one database still run each scheduled job once. The schedules live in one table
+ * (pgboss.schedule). Every 30 s each process tries to stamp `pgboss.version.cron_on`; the UPDATE only
+ * matches when the last stamp is over 30 s old, so one process wins the row and queues what is due, as
+ * a job with a singleton key and a 60-second slot that a unique index holds to one per minute. A worker
+ * then takes each job with SELECT … FOR UPDATE SKIP LOCKED, so exactly one process runs it.
+ */
+export const appJobs: readonly JobDefinition[] = [dateChanges];
+
+export type AppJobName = (typeof appJobs)[number]['name'];
+
+const schema = 'pgboss';
+/** How often an idle worker asks for a job (pg-boss's default is 2 s). */
+const pollingIntervalSeconds = 5;
+
+let running: { boss: PgBoss; log: Log } | null = null;
+let starting: Promise<void> | null = null;
+
+/**
+ * Starts the queue: checks that the migration made pg-boss's schema (it never makes or changes it
+ * itself), creates each job's queue, keeps each cron, and works them. A job with a cron is also sent
+ * once now (at most once a minute across processes), so a server that was down at midnight catches up.
+ */
+export function startJobs(options: { db: Db; databaseUrl: string; log: Log; jobs?: readonly JobDefinition[] }): Promise<void> {
+  starting ??= start(options).catch((error: unknown) => {
+    starting = null;
+    throw error;
+  });
+  return starting;
+}
+
+async function start({ db, databaseUrl, log, jobs = appJobs }: { db: Db; databaseUrl: string; log: Log; jobs?: readonly JobDefinition[] }) {
+  const boss = new PgBoss({
+    connectionString: databaseUrl,
+    schema,
+    migrate: false,
+    max: 3,
+    application_name: 'tallywood-jobs',
+    // Failed jobs stay in pgboss.job, where /api/health counts them, for three days before they are archived.
+    archiveFailedAfterSeconds: 3 * 24 * 60 * 60,
+  });
+  boss.on('error', (error) => log.error({ err: error }, 'jobs: the queue reported an error'));
+  try {
+    await boss.start();
+    for (const job of jobs) {
+      await boss.createQueue(job.name, { name: job.name, ...job.queue });
+      await boss.work<object>(job.name, { batchSize: 1, pollingIntervalSeconds }, async (batch) => {
+        for (const item of batch) await runJob(job, { db, log, id: item.id, data: item.data });
+      });
+      if (job.cron) {
+        await boss.schedule(job.name, job.cron, {}, { tz: 'UTC' });
+        await boss.send(job.name, {}, { singletonKey: 'on-start', singletonSeconds: 60 });
+      }
+    }
+  } catch (error) {
+    await boss.stop({ graceful: false }).catch(() => {});
+    throw error;
+  }
+  running = { boss, log };
+  log.info({ jobs: jobs.map((job) => job.name) }, 'jobs: the queue started');
+}
+
+async function runJob(job: JobDefinition, { db, log, id, data }: { db: Db; log: Log; id: string; data: object }) {
+  const jobLog = log.child({ job: job.name, jobId: id });
+  const started = performance.now();
+  try {
+    await job.run({ db, now: new Date(), data, log: jobLog });
+  } catch (error) {
+    jobLog.error({ err: error }, 'job failed');
+    throw error; // pg-boss marks it failed and retries it as its queue says
+  }
+  jobLog.info({ ms: Math.round(performance.now() - started) }, 'job done');
+}
+
+/** Stops taking jobs, lets one being run finish (up to 10 s), and closes the queue's connections. */
+export async function stopJobs() {
+  await starting?.catch(() => {});
+  const current = running;
+  running = null;
+  starting = null;
+  if (!current) return;
+  await current.boss.stop({ graceful: true, timeout: 10_000 });
+  current.log.info('jobs: the queue stopped');
+}
+
+/** Queues one run of a job now (or as `options` say, e.g. `startAfter`); its id, or null when a singleton refused it. */
+export async function sendJob(name: AppJobName, data: object = {}, options: PgBoss.SendOptions = {}): Promise<string | null> {
+  if (!running) throw new Error('the job queue is not running');
+  return running.boss.send(name, data, options);
+}
