@@ -44,7 +44,7 @@ export const landOperations: ApiOperation[] = [
   {
     method: 'post', path: '/api/boundaries/check', tag: 'parcels', summary: 'Check an uploaded file (multipart `file`: GeoJSON, KML, GPX) or a drawn geometry; saves nothing', who: 'Landowners',
     description: overlapWarnings, body: z.object({ geometry: boundaryGeometry }), multipart: { field: 'file', description: 'A GeoJSON, KML or GPX file' },
-    ok: { status: 200, description: 'The boundary as read, its problems and its warnings' },
+    ok: { status: 200, description: '`{ format, notes, features: [{ name, geometry, ok, problems, warnings… }] }`: a geometry it could read is answered here, with `ok: false` and its problems when it cannot be saved' },
   },
   { method: 'post', path: '/api/parcels/{id}/zones', tag: 'parcel rules', summary: 'Add a no-harvest zone inside the parcel', who: owner, body: zoneSchema, ok: created('zone') },
   { method: 'delete', path: '/api/parcels/{id}/zones/{zoneId}', tag: 'parcel rules', summary: 'Remove a zone', who: owner, ok: { status: 200, description: 'Removed' } },
