@@ -9,13 +9,17 @@ export const emailAddress = z
   .toLowerCase()
   .pipe(z.email('That does not look like an e-mail address; it should look like name@example.org.'));
 
-/** Where to land after the link is opened: a path on this site only (never another host). */
+/**
+ * Where to land after the link is opened: a path on this site only (never another host). Anything
+ * else is ignored, not refused; the meta says so for the OpenAPI document, which cannot read a catch.
+ */
 const nextPath = z
   .string()
   .regex(/^\/(?!\/)[^\s]*$/, 'Only a path on this site.')
   .max(500)
   .optional()
-  .catch(undefined);
+  .catch(undefined)
+  .meta({ type: 'string', maxLength: 500, pattern: '^\\/(?!\\/)[^\\s]*$', description: 'A path on this site to open after signing in; anything else is ignored' });
 
 /** Text a person may leave empty: empty or missing is stored as nothing. */
 function optionalText(max: number, tooLong: string) {
