@@ -123,7 +123,7 @@ test('given a steward, a new member and a landowner, the club permit, a breach, 
   const noteMail = (await mailFor(steward.request, memberEmail)).find((m) => m.subject === noteSubject);
   expect(noteMail?.text).toContain('Marisol Kent, a steward of Three Ridges Foraging Society, wrote about your entry of 1,200 g of Oyster mushroom');
   expect(noteMail?.text).toContain('"Spoke with the member; the extra was shared at the club walk. Reminded of the 1 kg day limit."');
-  expect(noteMail?.text).toContain('How much over: 0.2 kg over the limit of 1 kg per day (1.2 kg counted)');
+  expect(noteMail?.text).toContain('How much over: 0.2 kg over the limit of 1 kg a day (1.2 kg counted)');
   expect([localDay(savedAt), localDay(new Date())].some((day) => noteMail?.text.includes(`counted on ${day}`)), noteMail?.text).toBe(true);
   await club.getByRole('button', { name: 'All', exact: true }).click();
   await expect(club.locator('[data-flag]').filter({ hasText: parcelName })).toHaveAttribute('data-handled', 'true');
