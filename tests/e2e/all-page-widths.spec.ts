@@ -72,8 +72,14 @@ function pagesOf(ids: DemoIds): Record<string, Visit[]> {
   };
 }
 
-/** Waits until the islands are hydrated (Astro drops `ssr` from a hydrated island) and nothing on the page says it is loading. */
+/**
+ * Waits until the islands are hydrated (Astro drops `ssr` from a hydrated island) and nothing on the
+ * page says it is loading. An island hydrated only once seen (`client:visible`, the map) is scrolled to.
+ */
 async function settle(page: Page) {
+  await page.waitForLoadState('load');
+  // An island is `display: contents`: what Astro watches coming into view is its first child.
+  await page.evaluate(() => document.querySelectorAll('astro-island[ssr][client="visible"]').forEach((island) => (island.firstElementChild ?? island).scrollIntoView()));
   await expect(page.locator('astro-island[ssr]')).toHaveCount(0);
   await expect(page.locator('[data-status="loading"]')).toHaveCount(0);
   await expect(page.locator('main').getByText(/^Loading\b/)).toHaveCount(0);

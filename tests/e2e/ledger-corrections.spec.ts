@@ -262,6 +262,9 @@ test("given Owen's entry with a photo, Walter opens it from his parcel's Tallies
   const shown = await page.request.get(`/api/photos/${photoId}`);
   expect(Buffer.compare(await shown.body(), original)).not.toBe(0);
   expect(await page.evaluate(() => document.documentElement.scrollWidth <= window.innerWidth)).toBe(true);
+  // Nor does the audit's frame scroll sideways with the entries open (1 px for rounding, as above).
+  const frame = await page.locator('table:has(caption:text("Tallies for the season"))').evaluate((t) => ({ scrollWidth: (t.parentElement as HTMLElement).scrollWidth, clientWidth: (t.parentElement as HTMLElement).clientWidth }));
+  expect(frame.scrollWidth).toBeLessThanOrEqual(frame.clientWidth + 1);
   await page.context().close();
 });
 
