@@ -305,24 +305,33 @@ export type AuditEntry = {
   visitId: string | null;
   /** Only in a landowner's view: [longitude, latitude]. */
   position: [number, number] | null;
+  /**
+   * The entry's photo, when the forager who recorded it uploaded it (findPhotoForViewer's rule), and
+   * whether it is the viewer's own: `/api/photos/{uploadId}` gives its owner the original and anyone
+   * else who sees the entry the copy without metadata.
+   */
+  photo: { uploadId: string; yours: boolean } | null;
 };
 
 /** The entries behind one audit row: the same stored facts the tallies sum (in a club's view, its share), oldest first. */
 export async function auditEntries(
   db: Executor,
   scope: AuditScope,
-  { parcelId, speciesId, foragerId, asOf, now = new Date() }: { parcelId: string; speciesId: string; foragerId: string; asOf?: string; now?: Date },
+  { parcelId, speciesId, foragerId, asOf, now = new Date(), viewerId }: { parcelId: string; speciesId: string; foragerId: string; asOf?: string; now?: Date; viewerId?: string },
 ): Promise<AuditEntry[] | null> {
   const parcels = (await loadAuditParcels(db, scope)).filter((p) => p.id === parcelId);
   const [window] = windowsOf(parcels, { asOf, now }).filter((w) => w.allowance.speciesId === speciesId);
   if (!window) return null;
   const withPosition = !isClubScope(scope);
   const inView = isClubScope(scope) ? sql`and e.club_id = ${scope.clubId}::uuid` : sql``;
-  const rows = await db.execute<{ id: string; counted_on: string; local_date: string; recorded_at: string; quantities: AuditEntry['quantities']; method: string; breach: boolean; acknowledged_over: boolean; corrects_entry_id: string | null; correction_reason: string | null; visit_id: string | null; position: { coordinates: [number, number] } | null }>(sql`
+  const viewer = viewerId ?? (isClubScope(scope) ? null : scope.ownerId);
+  const rows = await db.execute<{ id: string; counted_on: string; local_date: string; recorded_at: string; quantities: AuditEntry['quantities']; method: string; breach: boolean; acknowledged_over: boolean; corrects_entry_id: string | null; correction_reason: string | null; visit_id: string | null; position: { coordinates: [number, number] } | null; photo_id: string | null; photo_yours: boolean | null }>(sql`
     select e.id, e.counted_on::text, e.local_date::text, e.created_at::text as recorded_at, e.method, e.breach, e.acknowledged_over, e.corrects_entry_id, e.correction_reason,
       e.counted_visit_id as visit_id, ${withPosition ? sql`ST_AsGeoJSON(e.position)::json` : sql`null::json`} as position,
-      (select json_agg(json_build_object('measure', q.measure, 'quantity', trim_scale(q.quantity)::text, 'unit', q.unit) order by q.measure) from harvest_quantities q where q.entry_id = e.id) as quantities
+      (select json_agg(json_build_object('measure', q.measure, 'quantity', trim_scale(q.quantity)::text, 'unit', q.unit) order by q.measure) from harvest_quantities q where q.entry_id = e.id) as quantities,
+      u.id as photo_id, u.owner_id = ${viewer} as photo_yours
     from harvest_entries e
+    left join uploads u on u.id = e.photo_upload_id and u.owner_id = e.forager_id and u.purpose = 'harvest-photo'
     where e.parcel_id = ${parcelId}::uuid and e.species_id = ${speciesId}::uuid and e.forager_id = ${foragerId}
       and e.season_start <= ${window.end}::date and e.season_end >= ${window.start}::date ${inView}
     order by e.created_at, e.id`);
@@ -339,5 +348,6 @@ export async function auditEntries(
     correctionReason: r.correction_reason,
     visitId: r.visit_id,
     position: withPosition && r.position ? r.position.coordinates : null,
+    photo: r.photo_id ? { uploadId: r.photo_id, yours: r.photo_yours === true } : null,
   }));
 }

@@ -1,6 +1,6 @@
 import { formatDay } from './field/words';
-import type { LimitScope, TallyState } from './field/types';
-import { formatAmount, formatPercent, formatQuantities, formatQuantity, limitScopeWords, stateLabel, unitAfter } from './tally-words';
+import type { TallyState } from './field/types';
+import { formatAmount, formatLimit, formatPercent, formatQuantities, formatQuantity, stateLabel, unitAfter } from './tally-words';
 import { subtractDecimals } from './units';
 
 /**
@@ -93,14 +93,12 @@ export function noticeMail(f: NoticeFacts, origin: string): NoticeMail | null {
 /** A tally as a flag keeps it: as it stood after the flagged entry, in its limit's unit. */
 export type FlagTallyFacts = { scope: string; state: string; used: string; limit: string; unit: string; percent: number };
 
-const scopeWords = (scope: string) => limitScopeWords[scope as LimitScope] ?? scope;
-
 /**
- * How far each tally of a flag went: "0.2 kg over the limit of 1 kg per day (1.2 kg counted)" for one
- * over; "0.85 kg of 1 kg per day (85 %), ◑ nearing" for the others.
+ * How far each tally of a flag went: "0.2 kg over the limit of 1 kg a day (1.2 kg counted)" for one
+ * over; "0.85 kg of 1 kg a day (85 %), ◑ nearing" for the others.
  */
 export function flagTallyLine(t: FlagTallyFacts): string {
-  const limit = `${formatQuantity({ quantity: t.limit, unit: t.unit })} ${scopeWords(t.scope)}`;
+  const limit = formatLimit({ quantity: t.limit, unit: t.unit, scope: t.scope });
   if (t.state === 'over') {
     const over = subtractDecimals(t.used, t.limit);
     return `${formatAmount(over)} ${unitAfter(over, t.unit)} over the limit of ${limit} (${formatQuantity({ quantity: t.used, unit: t.unit })} counted)`;

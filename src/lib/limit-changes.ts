@@ -1,5 +1,5 @@
 import type { LimitScope } from './field/types';
-import { formatQuantity, limitScopeWords } from './tally-words';
+import { formatLimit, limitPerWords } from './tally-words';
 import { compareDecimals, measureOf, toBase, type Unit } from './units';
 
 /** One limit that applies to a permit, named by its species: the parcel's own, or the permit's tighter one. */
@@ -35,7 +35,5 @@ export function tightenedLimits(before: readonly NamedLimit[], after: readonly N
   return changes.sort((a, b) => a.speciesName.localeCompare(b.speciesName));
 }
 
-const limitWords = (l: NamedLimit) => `${formatQuantity(l)} ${limitScopeWords[l.scope]}`;
-
-/** "Chaga: 1 kg per forager per season, was 2 kg per forager per season"; a new limit "…, was no limit per day". */
-export const limitChangeLine = (c: LimitChange): string => `${c.speciesName}: ${limitWords(c.now)}, was ${c.was ? limitWords(c.was) : `no limit ${limitScopeWords[c.now.scope]}`}`;
+/** "Chaga: 1 kg a season, was 2 kg a season"; a new limit "Chaga: 500 g a day, was no limit a day". */
+export const limitChangeLine = (c: LimitChange): string => `${c.speciesName}: ${formatLimit(c.now)}, was ${c.was ? formatLimit(c.was) : `no limit ${limitPerWords[c.now.scope]}`}`;

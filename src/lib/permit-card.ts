@@ -1,6 +1,6 @@
 import { limitsInForce } from './field/tallies';
-import type { AllowanceFacts, LimitScope, PermitFacts } from './field/types';
-import { formatSeasonWindows, formatQuantity, limitScopeWords } from './tally-words';
+import type { AllowanceFacts, PermitFacts } from './field/types';
+import { formatLimit, formatSeasonWindows } from './tally-words';
 import type { PermitStatement } from './permit-statement';
 
 /**
@@ -19,26 +19,21 @@ function limitsOf(allowance: AllowanceFacts, permit: CardPermit) {
   return limitsInForce(allowance, { forager: { id: permit.holderUserId ?? '', clubIds: permit.holderClubId ? [permit.holderClubId] : [] }, permit: facts });
 }
 
-/** Each species as the card shows it: "1 kg per day", "3 kg per forager per season". */
+/** Each species as the card shows it: "1 kg a day", "3 kg a season". */
 export function cardSpecies(allowances: readonly AllowanceFacts[], permit: CardPermit): CardSpecies[] {
   return allowances.map((a) => ({
     name: a.commonName,
     scientificName: a.scientificName,
     seasons: formatSeasonWindows(a.seasons),
     methods: a.methods.join(', '),
-    limits: limitsOf(a, permit).map((l) => `${formatQuantity(l)} ${limitScopeWords[l.scope]}`),
+    limits: limitsOf(a, permit).map(formatLimit),
   }));
 }
-
-/** The statement's shorter scope words: "1 kg a day". */
-export const statementScopeWords: Record<LimitScope, string> = {
-  visit: 'a visit', day: 'a day', season: 'a season', 'parcel-season': 'a season for everyone', 'club-season': 'a season for the club',
-};
 
 /** One statement line: "Chaga: 500 g a visit, 1.5 kg a season"; a species with no limit says so. */
 function statementLine(allowance: AllowanceFacts, permit: CardPermit, withLimits: boolean): string {
   if (!withLimits) return allowance.commonName;
-  const limits = limitsOf(allowance, permit).map((l) => `${formatQuantity(l)} ${statementScopeWords[l.scope]}`);
+  const limits = limitsOf(allowance, permit).map(formatLimit);
   return `${allowance.commonName}: ${limits.length ? limits.join(', ') : 'no limit set'}`;
 }
 

@@ -27,7 +27,7 @@ export const wasTaken = (s: ReportSpecies): boolean => s.taken.length > 0;
 /** "Season Jul 1 – Sep 30, 2026" */
 export const seasonHeading = (season: { start: string; end: string }): string => `Season ${formatSeasonDates(season)}`;
 
-/** "1 kg per day: busiest day 0.85 kg (85 %), ◑ nearing" */
+/** "1 kg a day: busiest day 0.85 kg (85 %), ◑ nearing" */
 export function reportTallyLine(t: ReportTally): string {
   const limit = `${formatLimit({ ...t.limit, scope: t.scope })}${t.limit.fromPermit ? ' (permit)' : ''}`;
   return `${limit}: ${reportBasisWords[t.scope]} ${formatAmount(t.used)} ${unitAfter(t.used, t.limit.unit)} (${formatPercent(t.percent)}), ${stateLabel(t.state)}`;

@@ -38,11 +38,6 @@ export const reportBasisWords: Record<LimitScope, string> = {
   visit: 'busiest visit', day: 'busiest day', season: 'highest forager', 'parcel-season': 'everyone on the parcel', 'club-season': 'the club',
 };
 
-/** What a limit of each scope is, in words: "1 kg per day". */
-export const limitScopeWords: Record<LimitScope, string> = {
-  visit: 'per visit', day: 'per day', season: 'per forager per season', 'parcel-season': 'for everyone per season', 'club-season': 'for the club per season',
-};
-
 /** What follows a limit's amount: "500 g a visit", "1 kg a season". Per-forager scopes say no more; the shared ones say who shares them. */
 export const limitPerWords: Record<LimitScope, string> = {
   visit: 'a visit', day: 'a day', season: 'a season', 'parcel-season': 'a season for everyone together', 'club-season': 'a season for the whole club',

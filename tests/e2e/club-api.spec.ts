@@ -271,7 +271,7 @@ test.describe('flag notes', () => {
     expect(mail?.text).toContain('Walter Pelletier, the landowner, wrote about your entry of 850 g of Oyster mushroom');
     expect(mail?.text).toContain('"You are close to the day limit here; 150 g left."');
     // 850 g of a 1 kg day limit, worked by hand in this file's header: 0.85 kg, 85 %, nearing.
-    expect(mail?.text).toContain('0.85 kg of 1 kg per day (85 %), ◑ nearing');
+    expect(mail?.text).toContain('0.85 kg of 1 kg a day (85 %), ◑ nearing');
     expect(mail?.text).not.toContain('Noted for the records.');
   });
 });

@@ -102,6 +102,11 @@ test('given a steward, a new member and a landowner, the club permit, a breach, 
   await form.getByLabel('Quantity').fill('1200');
   await expect(form.getByTestId('projection').locator('[data-scope="day"]')).toHaveAttribute('data-state', 'over');
   await form.getByText('This takes a limit over').click();
+  // With a photo whose EXIF GPS tags (EXIF 2.32 GPS IFD) place the camera on the parcel, as a phone writes them.
+  const sharp = (await import('sharp')).default;
+  const exif = { IFD3: { GPSLatitudeRef: 'N', GPSLatitude: '43/1 49/1 53/1', GPSLongitudeRef: 'W', GPSLongitude: '72/1 55/1 42/1' } };
+  const photo = await sharp({ create: { width: 24, height: 18, channels: 3, background: '#c9b27c' } }).jpeg().withExif(exif).toBuffer();
+  await form.getByLabel('Photo (optional)').setInputFiles({ name: 'oysters.jpg', mimeType: 'image/jpeg', buffer: photo });
   const savedAt = new Date();
   await form.getByRole('button', { name: 'Save entry' }).click();
   await expect(member.getByTestId('species').locator('[data-species="Oyster mushroom"]')).toHaveAttribute('data-state', 'over');
@@ -123,14 +128,27 @@ test('given a steward, a new member and a landowner, the club permit, a breach, 
   const noteMail = (await mailFor(steward.request, memberEmail)).find((m) => m.subject === noteSubject);
   expect(noteMail?.text).toContain('Marisol Kent, a steward of Three Ridges Foraging Society, wrote about your entry of 1,200 g of Oyster mushroom');
   expect(noteMail?.text).toContain('"Spoke with the member; the extra was shared at the club walk. Reminded of the 1 kg day limit."');
-  expect(noteMail?.text).toContain('How much over: 0.2 kg over the limit of 1 kg per day (1.2 kg counted)');
+  expect(noteMail?.text).toContain('How much over: 0.2 kg over the limit of 1 kg a day (1.2 kg counted)');
   expect([localDay(savedAt), localDay(new Date())].some((day) => noteMail?.text.includes(`counted on ${day}`)), noteMail?.text).toBe(true);
   await club.getByRole('button', { name: 'All', exact: true }).click();
   await expect(club.locator('[data-flag]').filter({ hasText: parcelName })).toHaveAttribute('data-handled', 'true');
   await expect(club.locator('[data-flag]').filter({ hasText: parcelName })).toContainText('Reminded of the 1 kg day limit');
 
   // The audit shows the member over on the day limit.
-  await expect(club.getByRole('row').filter({ hasText: parcelName }).filter({ hasText: 'over' }).first()).toBeVisible();
+  const auditRow = club.getByRole('row').filter({ hasText: parcelName }).filter({ hasText: 'over' }).first();
+  await expect(auditRow).toBeVisible();
+  // Behind it, the entry's photo: the steward gets the copy without its location, and is told so.
+  await auditRow.getByRole('button', { name: 'Details' }).click();
+  const figure = club.locator('[data-entries-for]').getByTestId('entry-photo');
+  await expect(figure).toHaveAttribute('data-copy', 'shared');
+  await expect(figure).toContainText('a copy with the location and camera details removed');
+  const image = figure.getByRole('img', { name: /^The forager’s photo of Oyster mushroom, 1,200 g on / });
+  await expect.poll(() => image.evaluate((img: HTMLImageElement) => img.complete && img.naturalWidth)).toBe(24);
+  const copy = await steward.request.get((await image.getAttribute('src')) ?? '');
+  expect(copy.status()).toBe(200);
+  const exifr = (await import('exifr')).default;
+  expect((await exifr.gps(photo))?.latitude).toBeGreaterThan(43.8);
+  expect(await exifr.gps(await copy.body())).toBeUndefined();
 
   // 7. The season report, sent to the landowner.
   await club.getByTestId('club-permits').locator('li').filter({ hasText: parcelName }).getByRole('link', { name: 'Season report' }).click();

@@ -242,6 +242,32 @@ test('given the entry with a photo, Owen opens his original from the ledger; the
   await page.context().close();
 });
 
+test("given Owen's entry with a photo, Walter opens it from his parcel's Tallies on a phone, told it is a copy without the location", async ({ browser }) => {
+  const page = await pageAs(browser, 'landowner@example.org');
+  await page.setViewportSize({ width: 390, height: 900 });
+  await page.goto(`/land/${parcelId}/tallies`);
+  const row = page.locator(`tr[data-row^="${parcelId}|${oysterId}|"]`);
+  await row.getByRole('button', { name: 'Details' }).click();
+  const details = page.locator(`[data-entries-for^="${parcelId}|${oysterId}|"]`);
+  // Only the entry with the photo is marked; its photo is under the entries' table.
+  await expect(details.locator('[data-flag="photo"]')).toHaveCount(1);
+  const figure = details.getByTestId('entry-photo');
+  await expect(figure).toHaveCount(1);
+  await expect(figure).toHaveAttribute('data-copy', 'shared');
+  await expect(figure).toContainText('a copy with the location and camera details removed');
+  const image = figure.getByRole('img', { name: /^The forager’s photo of Oyster mushroom, 300 g on / });
+  await expect(image).toHaveAttribute('src', `/api/photos/${photoId}`);
+  await expect.poll(() => image.evaluate((img: HTMLImageElement) => img.complete && img.naturalWidth)).toBe(24);
+  // The bytes the browser got are Walter's: the copy, not Owen's original.
+  const shown = await page.request.get(`/api/photos/${photoId}`);
+  expect(Buffer.compare(await shown.body(), original)).not.toBe(0);
+  expect(await page.evaluate(() => document.documentElement.scrollWidth <= window.innerWidth)).toBe(true);
+  // Nor does the audit's frame scroll sideways with the entries open (1 px for rounding, as above).
+  const frame = await page.locator('table:has(caption:text("Tallies for the season"))').evaluate((t) => ({ scrollWidth: (t.parentElement as HTMLElement).scrollWidth, clientWidth: (t.parentElement as HTMLElement).clientWidth }));
+  expect(frame.scrollWidth).toBeLessThanOrEqual(frame.clientWidth + 1);
+  await page.context().close();
+});
+
 for (const width of [390, 1280]) {
   test(`given a ${width} px wide window, My ledger fits it with an entry and its correction form open, and the quantity stays in view`, async ({ browser }) => {
     const context = await browser.newContext({ storageState: sessionFile('forager@example.org'), viewport: { width, height: 900 } });

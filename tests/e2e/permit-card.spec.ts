@@ -66,7 +66,7 @@ test('given an active permit, its card opened by the holder verifies on the ward
   await expect(page.getByTestId('card-holder')).toContainText('Owen');
   await expect(page.getByTestId('permit-card')).toContainText(name);
   // Limits in words, as written to the landowner (numeric(18,6) holds 1.500000).
-  await expect(page.getByTestId('card-limits')).toHaveText('Limits: 750 g per day; 1.5 kg per forager per season');
+  await expect(page.getByTestId('card-limits')).toHaveText('Limits: 750 g a day; 1.5 kg a season');
   const token = (await page.getByTestId('card-qr').getAttribute('data-token')) ?? '';
   expect(token).toMatch(/^[\w-]+\.[\w-]+\.[\w-]+$/);
   await page.evaluate(() => navigator.serviceWorker.ready);

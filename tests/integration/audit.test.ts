@@ -9,7 +9,7 @@ import { ledgerTotals, listLedger } from '../../src/db/ledger.queries';
 import { applyMigrations } from '../../src/db/migrations';
 import { seasonReport } from '../../src/db/reports.queries';
 import {
-  allowances, auditEvents, checkIns, clubMemberships, clubs, flagNotes, flags, harvestEntries, harvestQuantities, harvestTotals, limits, parcels, permits, species, visits,
+  allowances, auditEvents, checkIns, uploads, clubMemberships, clubs, flagNotes, flags, harvestEntries, harvestQuantities, harvestTotals, limits, parcels, permits, species, visits,
   type NewHarvestEntry,
 } from '../../src/db/schema';
 import { checkIn } from '../../src/server/field/check-in';
@@ -45,7 +45,7 @@ const ids = {
   owner: '', otherOwner: '', steward: '', ada: '', bo: '', cy: '',
   club: '', parcel: '', otherParcel: '', chaga: '', clubPermit: '', cyPermit: '',
   stewardMembership: '', adaMembership: '', boMembership: '',
-  a1: '', a2: '', a3: '', b1: '', b2: '', c1: '', old: '',
+  a1: '', a2: '', a3: '', b1: '', b2: '', c1: '', old: '', adaPhoto: '',
   flagAda: '', flagCy: '', flagOld: '',
 };
 const asOf = '2026-12-01';
@@ -111,10 +111,13 @@ beforeAll(async () => {
   ]);
 
   const club = { permitId: ids.clubPermit, clubId: ids.club };
+  // Ada's photo, on her third entry; Bo's first entry names it too, which gives no one a way to it.
+  const photo = (storageKey: string) => ({ ownerId: ids.ada, purpose: 'harvest-photo' as const, storageKey, contentType: 'image/jpeg', byteSize: 10, sha256: '0'.repeat(64) });
+  ids.adaPhoto = (await one(db().insert(uploads).values(photo('photos/audit-test/ada.jpg')).returning({ id: uploads.id }))).id;
   ids.a1 = await entry({ ...club, foragerId: ids.ada, localDate: '2026-06-01', countedOn: '2026-06-01', position: { type: 'Point', coordinates: [-74.995, 45.005] }, recordedAt: new Date('2026-06-01T14:00:00Z') }, ['1', 'lb', '453.59237']);
   ids.a2 = await entry({ ...club, foragerId: ids.ada, localDate: '2026-06-01', countedOn: '2026-06-01', position: { type: 'Point', coordinates: [-74.996, 45.006] }, recordedAt: new Date('2026-06-01T15:00:00Z') }, ['8', 'oz', '226.796185']);
-  ids.a3 = await entry({ ...club, foragerId: ids.ada, localDate: '2026-06-02', countedOn: '2026-06-02', position: { type: 'Point', coordinates: [-74.997, 45.007] }, recordedAt: new Date('2026-06-02T15:00:00Z') }, ['0.5', 'kg', '500']);
-  ids.b1 = await entry({ ...club, foragerId: ids.bo, localDate: '2026-07-01', countedOn: '2026-07-01', recordedAt: new Date('2026-07-01T15:00:00Z') }, ['2', 'lb', '907.18474']);
+  ids.a3 = await entry({ ...club, foragerId: ids.ada, localDate: '2026-06-02', countedOn: '2026-06-02', position: { type: 'Point', coordinates: [-74.997, 45.007] }, recordedAt: new Date('2026-06-02T15:00:00Z'), photoUploadId: ids.adaPhoto }, ['0.5', 'kg', '500']);
+  ids.b1 = await entry({ ...club, foragerId: ids.bo, localDate: '2026-07-01', countedOn: '2026-07-01', recordedAt: new Date('2026-07-01T15:00:00Z'), photoUploadId: ids.adaPhoto }, ['2', 'lb', '907.18474']);
   // A correction nineteen days later: −1 lb = −453.59237 g, recorded on 2026-07-20 and counted on 2026-07-01, its root's day.
   ids.b2 = await entry(
     { ...club, foragerId: ids.bo, localDate: '2026-07-20', countedOn: '2026-07-01', correctsEntryId: ids.b1, rootEntryId: ids.b1, correctionReason: 'Half the bag was bark, weighed again', recordedAt: new Date('2026-07-20T15:00:00Z') },
@@ -258,6 +261,19 @@ describe('auditEntries: privacy', () => {
     expect(await auditEntries(db(), { clubId: ids.club }, { parcelId: ids.parcel, speciesId: ids.chaga, foragerId: ids.cy, asOf })).toEqual([]);
     const owners = await auditEntries(db(), { ownerId: ids.owner }, { parcelId: ids.parcel, speciesId: ids.chaga, foragerId: ids.cy, asOf });
     expect(owners?.map((e) => [e.id, e.position])).toEqual([[ids.c1, [-74.991, 45.001]]]);
+  });
+
+  it("given an entry with its forager's photo, the steward and the landowner are told it is someone else's (the copy), the forager that it is theirs; a photo named on another's entry is not shown", async () => {
+    const photoOf = (entries: Awaited<ReturnType<typeof auditEntries>>) => entries?.map((e) => [e.id, e.photo]);
+    const forSteward = await auditEntries(db(), { clubId: ids.club }, { parcelId: ids.parcel, speciesId: ids.chaga, foragerId: ids.ada, asOf, viewerId: ids.steward });
+    expect(photoOf(forSteward)).toEqual([[ids.a1, null], [ids.a2, null], [ids.a3, { uploadId: ids.adaPhoto, yours: false }]]);
+    const forOwner = await auditEntries(db(), { ownerId: ids.owner, parcelId: ids.parcel }, { parcelId: ids.parcel, speciesId: ids.chaga, foragerId: ids.ada, asOf });
+    expect(forOwner?.[2]?.photo).toEqual({ uploadId: ids.adaPhoto, yours: false });
+    // Ada stewarding her own club's audit would see her original.
+    const forAda = await auditEntries(db(), { clubId: ids.club }, { parcelId: ids.parcel, speciesId: ids.chaga, foragerId: ids.ada, asOf, viewerId: ids.ada });
+    expect(forAda?.[2]?.photo).toEqual({ uploadId: ids.adaPhoto, yours: true });
+    const bo = await auditEntries(db(), { clubId: ids.club }, { parcelId: ids.parcel, speciesId: ids.chaga, foragerId: ids.bo, asOf, viewerId: ids.steward });
+    expect(bo?.map((e) => e.photo)).toEqual([null, null]);
   });
 
   it('given a parcel or species outside the view, it returns null', async () => {

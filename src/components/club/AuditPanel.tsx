@@ -9,6 +9,7 @@ import type { Audit, AuditChartBar, AuditEntry, AuditRow } from '../../db/audit.
 import { formatQuantities } from '../../lib/tally-words';
 import { formatDate } from '../../lib/format';
 import { sendJson } from '../api-client';
+import EntryPhoto from '../EntryPhoto';
 import {
   ariaSort, auditRowKey, auditScopeLabels, capitalise, chartCeiling, entriesQuery, formatMethod, formatPercent, formatPosition, formatSeason, formatTally, formatUsage, unitLabel,
   isIsoDate, matchesStateChoice, stateFills, tallyStates, rankOf, scopesPresent, stateChoices, statePatterns, stateSymbols, stateTones, stateWords, talliesOfScope, type StateChoice,
@@ -251,6 +252,7 @@ function RowDetails({ row, scopes, load, showPositions }: { row: AuditRow; scope
         ))}
       </dl>
       <div className="overflow-x-auto"><EntryList load={load} showPositions={showPositions} /></div>
+      {load.status === 'ready' && <EntryPhotos entries={load.data} speciesName={row.commonName} />}
     </div>
   );
 }
@@ -357,6 +359,34 @@ function AuditTable({ rows, asOf, entriesUrl, showPositions }: { rows: AuditRow[
   );
 }
 
+/** The photos of the entries behind a row, under their table so it keeps its width on a phone. */
+function EntryPhotos({ entries, speciesName }: { entries: AuditEntry[]; speciesName: string }) {
+  const withPhoto = entries.filter((e) => e.photo);
+  if (withPhoto.length === 0) return null;
+  return (
+    <div data-testid="audit-photos">
+      <h4 className="text-sm font-semibold">{withPhoto.length === 1 ? 'Photo' : 'Photos'}</h4>
+      <ul className="mt-1 space-y-2">
+        {withPhoto.map((e) => e.photo && (
+          <li key={e.id} data-photo-for={e.id}>
+            <EntryPhoto uploadId={e.photo.uploadId} yours={e.photo.yours} subject={`${speciesName}, ${formatQuantities(e.quantities, { signed: Boolean(e.correctsEntryId) })} on ${formatDate(e.localDate)}`} />
+          </li>
+        ))}
+      </ul>
+    </div>
+  );
+}
+
+/** A pill for an entry that took a limit over. */
+function BreachMark({ entry }: { entry: AuditEntry }) {
+  return <span className="pill border-2 border-ember-600 text-ember-700"><span aria-hidden="true">{stateSymbols.over} </span>breach{entry.acknowledgedOver ? ', acknowledged' : ''}</span>;
+}
+
+const correctionWords = (e: AuditEntry): string | null => (e.correctsEntryId ? `Correction: ${e.correctionReason ?? 'no reason given'}` : null);
+
+/** Columns a phone leaves out: what they hold is told under the day instead, so the entries fit its width. */
+const wideOnly = 'hidden sm:table-cell';
+
 function EntryList({ load, showPositions }: { load: Load<AuditEntry[]>; showPositions: boolean }) {
   if (load.status === 'loading') return <p aria-live="polite">Loading entries…</p>;
   if (load.status === 'error') return <p role="alert" className="field-error">{load.message}</p>;
@@ -365,17 +395,27 @@ function EntryList({ load, showPositions }: { load: Load<AuditEntry[]>; showPosi
     <table className="table" data-testid="audit-entries">
       <caption className="sr-only">The entries behind this row, oldest first</caption>
       <thead>
-        <tr><th scope="col">Counts on</th><th scope="col">Quantity</th><th scope="col">Method</th><th scope="col">Breach</th><th scope="col">Correction</th>{showPositions && <th scope="col">Position</th>}</tr>
+        <tr>
+          <th scope="col">Counts on</th><th scope="col">Quantity</th><th scope="col" className={wideOnly}>Method</th><th scope="col" className={wideOnly}>Breach</th>
+          <th scope="col" className={wideOnly}>Correction</th>{showPositions && <th scope="col" className={wideOnly}>Position</th>}
+        </tr>
       </thead>
       <tbody>
         {load.data.map((e) => (
           <tr key={e.id} data-entry={e.id}>
-            <td className="whitespace-nowrap">{formatDate(e.countedOn)}</td>
+            <td>
+              <span className="whitespace-nowrap">{formatDate(e.countedOn)}</span>
+              <span className="block text-xs text-loam-700 sm:hidden">
+                {formatMethod(e.method)}{correctionWords(e) ? ` · ${correctionWords(e)}` : ''}{showPositions ? ` · ${e.position ? formatPosition(e.position) : 'position not recorded'}` : ''}
+              </span>
+              {e.breach && <span className="mt-1 block sm:hidden"><BreachMark entry={e} /></span>}
+              {e.photo && <span className="mt-1 block"><span className="pill border-moss-300 text-moss-700" data-flag="photo">photo below</span></span>}
+            </td>
             <td className="whitespace-nowrap">{formatQuantities(e.quantities, { signed: Boolean(e.correctsEntryId) })}</td>
-            <td>{formatMethod(e.method)}</td>
-            <td>{e.breach ? <span className="pill border-2 border-ember-600 text-ember-700"><span aria-hidden="true">{stateSymbols.over} </span>breach{e.acknowledgedOver ? ', acknowledged' : ''}</span> : 'no'}</td>
-            <td>{e.correctsEntryId ? `Correction: ${e.correctionReason ?? 'no reason given'}` : '—'}</td>
-            {showPositions && <td className="whitespace-nowrap">{e.position ? formatPosition(e.position) : 'not recorded'}</td>}
+            <td className={wideOnly}>{formatMethod(e.method)}</td>
+            <td className={wideOnly}>{e.breach ? <BreachMark entry={e} /> : 'no'}</td>
+            <td className={wideOnly}>{correctionWords(e) ?? '—'}</td>
+            {showPositions && <td className={`whitespace-nowrap ${wideOnly}`}>{e.position ? formatPosition(e.position) : 'not recorded'}</td>}
           </tr>
         ))}
       </tbody>

@@ -1,6 +1,7 @@
 import { useEffect, useRef, useState } from 'react';
 import type { LedgerEntry } from '../../db/ledger.queries';
 import { formatDate } from '../../lib/format';
+import EntryPhoto from '../EntryPhoto';
 import CorrectionForm, { type CorrectionSaved } from './CorrectionForm';
 import { chainOf } from './correction-plan';
 import { EntryNotes } from './EntryNotes';
@@ -37,16 +38,7 @@ export default function EntryDetails({ row, entries, onCorrected }: { row: Ledge
       <div className="text-sm lg:hidden"><EntryNotes row={row} /></div>
       <p className="hidden text-sm lg:block">Season {formatSeason(row)}.</p>
 
-      {row.photoUploadId && (
-        <figure className="flex flex-wrap items-start gap-3" data-testid="entry-photo">
-          <a href={`/api/photos/${row.photoUploadId}`} target="_blank" rel="noopener" className="block shrink-0">
-            <img src={`/api/photos/${row.photoUploadId}`} alt={`Your photo of ${row.speciesName}, ${formatDate(row.localDate)}`} loading="lazy" className="h-28 w-28 rounded-md border border-loam-200 object-cover" />
-          </a>
-          <figcaption className="min-w-0 flex-1 text-xs text-loam-700">
-            <a href={`/api/photos/${row.photoUploadId}`} target="_blank" rel="noopener">Open the photo</a> (your original, with any location your camera saved). The landowner, and a club steward for an entry under the club's permit, see a copy without it.
-          </figcaption>
-        </figure>
-      )}
+      {row.photoUploadId && <EntryPhoto uploadId={row.photoUploadId} yours subject={`${row.speciesName}, ${formatDate(row.localDate)}`} />}
 
       {saved && !correcting && (
         <p ref={confirmation} tabIndex={-1} role="status" className="rounded-md border-2 border-moss-500 bg-moss-50 p-3 text-sm font-semibold text-moss-800" data-testid="correction-saved">

@@ -10,7 +10,7 @@ export const GET = endpoint(async ({ locals, params, url }) => {
   const { actor, parcelId } = await ownedParcel(locals, params, 'parcel:read');
   const q = parseInput(auditEntriesQuerySchema, Object.fromEntries(url.searchParams));
   if (q.parcelId !== parcelId) throw notFound('That tally on this parcel');
-  const entries = await auditEntries(db, { ownerId: actor.id, parcelId }, q);
+  const entries = await auditEntries(db, { ownerId: actor.id, parcelId }, { ...q, viewerId: actor.id });
   if (!entries) throw notFound('That species in this parcel audit');
   return json({ entries });
 });
