@@ -47,7 +47,7 @@ function pagesOf(ids: DemoIds): Record<string, Visit[]> {
   return {
     'signed out': [
       { path: '/' }, { path: '/sign-in' }, { path: '/sign-in/check-email?email=someone%40example.org' },
-      { path: '/sign-in/problem?error=Verification', status: 400 }, { path: '/sign-up' }, { path: '/verify' },
+      { path: '/sign-in/problem?error=Verification', status: 400 }, { path: '/sign-up' }, { path: '/verify' }, { path: '/api-reference' },
       { path: '/forbidden', status: 403 }, { path: '/a-page-that-is-not-here', status: 404 }, { path: '/mailbox' },
     ],
     'forager@example.org': [
