@@ -1,4 +1,3 @@
-import { LOG_LEVEL } from 'astro:env/server';
 import pino from 'pino';
 
 /**
@@ -9,10 +8,13 @@ import pino from 'pino';
  * No personal data and no positions: lines name routes by their pattern (`/api/parcels/[id]`), never
  * the address asked for with its query, and never e-mail addresses, names, bodies or coordinates.
  * Errors keep their message and stack, which our own code writes without those.
- * LOG_LEVEL sets the least level written (default `info`; `silent` writes nothing).
+ * LOG_LEVEL sets the least level written (default `info`; `silent` writes nothing). It is declared in
+ * astro.config.mjs (env.schema) with the levels it may take, and read here from process.env because this
+ * module is loaded outside Astro too (vitest imports endpoints and jobs); pino refuses an unknown level,
+ * so a server given one stops at start with that error.
  */
 export const log = pino({
-  level: LOG_LEVEL,
+  level: process.env.LOG_LEVEL || 'info',
   base: { service: 'tallywood' },
   timestamp: pino.stdTimeFunctions.isoTime,
   serializers: { err: pino.stdSerializers.err },
