@@ -39,6 +39,19 @@ export const permitOperations: ApiOperation[] = [
     method: 'post', path: '/api/payments/webhook', tag: 'payments', summary: "The payment provider's signed events (idempotent)", who: 'The payment provider: the Stripe-Signature header proves the sender', signedIn: false,
     ok: { status: 200, description: 'Received' },
   },
+  {
+    method: 'post', path: '/api/calendar-feed', tag: 'permits', summary: 'Make your private calendar feed, or a new address for it (the old address stops working at once)', who: 'Foragers and stewards (their own)',
+    description: 'The address carries a random token that is shown only in this answer (only its SHA-256 is kept): `url` (https) and `webcal` (the same, for calendar apps). ' +
+      "The feed holds your permits' windows (yours and your clubs'), and on the parcels you may use each season's opening and closing day and each closure in the next twelve months, as whole days on the parcel's calendar.",
+    ok: { status: 201, description: '`{ feed: { url, webcal, createdAt } }`' },
+  },
+  { method: 'delete', path: '/api/calendar-feed', tag: 'permits', summary: 'Turn your calendar feed off: its address answers 404 from now on', who: 'Foragers and stewards (their own)', ok: { status: 200, description: '`{ revoked }`, false when no feed was on' } },
+  {
+    method: 'get', path: '/api/calendar/{token}.ics', tag: 'permits', summary: 'A private calendar feed (iCalendar, RFC 5545), opened by the token in its address', who: 'Whoever holds the address (calendar apps fetch it with no session)', signedIn: false,
+    description: 'Whole-day events (DTSTART;VALUE=DATE) on each parcel\'s calendar, with a VTIMEZONE for each parcel\'s zone. An unknown, replaced or turned-off address is a 404 with a plain-text sentence.',
+    params: { token: z.string().meta({ description: 'The token from the address POST /api/calendar-feed answered (43 base64url characters)' }) },
+    ok: { status: 200, description: 'The calendar', type: 'text/calendar' },
+  },
   { method: 'get', path: '/api/open-parcels', tag: 'permits', summary: 'Parcels open to access requests', who: 'Foragers and stewards', ok: { status: 200, description: '`{ parcels }`' } },
   { method: 'post', path: '/api/access-requests', tag: 'permits', summary: 'Ask for access to a parcel', who: 'Foragers and stewards (a steward for their club)', body: accessRequestSchema, ok: { status: 201, description: 'The request, as a requested permit' } },
 ];

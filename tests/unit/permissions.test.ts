@@ -87,6 +87,14 @@ describe('decide', () => {
     },
   );
 
+  it('given a forager or a steward, it lets them manage their own calendar feed; a landowner or admin alone may not, nor anyone signed out', () => {
+    expect(decide(forager, 'calendar-feed:manage-own')).toEqual({ allowed: true });
+    expect(decide(steward, 'calendar-feed:manage-own')).toEqual({ allowed: true });
+    expect(decide(landowner, 'calendar-feed:manage-own')).toEqual({ allowed: false, reason: 'forbidden' });
+    expect(decide(admin, 'calendar-feed:manage-own')).toEqual({ allowed: false, reason: 'forbidden' });
+    expect(decide(null, 'calendar-feed:manage-own')).toEqual({ allowed: false, reason: 'signed-out' });
+  });
+
   it('given an ownership action without the resource it acts on, it throws', () => {
     expect(() => decide(landowner, 'parcel:read')).toThrow(/parcel:read needs the resource/);
     expect(() => decide(steward, 'club:manage')).toThrow(/club:manage needs the resource/);

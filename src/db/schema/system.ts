@@ -1,5 +1,5 @@
 import { sql } from 'drizzle-orm';
-import { check, index, integer, jsonb, pgTable, text, timestamp, uuid } from 'drizzle-orm/pg-core';
+import { check, index, integer, jsonb, pgTable, text, timestamp, uniqueIndex, uuid } from 'drizzle-orm/pg-core';
 import { at, createdAt, id, point } from './columns';
 import { mailStateEnum, paymentStateEnum, uploadPurposeEnum } from './enums';
 import { users } from './auth';
@@ -103,3 +103,20 @@ export const rateLimits = pgTable('rate_limits', {
   points: integer('points').notNull(),
   expire: timestamp('expire', { withTimezone: true }),
 });
+
+/**
+ * A person's private calendar feed (issue 14). The address carries a random token; only its SHA-256
+ * is kept, so the table alone opens no feed. One live feed per account: making a new one revokes the old.
+ */
+export const calendarFeeds = pgTable(
+  'calendar_feeds',
+  {
+    id: id(),
+    accountId: text('account_id').notNull().references(() => users.id, { onDelete: 'cascade' }),
+    /** SHA-256 of the token in the address, hex. */
+    tokenHash: text('token_hash').notNull().unique(),
+    createdAt: createdAt(),
+    revokedAt: at('revoked_at'),
+  },
+  (t) => [uniqueIndex('calendar_feeds_one_live').on(t.accountId).where(sql`${t.revokedAt} is null`)],
+);

@@ -2,7 +2,7 @@
 export * from './types';
 export { boundaryContains, distanceToEdgeM, placePosition } from './geometry';
 export { geodesicDistanceM } from './geodesy';
-export { addDays, addYears, closuresOn, currentSeason, endOfLocalDay, seasonAsOf, localDateAt, localWallClock, startOfLocalDay } from './time';
+export { addDays, addYears, closuresOn, currentSeason, endOfLocalDay, seasonAsOf, seasonOccurrencesBetween, localDateAt, localWallClock, startOfLocalDay } from './time';
 export { entryBases, limitsInForce, measuresLimited, MissingQuantity, projectEntry, scopeOrder, talliesFor, tallyState, worstState, type Projection, type TallyContext } from './tallies';
 export { countingFactsFor, flagFor, measuresOf, usageWindows, type CountingFacts, type FlagDecision, type UsageWindow } from './counting';
 export { checkPermit, permitCovers, type PermitCheck } from './permit-check';

@@ -205,3 +205,12 @@ export function closuresOn<C extends { startsOn: string; endsOn: string }>(closu
   parseIsoDate(localDate);
   return closures.filter((c) => c.startsOn <= localDate && localDate <= c.endsOn);
 }
+
+/**
+ * Every season occurrence that opens or closes within local dates `from` … `until` (both included),
+ * in order of opening: what a calendar of the coming months shows. `until` at most a year after `from`.
+ */
+export function seasonOccurrencesBetween(windows: SeasonWindow[], from: string, until: string): { start: string; end: string }[] {
+  parseIsoDate(until);
+  return seasonsAround(windows, from).filter((o) => (from <= o.start && o.start <= until) || (from <= o.end && o.end <= until));
+}
