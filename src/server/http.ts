@@ -21,12 +21,12 @@ export function endpoint(handler: (context: APIContext) => Promise<Response>): A
       if (error instanceof AppError) return json(error.toJSON(), error.status, { ...retryAfter(error), ...closeUnreadBody(error) });
       const refused = fromDatabaseRefusal(error);
       if (refused) return json(refused.toJSON(), refused.status);
-      (context.locals.log ?? log).error({ err: error, route: context.routePattern }, 'endpoint failed');
+      (context.locals?.log ?? log).error({ err: error, route: context.routePattern }, 'endpoint failed');
       if (lostDatabaseConnection(error)) {
         const lost = context.request.method === 'GET' || context.request.method === 'HEAD' ? databaseUnavailable() : resultUnknown();
         return json(lost.toJSON(), lost.status, { 'retry-after': '5' });
       }
-      return json({ error: { code: 'internal', message: 'Something went wrong on our side. Try again in a moment; if it keeps happening, tell us what you were doing and quote this request id.', requestId: context.locals.log?.bindings().requestId } }, 500);
+      return json({ error: { code: 'internal', message: 'Something went wrong on our side. Try again in a moment; if it keeps happening, tell us what you were doing and quote this request id.', requestId: context.locals?.log?.bindings().requestId } }, 500);
     }
   };
 }
