@@ -11,6 +11,7 @@ export const reminderLabels: Record<ReminderKind, { label: string; help: string 
   permitEnding: { label: 'A permit ends in 14 days', help: 'Your own permits, and your club’s when you steward it.' },
   seasonOpening: { label: 'A season opens tomorrow', help: 'On parcels your permits (or your club’s) let you use that day.' },
   closureStarting: { label: 'A closure starts tomorrow', help: 'When a landowner shuts a parcel you may use.' },
+  weeklyDigest: { label: 'Each Monday, a digest of my land’s week', help: 'Entries, flags and access requests on your parcels in the last 7 days; only when there were any.' },
 };
 
 /**

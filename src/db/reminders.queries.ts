@@ -1,12 +1,12 @@
-import { and, eq, gte, inArray, isNull, ne, or } from 'drizzle-orm';
-import { defaultReminderSettings, type AllowanceFact, type ClosureFact, type PermitFact, type ReminderFacts, type ReminderSettings } from '../lib/reminders';
+import { and, eq, gte, inArray, isNull, ne, or, sql } from 'drizzle-orm';
+import { defaultReminderSettings, type AllowanceFact, type DigestParcel, type ClosureFact, type PermitFact, type ReminderFacts, type ReminderSettings } from '../lib/reminders';
 import type { Executor } from './client';
 import { allowances, closures, clubMemberships, clubs, parcels, permits, reminderSettings, species, users } from './schema';
 
 /** A person's reminder switches; every kind on when they never changed one. */
 export async function getReminderSettings(db: Executor, { userId }: { userId: string }): Promise<ReminderSettings> {
   const [row] = await db
-    .select({ permitEnding: reminderSettings.permitEnding, seasonOpening: reminderSettings.seasonOpening, closureStarting: reminderSettings.closureStarting })
+    .select({ permitEnding: reminderSettings.permitEnding, seasonOpening: reminderSettings.seasonOpening, closureStarting: reminderSettings.closureStarting, weeklyDigest: reminderSettings.weeklyDigest })
     .from(reminderSettings)
     .where(eq(reminderSettings.userId, userId));
   return row ?? { ...defaultReminderSettings };
@@ -79,4 +79,32 @@ export async function loadReminderFacts(db: Executor, { userId, now }: { userId:
     .from(closures)
     .where(and(inArray(closures.parcelId, parcelIds), gte(closures.startsOn, since)));
   return { userId, settings, permits: permitFacts, allowances: allowanceFacts, closures: closureFacts };
+}
+
+/**
+ * Landowners with a parcel that is not archived, each with the zone of their first parcel (the
+ * oldest), which their digest's Monday is counted in, and their switches.
+ */
+export async function listDigestLandowners(db: Executor): Promise<{ userId: string; email: string; timeZone: string; settings: ReminderSettings }[]> {
+  const rows = await db.execute<{ userId: string; email: string; timeZone: string }>(sql`
+    select distinct on (u.id) u.id as "userId", u.email, p.time_zone as "timeZone"
+    from users u join parcels p on p.owner_id = u.id
+    where 'landowner' = any(u.roles) and p.status <> 'archived'
+    order by u.id, p.created_at, p.id`);
+  return Promise.all([...rows].map(async (row) => ({ ...row, settings: await getReminderSettings(db, { userId: row.userId }) })));
+}
+
+/**
+ * One landowner's week, per parcel of theirs that is not archived: harvest entries counted on a local
+ * date of the week, flags raised and access requests made between its first and last instants.
+ */
+export async function digestCounts(db: Executor, { ownerId, from, to, startsAt, endsAt }: { ownerId: string; from: string; to: string; startsAt: Date; endsAt: Date }): Promise<DigestParcel[]> {
+  const rows = await db.execute<DigestParcel>(sql`
+    select p.id as "parcelId", p.name as "parcelName",
+      (select count(*)::int from harvest_entries e where e.parcel_id = p.id and e.local_date between ${from} and ${to}) as "entries",
+      (select count(*)::int from flags f where f.parcel_id = p.id and f.created_at >= ${startsAt.toISOString()} and f.created_at < ${endsAt.toISOString()}) as "flags",
+      (select count(*)::int from permits r where r.parcel_id = p.id and r.requested_by is not null and r.created_at >= ${startsAt.toISOString()} and r.created_at < ${endsAt.toISOString()}) as "requests"
+    from parcels p
+    where p.owner_id = ${ownerId} and p.status <> 'archived'`);
+  return [...rows];
 }

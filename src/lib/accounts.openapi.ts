@@ -13,7 +13,7 @@ export const accountOperations: ApiOperation[] = [
     description: 'Reads no body. Answers with a redirect to the home page, signed out.', ok: { status: 303, description: 'To /?signed-out=1' },
   },
   { method: 'get', path: '/api/me', tag: 'accounts', summary: 'The signed-in person and their roles', who: 'Anyone signed in', ok: { status: 200, description: 'The person, their roles and clubs' } },
-  { method: 'get', path: '/api/me/reminders', tag: 'accounts', summary: "The signed-in person's reminder e-mail switches", who: 'Foragers, stewards and landowners', ok: { status: 200, description: '`{ settings: { permitEnding, seasonOpening, closureStarting } }`; every kind is on until switched off' } },
+  { method: 'get', path: '/api/me/reminders', tag: 'accounts', summary: "The signed-in person's reminder e-mail switches", who: 'Foragers, stewards and landowners', ok: { status: 200, description: '`{ settings: { permitEnding, seasonOpening, closureStarting, weeklyDigest } }`; every kind is on until switched off' } },
   {
     method: 'put', path: '/api/me/reminders', tag: 'accounts', summary: 'Switch reminder e-mails on or off, each kind', who: 'Foragers, stewards and landowners (their own switches only)',
     body: reminderSettingsSchema, ok: { status: 200, description: '`{ settings }` as kept' },

@@ -1,4 +1,4 @@
-import type { Reminder } from './reminders';
+import type { DigestParcel, DigestWeek, Reminder } from './reminders';
 
 /** The words of the reminder e-mails: what, where, when (the parcel's local date in words), a link, the safety line, and where to turn them off. */
 
@@ -60,6 +60,22 @@ export function reminderMail(reminder: Reminder, origin: string): ReminderMail {
       };
     }
   }
+}
+
+const count = (n: number, one: string, many: string) => `${n} ${n === 1 ? one : many}`;
+
+/** The landowner's weekly digest: per parcel, what was recorded, flagged and asked for in the week. */
+export function digestMail(week: DigestWeek, parcels: DigestParcel[], origin: string): ReminderMail {
+  const heading = `Your week on your land: ${formatLongDate(week.from)} to ${formatLongDate(week.to)}`;
+  return {
+    purpose: 'reminder-weekly-digest', subject: 'Your week on your land', heading, settingsUrl: `${origin}/settings`,
+    paragraphs: [
+      'What foragers recorded, what was flagged and who asked for access on your parcels in the last 7 days:',
+      ...parcels.map((p) => `${p.parcelName}: ${count(p.entries, 'harvest entry', 'harvest entries')}, ${count(p.flags, 'flag', 'flags')}, ${count(p.requests, 'access request', 'access requests')}.`),
+      'Flags and requests wait for you in Tallywood.',
+    ],
+    action: { label: 'Open Land', url: `${origin}/land` },
+  };
 }
 
 /** The plain-text part: heading, paragraphs, link, safety line, and where to turn these off. */

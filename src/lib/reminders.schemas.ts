@@ -7,6 +7,7 @@ export const reminderSettingsSchema = z.object({
   permitEnding: onOrOff('the reminder 14 days before a permit ends'),
   seasonOpening: onOrOff('the reminder the day before a season opens'),
   closureStarting: onOrOff('the reminder the day before a closure starts'),
+  weeklyDigest: onOrOff('the weekly digest of your parcels'),
 });
 
 export type ReminderSettingsInput = z.infer<typeof reminderSettingsSchema>;

@@ -1,4 +1,4 @@
-import { addDays, currentSeason, localDateAt } from './field/time';
+import { addDays, currentSeason, localDateAt, startOfLocalDay } from './field/time';
 import type { SeasonWindow } from './seasons';
 
 /**
@@ -7,12 +7,16 @@ import type { SeasonWindow } from './seasons';
  * its IANA zone, never the UTC date. Pure: the job loads the facts and sends.
  */
 
-export const reminderKinds = ['permitEnding', 'seasonOpening', 'closureStarting'] as const;
+export const reminderKinds = ['permitEnding', 'seasonOpening', 'closureStarting', 'weeklyDigest'] as const;
 export type ReminderKind = (typeof reminderKinds)[number];
 export type ReminderSettings = Record<ReminderKind, boolean>;
 
 /** Without a row of their own a person gets every kind. */
-export const defaultReminderSettings: ReminderSettings = { permitEnding: true, seasonOpening: true, closureStarting: true };
+export const defaultReminderSettings: ReminderSettings = { permitEnding: true, seasonOpening: true, closureStarting: true, weeklyDigest: true };
+
+/** The kinds about permits a person holds or uses, and the landowner's own. */
+export const permitReminderKinds: ReminderKind[] = ['permitEnding', 'seasonOpening', 'closureStarting'];
+export const landownerReminderKinds: ReminderKind[] = ['weeklyDigest'];
 
 /** How many local days before its last day a permit's holder is told it ends. */
 export const permitEndingLeadDays = 14;
@@ -101,4 +105,32 @@ export function dueReminders(facts: ReminderFacts, now: Date): Reminder[] {
     }
   }
   return due;
+}
+
+/**
+ * The week a landowner's digest covers, when one is due at `now`: on a Monday in the zone of their
+ * first parcel, the seven local dates before it (Monday to Sunday) and the instants they span there
+ * (a DST week is an hour longer or shorter). Null on any other day or when switched off. One key per
+ * landowner and Monday, so it is sent once however often the job runs.
+ */
+export function digestWeek({ userId, timeZone, settings }: { userId: string; timeZone: string; settings: ReminderSettings }, now: Date) {
+  if (!settings.weeklyDigest) return null;
+  const today = localDateAt(now, timeZone);
+  if (new Date(`${today}T00:00:00Z`).getUTCDay() !== 1) return null;
+  const from = addDays(today, -7);
+  return {
+    from, to: addDays(today, -1), timeZone,
+    startsAt: startOfLocalDay(from, timeZone), endsAt: startOfLocalDay(today, timeZone),
+    dedupeKey: `reminder:weekly-digest:${userId}:${today}`,
+  };
+}
+
+export type DigestWeek = NonNullable<ReturnType<typeof digestWeek>>;
+
+/** What happened on one parcel in the week: entries recorded, flags raised, access requests made. */
+export type DigestParcel = { parcelId: string; parcelName: string; entries: number; flags: number; requests: number };
+
+/** The parcels worth telling about, by name; none means no digest is sent. */
+export function digestLines(parcels: DigestParcel[]): DigestParcel[] {
+  return parcels.filter((p) => p.entries + p.flags + p.requests > 0).sort((a, b) => a.parcelName.localeCompare(b.parcelName));
 }

@@ -37,7 +37,7 @@ test('given the demo forager, a reminder turned off on Settings stays off after 
 test('given a body that is not a switch, PUT /api/me/reminders answers 400 naming the field, and changes nothing', async () => {
   const api = await apiAs(forager);
   const before = await (await api.get('/api/me/reminders')).json();
-  const refused = await api.put('/api/me/reminders', { data: { permitEnding: 'no', seasonOpening: true, closureStarting: true } });
+  const refused = await api.put('/api/me/reminders', { data: { permitEnding: 'no', seasonOpening: true, closureStarting: true, weeklyDigest: true } });
   expect(refused.status()).toBe(400);
   expect((await refused.json()).error).toMatchObject({ code: 'invalid-input', field: 'permitEnding' });
   expect(await (await api.get('/api/me/reminders')).json()).toEqual(before);

@@ -57,7 +57,7 @@ beforeAll(async () => {
   ids.clubPermit = await permit({ holderClubId: club, endsOn: '2027-03-31' });
   const chaga = (await one(db().insert(species).values({ slug: 'reminders-chaga', scientificName: 'Inonotus obliquus', commonName: 'Chaga', kind: 'mushroom', usualUnit: 'g' }).returning({ id: species.id }))).id;
   await db().insert(allowances).values({ parcelId: ids.parcel, speciesId: chaga, seasons: [{ start: '11-02', end: '12-15' }], methods: ['cut'] });
-  await saveReminderSettings(db(), { userId: ids.gus, settings: { permitEnding: false, seasonOpening: false, closureStarting: false }, now });
+  await saveReminderSettings(db(), { userId: ids.gus, settings: { permitEnding: false, seasonOpening: false, closureStarting: false, weeklyDigest: false }, now });
 });
 
 afterAll(async () => {
@@ -87,7 +87,7 @@ describe('sendDueReminders', () => {
   });
 
   it('given a person who switched every reminder off, nothing is sent to them, though their permit ends the same day', async () => {
-    expect(await getReminderSettings(db(), { userId: ids.gus })).toEqual({ permitEnding: false, seasonOpening: false, closureStarting: false });
+    expect(await getReminderSettings(db(), { userId: ids.gus })).toEqual({ permitEnding: false, seasonOpening: false, closureStarting: false, weeklyDigest: false });
     expect(await mailTo('gus@reminders.test')).toEqual([]);
   });
 
@@ -97,7 +97,23 @@ describe('sendDueReminders', () => {
     expect(await db().select({ key: outgoingMail.dedupeKey }).from(outgoingMail).where(like(outgoingMail.dedupeKey, 'reminder:permit-ending:%'))).toHaveLength(1);
   });
 
+  it('given Monday 2 November in New York, its landowner gets one digest of the week with the access request made in it, and a landowner whose week was quiet gets none', async () => {
+    const monday = new Date('2026-11-02T12:00:00Z'); // 07:00 EST on Monday 2 November
+    const quiet = await insertUser(db(), 'quiet@reminders.test', 'Quinn Quiet', ['landowner']);
+    await db().insert(parcels).values({ ownerId: quiet, name: 'Still Meadow', status: 'listed', boundary: referenceBoundary as never, areaM2: 1, timeZone: 'America/New_York' });
+    // An access request on Wednesday 28 October, inside the week of 26 October to 1 November.
+    await db().insert(permits).values({ parcelId: ids.parcel, holderUserId: ids.mo, requestedBy: ids.mo, state: 'requested', startsOn: '2026-11-10', endsOn: '2026-12-31', createdAt: new Date('2026-10-28T15:00:00Z') });
+    const atMonday = () => sendDueReminders(db(), { now: monday, origin: 'https://tallywood.example', deliver, log: pino({ level: 'silent' }) });
+    await atMonday();
+    await atMonday();
+    expect(await mailTo('owner@reminders.test')).toEqual([{ purpose: 'reminder-weekly-digest', dedupeKey: `reminder:weekly-digest:${ids.owner}:2026-11-02`, state: 'sent' }]);
+    const digest = delivered.find((m) => m.to === 'owner@reminders.test');
+    expect(digest?.text).toContain('Hudson Wood: 0 harvest entries, 0 flags, 1 access request.');
+    expect(digest?.text).toContain('Monday, October 26, 2026 to Sunday, November 1, 2026');
+    expect(await mailTo('quiet@reminders.test')).toEqual([]);
+  });
+
   it('given a person with no settings row, every kind is on', async () => {
-    expect(await getReminderSettings(db(), { userId: ids.fay })).toEqual({ permitEnding: true, seasonOpening: true, closureStarting: true });
+    expect(await getReminderSettings(db(), { userId: ids.fay })).toEqual({ permitEnding: true, seasonOpening: true, closureStarting: true, weeklyDigest: true });
   });
 });

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { formatLongDate, reminderMail, reminderText } from '../../src/lib/reminder-words';
-import { defaultReminderSettings, dueReminders, type PermitFact, type ReminderFacts } from '../../src/lib/reminders';
+import { defaultReminderSettings, digestLines, digestWeek, dueReminders, type PermitFact, type ReminderFacts } from '../../src/lib/reminders';
 
 /*
  * Which reminders are due, by each parcel's local date. Offsets and the 2026 changes are the IANA tz
@@ -89,6 +89,36 @@ describe('dueReminders: a closure starts tomorrow, across the date line', () => 
     // 00:00 NZDT on the 10th: Auckland's has begun; New York's is still tomorrow (06:00 EST on the 9th).
     expect(keysAt(f, '2026-12-09T11:00:00Z')).toEqual(['reminder:closure-starting:closure-parcel-ny:2026-12-10:user-fay']);
     expect(keysAt(f, '2026-12-10T05:00:00Z')).toEqual([]);
+  });
+});
+
+describe('digestWeek: a landowner’s Monday', () => {
+  const ona = (timeZone: string, weeklyDigest = true) => ({ userId: 'user-ona', timeZone, settings: { ...defaultReminderSettings, weeklyDigest } });
+
+  it('given New York, the Monday after the DST change (2 November 2026) begins at 05:00Z and covers 26 October to 1 November, 169 hours (the 25-hour Sunday included)', () => {
+    expect(digestWeek(ona('America/New_York'), new Date('2026-11-02T04:59:59Z'))).toBeNull(); // 23:59:59 EST on Sunday
+    const week = digestWeek(ona('America/New_York'), new Date('2026-11-02T05:00:00Z'));
+    expect(week).toMatchObject({ from: '2026-10-26', to: '2026-11-01', dedupeKey: 'reminder:weekly-digest:user-ona:2026-11-02' });
+    expect(week?.startsAt.toISOString()).toBe('2026-10-26T04:00:00.000Z'); // 00:00 EDT
+    expect(week?.endsAt.toISOString()).toBe('2026-11-02T05:00:00.000Z'); // 00:00 EST
+    expect(digestWeek(ona('America/New_York'), new Date('2026-11-03T04:59:59Z'))?.dedupeKey).toBe('reminder:weekly-digest:user-ona:2026-11-02'); // 23:59:59 EST, still Monday
+    expect(digestWeek(ona('America/New_York'), new Date('2026-11-03T05:00:00Z'))).toBeNull();
+  });
+
+  it('given Auckland, its Monday 7 December 2026 runs from 11:00Z on Sunday the 6th (UTC) to 11:00Z on the 7th', () => {
+    expect(digestWeek(ona('Pacific/Auckland'), new Date('2026-12-06T10:59:59Z'))).toBeNull();
+    expect(digestWeek(ona('Pacific/Auckland'), new Date('2026-12-06T11:00:00Z'))).toMatchObject({ from: '2026-11-30', to: '2026-12-06', dedupeKey: 'reminder:weekly-digest:user-ona:2026-12-07' });
+    expect(digestWeek(ona('Pacific/Auckland'), new Date('2026-12-07T11:00:00Z'))).toBeNull();
+  });
+
+  it('given the digest switched off, there is none on a Monday', () => {
+    expect(digestWeek(ona('America/New_York', false), new Date('2026-11-02T12:00:00Z'))).toBeNull();
+  });
+
+  it('given parcels with nothing in the week, they are left out, and with none left there is nothing to send', () => {
+    const quiet = { parcelId: 'q', parcelName: 'Quiet Lot', entries: 0, flags: 0, requests: 0 };
+    expect(digestLines([quiet])).toEqual([]);
+    expect(digestLines([quiet, { ...quiet, parcelId: 'b', parcelName: 'Busy Lot', requests: 1 }]).map((p) => p.parcelName)).toEqual(['Busy Lot']);
   });
 });
 

@@ -14,6 +14,8 @@ export const reminderSettings = pgTable('reminder_settings', {
   seasonOpening: boolean('season_opening').notNull().default(true),
   /** A closure starts tomorrow on a parcel they may use. */
   closureStarting: boolean('closure_starting').notNull().default(true),
+  /** A landowner's Monday digest of the last 7 days' entries, flags and access requests on their parcels. */
+  weeklyDigest: boolean('weekly_digest').notNull().default(true),
   updatedAt: at('updated_at').notNull().defaultNow(),
 });
 
