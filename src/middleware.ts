@@ -19,6 +19,7 @@ const pageRules: [prefix: string, action: Action][] = [
   ['/catalogue/species', 'catalogue:edit'],
   ['/catalogue', 'catalogue:read'],
   ['/accounts', 'account:list'],
+  ['/settings', 'reminders:edit-own'],
 ];
 
 /**

@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import type { ApiOperation } from './api-operation';
 import { landownerDecisionSchema, signInSchema, signUpSchema } from './accounts.schemas';
+import { reminderSettingsSchema } from './reminders.schemas';
 
 /** The account and system endpoints, for the OpenAPI document (src/server/openapi.ts). */
 
@@ -12,6 +13,11 @@ export const accountOperations: ApiOperation[] = [
     description: 'Reads no body. Answers with a redirect to the home page, signed out.', ok: { status: 303, description: 'To /?signed-out=1' },
   },
   { method: 'get', path: '/api/me', tag: 'accounts', summary: 'The signed-in person and their roles', who: 'Anyone signed in', ok: { status: 200, description: 'The person, their roles and clubs' } },
+  { method: 'get', path: '/api/me/reminders', tag: 'accounts', summary: "The signed-in person's reminder e-mail switches", who: 'Foragers, stewards and landowners', ok: { status: 200, description: '`{ settings: { permitEnding, seasonOpening, closureStarting, weeklyDigest } }`; every kind is on until switched off' } },
+  {
+    method: 'put', path: '/api/me/reminders', tag: 'accounts', summary: 'Switch reminder e-mails on or off, each kind', who: 'Foragers, stewards and landowners (their own switches only)',
+    body: reminderSettingsSchema, ok: { status: 200, description: '`{ settings }` as kept' },
+  },
   {
     method: 'post', path: '/api/accounts/{id}/verify-landowner', tag: 'accounts', summary: 'Verify a landowner and e-mail them', who: 'Admins',
     description: 'A form post (Accept: text/html) is sent back to /accounts with a 303.', ok: { status: 200, description: '`{ verified }`' },

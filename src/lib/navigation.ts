@@ -13,6 +13,7 @@ export const navigation: NavItem[] = [
   { href: '/club', label: 'Club', action: 'club:join' },
   { href: '/catalogue', label: 'Catalogue', action: 'catalogue:read' },
   { href: '/accounts', label: 'Accounts', action: 'account:list' },
+  { href: '/settings', label: 'Settings', action: 'reminders:edit-own' },
 ];
 
 export function navigationFor(actor: Actor | null): NavItem[] {

@@ -53,17 +53,18 @@ function pagesOf(ids: DemoIds): Record<string, Visit[]> {
     'forager@example.org': [
       { path: '/' }, { path: '/field' }, { path: '/my-permits' }, { path: '/ledger' }, { path: '/club' }, { path: '/catalogue' },
       ...(ids.foragerCard ? [{ path: `/permits/${ids.foragerCard}/card` }] : []),
-      { path: '/payments/cancelled' }, { path: '/payments/done?session_id=cs_not_a_session', status: 404 },
+      { path: '/payments/cancelled' }, { path: '/payments/done?session_id=cs_not_a_session', status: 404 }, { path: '/settings' },
     ],
     'landowner@example.org': [
       { path: '/' }, { path: '/land' }, { path: '/land/new' },
       ...['', '/rules', '/closures', '/terms', '/permits', '/tallies', '/settings'].map((section) => ({ path: `${parcel}${section}` })),
       { path: '/requests' }, { path: `/requests/${ids.request}` }, { path: `/reports/season/${ids.cobbleRidge}` },
-      { path: `/permits/${ids.landownerCard}/card` }, { path: '/catalogue' },
+      { path: `/permits/${ids.landownerCard}/card` }, { path: '/catalogue' }, { path: '/settings' },
     ],
     'steward@example.org': [
       { path: '/' }, { path: '/club' }, { path: '/my-permits' }, { path: '/field' }, { path: '/ledger' }, { path: '/catalogue' },
       ...(ids.stewardCard ? [{ path: `/permits/${ids.stewardCard}/card` }] : []),
+      { path: '/settings' },
     ],
     'admin@example.org': [
       { path: '/' }, { path: '/accounts' }, { path: `/accounts/${ids.walter}` }, { path: '/catalogue' },

@@ -132,6 +132,22 @@ describe('the records, as the app', () => {
     }
   });
 
+  it('given reminder_settings (0018), it lets the app keep, change, read and delete a person’s switches', async () => {
+    const outcome = await client()
+      .begin(async (tx) => {
+        const [user] = await tx<{ id: string }[]>`select id from users order by id limit 1`;
+        if (!user) throw new Error('the test database has no account');
+        await tx`insert into reminder_settings (user_id, season_opening) values (${user.id}, false)`;
+        await tx`update reminder_settings set permit_ending = false where user_id = ${user.id}`;
+        const rows = await tx`select permit_ending, season_opening, closure_starting from reminder_settings where user_id = ${user.id}`;
+        await tx`delete from reminder_settings where user_id = ${user.id}`;
+        throw new Accepted(JSON.stringify(rows));
+      })
+      .catch((error: unknown) => error);
+    if (!(outcome instanceof Accepted)) throw outcome;
+    expect(JSON.parse(outcome.message)).toEqual([{ permit_ending: false, season_opening: false, closure_starting: true }]);
+  });
+
   it('given any table, it refuses the app to alter it or make one', async () => {
     for (const statement of [
       'alter table users add column probe integer',

@@ -95,6 +95,11 @@ describe('decide', () => {
     expect(decide(null, 'calendar-feed:manage-own')).toEqual({ allowed: false, reason: 'signed-out' });
   });
 
+  it('given reminders:edit-own, it lets a forager, a steward and a landowner (verified or not) keep their own switches, and forbids an admin with no other role', () => {
+    for (const someone of [forager, steward, landowner, unverifiedLandowner]) expect(decide(someone, 'reminders:edit-own')).toEqual({ allowed: true });
+    expect(decide(admin, 'reminders:edit-own')).toEqual({ allowed: false, reason: 'forbidden' });
+  });
+
   it('given an ownership action without the resource it acts on, it throws', () => {
     expect(() => decide(landowner, 'parcel:read')).toThrow(/parcel:read needs the resource/);
     expect(() => decide(steward, 'club:manage')).toThrow(/club:manage needs the resource/);

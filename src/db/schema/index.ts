@@ -7,3 +7,4 @@ export * from './permits';
 export * from './field';
 export * from './system';
 export * from './flags';
+export * from './reminders';

@@ -2,6 +2,7 @@ import PgBoss from 'pg-boss';
 import type { Db } from '../../db/client';
 import type { Log } from '../log';
 import { dateChanges } from './date-changes';
+import { reminders } from './reminders';
 import type { JobDefinition } from './registry';
 
 /**
@@ -15,7 +16,7 @@ import type { JobDefinition } from './registry';
  * a job with a singleton key and a 60-second slot that a unique index holds to one per minute. A worker
  * then takes each job with SELECT … FOR UPDATE SKIP LOCKED, so exactly one process runs it.
  */
-export const appJobs: readonly JobDefinition[] = [dateChanges];
+export const appJobs: readonly JobDefinition[] = [dateChanges, reminders];
 
 export type AppJobName = (typeof appJobs)[number]['name'];
 
