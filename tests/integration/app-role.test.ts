@@ -132,7 +132,7 @@ describe('the records, as the app', () => {
     }
   });
 
-  it('given reminder_settings (0018), it lets the app keep, change, read and delete a person’s switches', async () => {
+  it('given reminder_settings (0019), it lets the app keep, change, read and delete a person’s switches', async () => {
     const outcome = await client()
       .begin(async (tx) => {
         const [user] = await tx<{ id: string }[]>`select id from users order by id limit 1`;
