@@ -57,8 +57,11 @@ async function start({ db, databaseUrl, log, jobs = appJobs }: { db: Db; databas
     await boss.start();
     for (const job of jobs) {
       await boss.createQueue(job.name, { name: job.name, ...job.queue });
-      const worker = await boss.work<object>(job.name, { batchSize: 1, pollingIntervalSeconds }, async (batch) => {
+      let worker = '';
+      worker = await boss.work<object>(job.name, { batchSize: 1, pollingIntervalSeconds: job.pollingIntervalSeconds ?? pollingIntervalSeconds }, async (batch) => {
         for (const item of batch) await runJob(job, { db, log, id: item.id, data: item.data });
+        // A worker that found a job asks again at once rather than after its interval, so a queue of them drains.
+        if (batch.length > 0 && worker) boss.notifyWorker(worker);
       });
       workers.set(job.name, worker);
       if (job.cron) {

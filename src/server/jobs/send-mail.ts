@@ -84,6 +84,8 @@ export const sendMailJob = defineJob<{ mailId?: string }>({
   name: 'send-mail',
   queue: sendMailQueue,
   cron: '* * * * *',
+  // A job written in a transaction can be taken only once it commits, after the send woke the worker: within a second, then.
+  pollingIntervalSeconds: 1,
   async run({ db, now, data, log }) {
     if (!data.mailId) {
       const ids = await waitingMailIds(db, { before: new Date(now.getTime() - 60_000) });
