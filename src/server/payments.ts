@@ -104,7 +104,7 @@ async function reuseOpenCheckout(tx: Tx, { permitId, payerId, amountMinor }: { p
   return null;
 }
 
-/** What is left to do once the webhook's transaction has committed. */
+/** What a settled checkout leads to: a receipt (mailed in the webhook's transaction) or a refund (made once it has committed). */
 type FollowUp = { kind: 'receipt' | 'refund'; paymentId: string; origin?: string } | null;
 
 /**
