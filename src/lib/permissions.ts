@@ -31,6 +31,8 @@ export const permissionTable = {
   'catalogue:edit': { roles: ['admin'] },
   'account:list': { roles: ['admin'] },
   'landowner:verify': { roles: ['admin'] },
+  /** The job queue's and the outbox's counts in /api/health: the running of the service, for its admins. */
+  'health:read-details': { roles: ['admin'] },
   /** Their own reminder e-mails' switches: anyone a reminder can be sent to (a permit holder, a club member, a landowner). */
   'reminders:edit-own': { roles: ['forager', 'landowner', 'steward'] },
 } as const satisfies Record<string, Rule>;

@@ -1,7 +1,12 @@
 import { MAIL_CATCHER_SMTP_PORT, MAIL_FROM, SMTP_URL, TALLYWOOD_LOCAL_MODE } from 'astro:env/server';
 import nodemailer from 'nodemailer';
 import { db } from '../db';
-import { markMail, recordMail } from '../db/mail.queries';
+import type { Executor } from '../db/client';
+import { mailDomain, useMailSender } from './jobs/send-mail';
+import { log } from './log';
+import { queueMail, type Mail } from './outbox';
+
+export type { Mail, MailAttachment } from './outbox';
 
 /** True while mail goes to the local catcher: only in local mode (a deployment without SMTP_URL does not start). */
 export const usingMailCatcher = TALLYWOOD_LOCAL_MODE && !SMTP_URL;
@@ -27,22 +32,18 @@ const transport = nodemailer.createTransport(
   SMTP_URL ?? { host: '127.0.0.1', port: MAIL_CATCHER_SMTP_PORT, secure: false, ignoreTLS: true },
 );
 
-/** A file sent with a mail (a report's CSV): its name, type and text. */
-export type MailAttachment = { filename: string; contentType: string; content: string };
+/** The `send-mail` job sends through this transport, with Message-IDs in the MAIL_FROM domain. */
+export function useAppMailTransport() {
+  useMailSender((message) => transport.sendMail(message), { domain: mailDomain(MAIL_FROM) });
+}
 
-export type Mail = { purpose: string; to: string; subject: string; text: string; html: string; clientAddress?: string | null; dedupeKey?: string; attachments?: MailAttachment[] };
-
-/** Sends one e-mail and keeps a record of it. A mail with a `dedupeKey` recorded before is not sent again. */
-export async function sendMail(mail: Mail) {
-  const id = await recordMail(db, { purpose: mail.purpose, toAddress: mail.to, subject: mail.subject, clientAddress: mail.clientAddress ?? null, dedupeKey: mail.dedupeKey ?? null });
-  if (!id) return;
-  try {
-    await transport.sendMail({ from: MAIL_FROM, to: mail.to, subject: mail.subject, text: mail.text, html: mail.html, attachments: mail.attachments });
-    await markMail(db, { id, now: new Date() });
-  } catch (error) {
-    await markMail(db, { id, error: String(error), now: new Date() });
-    throw error;
-  }
+/**
+ * Puts one e-mail in the outbox (src/server/outbox.ts), in `tx` when the caller has a transaction:
+ * the `send-mail` job sends it, trying again with backoff while the mail server is down. A mail with
+ * a `dedupeKey` recorded before is not sent again. Throws only when the mail could not be recorded.
+ */
+export async function sendMail(mail: Mail, tx?: Executor) {
+  return queueMail(tx ?? db, mail, { from: MAIL_FROM, log });
 }
 
 const escape = (s: string) => s.replace(/[&<>"']/g, (c) => `&#${c.charCodeAt(0)};`);

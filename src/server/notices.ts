@@ -1,4 +1,5 @@
 import { db } from '../db';
+import type { Tx } from '../db/client';
 import { permitContacts } from '../db/permits.queries';
 import { formatMoney } from '../lib/format';
 import { limitChangeLine, tightenedLimits, type NamedLimit } from '../lib/limit-changes';
@@ -8,18 +9,19 @@ import { log } from './log';
 /**
  * The e-mails about permits: a request to the landowner, the decision to the requester, an
  * invitation, a revocation. Each has a plain-text and an HTML part and a link back to its page.
- * A failed send is logged, never undoes the change it reports.
+ * Each is put in the outbox (src/server/outbox.ts); given the transaction of the change it reports
+ * (`tx`), in that transaction, so the mail exists exactly when the change does. Without one, a mail
+ * that could not be recorded is logged and never undoes the change.
  */
-async function send(to: string[], purpose: string, subject: string, heading: string, paragraphs: string[], action: { label: string; url: string }) {
+async function send(to: string[], purpose: string, subject: string, heading: string, paragraphs: string[], action: { label: string; url: string }, tx?: Tx) {
   for (const address of to) {
+    const mail = { purpose, to: address, subject, text: `${heading}\n\n${paragraphs.join('\n\n')}\n\n${action.label}: ${action.url}\n`, html: mailHtml({ heading, paragraphs, action }) };
+    if (tx) {
+      await sendMail(mail, tx);
+      continue;
+    }
     try {
-      await sendMail({
-        purpose,
-        to: address,
-        subject,
-        text: `${heading}\n\n${paragraphs.join('\n\n')}\n\n${action.label}: ${action.url}\n`,
-        html: mailHtml({ heading, paragraphs, action }),
-      });
+      await sendMail(mail);
     } catch (error) {
       log.error({ err: error, purpose }, 'could not send a mail');
     }
@@ -34,8 +36,8 @@ export async function noticeAccessRequested({ permitId, origin, note }: { permit
     { label: 'Review the request', url: `${origin}/requests/${permitId}` });
 }
 
-export async function noticeDecision({ permitId, origin, approved, message }: { permitId: string; origin: string; approved: boolean; message: string }) {
-  const c = await permitContacts(db, { permitId });
+export async function noticeDecision({ permitId, origin, approved, message, tx }: { permitId: string; origin: string; approved: boolean; message: string; tx?: Tx }) {
+  const c = await permitContacts(tx ?? db, { permitId });
   if (!c) return;
   const heading = approved ? `Your request for ${c.parcelName} is approved` : `Your request for ${c.parcelName} was declined`;
   const fee = c.feeMinor && c.currency ? formatMoney(c.feeMinor, c.currency) : null;
@@ -47,7 +49,7 @@ export async function noticeDecision({ permitId, origin, approved, message }: { 
       : 'Accept the terms in My permits; the permit is active from its first day once they are accepted.';
   const wrote = message ? `The landowner wrote: "${message}"` : 'The landowner added no message.';
   await send(c.holderEmails, 'permit-decision', heading, heading, approved ? [feeLine, wrote, next] : [...(message ? [wrote] : []), next],
-    { label: 'Open My permits', url: `${origin}/my-permits` });
+    { label: 'Open My permits', url: `${origin}/my-permits` }, tx);
 }
 
 export async function noticeGranted({ permitId, origin, invited }: { permitId: string; origin: string; invited: boolean }) {

@@ -104,7 +104,7 @@ async function reuseOpenCheckout(tx: Tx, { permitId, payerId, amountMinor }: { p
   return null;
 }
 
-/** What is left to do once the webhook's transaction has committed. */
+/** What a settled checkout leads to: a receipt (mailed in the webhook's transaction) or a refund (made once it has committed). */
 type FollowUp = { kind: 'receipt' | 'refund'; paymentId: string; origin?: string } | null;
 
 /**
@@ -118,8 +118,15 @@ export async function handleWebhook(rawBody: string, signature: string | null, n
     if (!fresh) return 'duplicate';
     switch (event.type) {
       case 'checkout.session.completed':
-      case 'checkout.session.async_payment_succeeded':
-        return settleCheckout(tx, event.data.object, now);
+      case 'checkout.session.async_payment_succeeded': {
+        const settled = await settleCheckout(tx, event.data.object, now);
+        // The receipt and the landowner's notice are written with the payment: they go exactly when it is recorded paid.
+        if (settled?.kind === 'receipt') {
+          await mailReceipt(settled.paymentId, settled.origin, tx);
+          await mailFeePaidToLandowner(settled.paymentId, settled.origin, tx);
+        }
+        return settled;
+      }
       case 'checkout.session.expired': {
         const payment = await lockPaymentBySession(tx, { sessionId: event.data.object.id });
         if (payment) await markPaymentCancelled(tx, { paymentId: payment.id });
@@ -130,10 +137,6 @@ export async function handleWebhook(rawBody: string, signature: string | null, n
     }
   });
   if (followUp === 'duplicate') return { received: true, duplicate: true };
-  if (followUp?.kind === 'receipt') {
-    await mailReceipt(followUp.paymentId, followUp.origin);
-    await mailFeePaidToLandowner(followUp.paymentId, followUp.origin);
-  }
   if (followUp?.kind === 'refund') await refundLatePayment(followUp, now);
   return { received: true };
 }
@@ -233,30 +236,39 @@ async function refundLocked(tx: Tx, payment: Payment, { actorId, reason, now }: 
   return { outcome: 'refunded', paymentId: payment.id, amountMinor: payment.amountMinor, currency: payment.currency };
 }
 
-/** Sends one e-mail about a payment, to its payer unless told whom; a failed send is logged and never undoes the payment. */
+/**
+ * Puts one e-mail about a payment in the outbox, to its payer unless told whom. Given the payment's
+ * transaction (`tx`), in it: the mail exists exactly when the payment's change does. Without one, a
+ * mail that could not be recorded is logged and never undoes the payment.
+ */
 async function mailPayer(
   paymentId: string, purpose: string, compose: (n: PaymentNotice) => { subject: string; paragraphs: string[] }, origin?: string,
-  { to, page }: { to?: (n: PaymentNotice) => string; page?: (n: PaymentNotice) => { label: string; path: string } } = {},
+  { to, page, tx }: { to?: (n: PaymentNotice) => string; page?: (n: PaymentNotice) => { label: string; path: string }; tx?: Tx } = {},
 ) {
-  const notice = await findPaymentNotice(db, { paymentId });
+  const notice = await findPaymentNotice(tx ?? db, { paymentId });
   if (!notice) return;
   const { subject, paragraphs } = compose(notice);
   const link = page ? page(notice) : { label: 'Open My permits', path: '/my-permits' };
   const action = origin ? { label: link.label, url: `${origin}${link.path}` } : undefined;
+  const mail = {
+    purpose,
+    to: to ? to(notice) : notice.payerEmail,
+    subject,
+    text: `${subject}\n\n${paragraphs.join('\n\n')}\n${action ? `\n${action.label}: ${action.url}\n` : ''}`,
+    html: mailHtml({ heading: subject, paragraphs, action }),
+  };
+  if (tx) {
+    await sendMail(mail, tx);
+    return;
+  }
   try {
-    await sendMail({
-      purpose,
-      to: to ? to(notice) : notice.payerEmail,
-      subject,
-      text: `${subject}\n\n${paragraphs.join('\n\n')}\n${action ? `\n${action.label}: ${action.url}\n` : ''}`,
-      html: mailHtml({ heading: subject, paragraphs, action }),
-    });
+    await sendMail(mail);
   } catch (error) {
     log.error({ err: error, paymentId, purpose }, 'could not send a payment mail');
   }
 }
 
-function mailReceipt(paymentId: string, origin?: string) {
+function mailReceipt(paymentId: string, origin?: string, tx?: Tx) {
   return mailPayer(paymentId, 'receipt', (n) => ({
     subject: `Receipt: ${formatMoney(n.amountMinor, n.currency)} for your permit at ${n.parcelName}`,
     paragraphs: [
@@ -266,11 +278,11 @@ function mailReceipt(paymentId: string, origin?: string) {
         : "Your permit is active once the parcel's terms are accepted and its first day has come.",
       `Payment reference: ${n.paymentId}. Keep this e-mail as your receipt.`,
     ],
-  }), origin);
+  }), origin, { tx });
 }
 
 /** The landowner is told a fee came in: who paid, how much, for which permit. */
-function mailFeePaidToLandowner(paymentId: string, origin?: string) {
+function mailFeePaidToLandowner(paymentId: string, origin?: string, tx?: Tx) {
   return mailPayer(paymentId, 'fee-paid', (n) => {
     const payer = n.payerName ?? n.payerEmail;
     const holder = n.clubName ? `${n.clubName} (paid by ${payer})` : payer;
@@ -282,7 +294,7 @@ function mailFeePaidToLandowner(paymentId: string, origin?: string) {
         `Payment reference: ${n.paymentId}.`,
       ],
     };
-  }, origin, { to: (n) => n.ownerEmail, page: (n) => ({ label: 'Open the parcel', path: `/land/${n.parcelId}` }) });
+  }, origin, { to: (n) => n.ownerEmail, page: (n) => ({ label: 'Open the parcel', path: `/land/${n.parcelId}` }), tx });
 }
 
 function mailRefund(paymentId: string, reason: string, origin?: string) {

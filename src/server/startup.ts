@@ -5,6 +5,7 @@ import { db } from '../db';
 import { deploymentProblems } from './deployment';
 import { startJobs, stopJobs } from './jobs/queue';
 import { log } from './log';
+import { useAppMailTransport } from './mail';
 
 /*
  * Imported by the built server entry (astro.config.mjs, startupCheck) before it starts listening:
@@ -33,6 +34,7 @@ if (problems.length > 0) {
  * SIGINT through the function left under `Symbol.for('tallywood.shutdown')`: a job being run finishes first.
  */
 let retry: NodeJS.Timeout | undefined;
+useAppMailTransport();
 function startQueue() {
   startJobs({ db, databaseUrl: DATABASE_URL, log }).catch((error: unknown) => {
     log.error({ err: error }, 'jobs: the queue did not start; trying again in a minute');

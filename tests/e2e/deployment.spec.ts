@@ -200,17 +200,22 @@ test('given the session cookie, HTTPS takes only the __Secure- one and HTTP only
   expect(await me(baseURL, plain, { 'x-forwarded-proto': 'https' })).toBe(200);
 });
 
-test('given the server started, health reports the job queue in numbers, and SIGTERM stops the queue before the server exits with 0', async () => {
+test('given the server started, health reports the job queue and the outbox in numbers to an admin only, and SIGTERM stops the queue before the server exits with 0', async () => {
   const server = await serve({});
   try {
     await expect.poll(() => server.output(), { timeout: 20_000 }).toContain('jobs: the queue started');
-    const health = await raw(`${server.url}/api/health`);
+    const stranger = await raw(`${server.url}/api/health`);
+    expect(JSON.parse(stranger.body)).toEqual({ ok: true, status: 'ready' });
+    const admin = JSON.parse(readFileSync(sessionFile('admin@example.org'), 'utf8')) as { cookies: { name: string; value: string }[] };
+    const health = await raw(`${server.url}/api/health`, { headers: { cookie: admin.cookies.map((c) => `${c.name}=${c.value}`).join('; ') } });
     expect(health.status).toBe(200);
-    const body = JSON.parse(health.body) as { ok: boolean; status: string; queue: Record<string, unknown> | null };
+    const body = JSON.parse(health.body) as { ok: boolean; status: string; queue: Record<string, unknown> | null; outbox: Record<string, unknown> | null };
     expect(body).toMatchObject({ ok: true, status: 'ready' });
     expect(Object.keys(body.queue ?? {}).sort()).toEqual(['failed', 'lastCompletedSecondsAgo', 'waiting']);
     expect(Number.isInteger(body.queue?.waiting)).toBe(true);
     expect(Number.isInteger(body.queue?.failed)).toBe(true);
+    expect(Object.keys(body.outbox ?? {}).sort()).toEqual(['failed', 'retrying', 'waiting']);
+    for (const count of Object.values(body.outbox ?? {})) expect(Number.isInteger(count)).toBe(true);
   } finally {
     await server.stop();
   }

@@ -116,7 +116,7 @@ describe('startJobs', () => {
     if (app) await closeDb(app);
   });
 
-  it("given the app's role, it keeps date-changes on a one-minute cron (and reminders on a 15-minute one) in pgboss.schedule, runs it once at start, and the role still owns nothing", async () => {
+  it("given the app's role, it keeps date-changes and the outbox's send-mail sweep on a one-minute cron and reminders on a 15-minute one in pgboss.schedule, runs date-changes once at start, and the role still owns nothing", async () => {
     const appUrl = process.env.DATABASE_URL;
     if (!appUrl || !throwaway) throw new Error('DATABASE_URL is not set');
     // The app's role (tallywood_web, as the server signs in) on this test's own database.
@@ -126,7 +126,11 @@ describe('startJobs', () => {
     await startJobs({ db: app, databaseUrl: url.toString(), log: pino({ level: 'silent' }) });
 
     const schedules = await db().execute<{ name: string; cron: string; timezone: string }>(sql`select name, cron, timezone from pgboss.schedule order by name`);
-    expect([...schedules]).toEqual([{ name: 'date-changes', cron: '* * * * *', timezone: 'UTC' }, { name: 'reminders', cron: '*/15 * * * *', timezone: 'UTC' }]);
+    expect([...schedules]).toEqual([
+      { name: 'date-changes', cron: '* * * * *', timezone: 'UTC' },
+      { name: 'reminders', cron: '*/15 * * * *', timezone: 'UTC' },
+      { name: 'send-mail', cron: '* * * * *', timezone: 'UTC' },
+    ]);
 
     // The worker polls every 5 s; the job sent at start completes within a few.
     await expect

@@ -2,7 +2,7 @@ import { eq, like } from 'drizzle-orm';
 import pino from 'pino';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { applyMigrations } from '../../src/db/migrations';
-import { markMail, recordMail } from '../../src/db/mail.queries';
+import { markMailSent, recordMail } from '../../src/db/mail.queries';
 import { getReminderSettings, saveReminderSettings } from '../../src/db/reminders.queries';
 import { allowances, clubMemberships, clubs, outgoingMail, parcels, permits, species } from '../../src/db/schema';
 import { sendDueReminders, type ReminderDelivery } from '../../src/server/reminders';
@@ -12,8 +12,8 @@ import { createThrowawayDatabase, insertUser, migrationsFolder, one, referenceBo
  * The reminders job's work on a database of its own, at an injected instant. 2026-11-01T12:00Z is
  * 07:00 EST on 1 November in America/New_York (EDT ended at 06:00Z that day: IANA tz data, REFERENCES
  * §6), so the parcel's "in 14 days" is 15 November and its "tomorrow" 2 November, whatever the real clock.
- * Mail is recorded in outgoing_mail through the same query sendMail uses (src/db/mail.queries.ts), which
- * refuses a dedupe key it has seen; what the SMTP transport does after that is sendMail's own concern.
+ * Mail is recorded in the outbox (outgoing_mail) through the same query sendMail uses (src/db/mail.queries.ts),
+ * which refuses a dedupe key it has seen; sending it is the send-mail job's concern (tests/integration/outbox.test.ts).
  */
 let throwaway: ThrowawayDatabase | undefined;
 const db = () => {
@@ -27,10 +27,10 @@ const delivered: ReminderDelivery[] = [];
 
 /** Records the mail as sendMail does, once per dedupe key, and keeps what would have gone. */
 async function deliver(mail: ReminderDelivery) {
-  const id = await recordMail(db(), { purpose: mail.purpose, toAddress: mail.to, subject: mail.subject, dedupeKey: mail.dedupeKey });
+  const id = await recordMail(db(), { purpose: mail.purpose, fromAddress: 'Tallywood <mail@reminders.test>', toAddress: mail.to, subject: mail.subject, textBody: mail.text, htmlBody: `<p>${mail.paragraphs.join('</p><p>')}</p>`, dedupeKey: mail.dedupeKey });
   if (!id) return;
   delivered.push(mail);
-  await markMail(db(), { id, now });
+  await markMailSent(db(), { id, now });
 }
 
 const run = () => sendDueReminders(db(), { now, origin: 'https://tallywood.example', deliver, log: pino({ level: 'silent' }) });

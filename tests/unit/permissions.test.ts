@@ -79,7 +79,7 @@ describe('decide', () => {
     expect(decide(forager, 'permit:read-own', { userId: 'user-someone-else' })).toEqual({ allowed: false, reason: 'not-found' });
   });
 
-  it.each(['catalogue:edit', 'account:list', 'landowner:verify'] as const)(
+  it.each(['catalogue:edit', 'account:list', 'landowner:verify', 'health:read-details'] as const)(
     'given the admin-only action %s, it allows an admin and forbids a verified landowner, a steward and a forager',
     (action) => {
       expect(decide(admin, action)).toEqual({ allowed: true });

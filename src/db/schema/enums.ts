@@ -21,7 +21,8 @@ export const permitStateEnum = pgEnum('permit_state', ['requested', 'approved', 
 export const verdictEnum = pgEnum('verdict', ['clear', 'outside', 'no-permit', 'edge', 'closed']);
 export const visitEndEnum = pgEnum('visit_end', ['check-out', 'end-of-day']);
 export const uploadPurposeEnum = pgEnum('upload_purpose', ['harvest-photo', 'boundary-file']);
-export const mailStateEnum = pgEnum('mail_state', ['queued', 'sent', 'failed']);
+/** An outgoing mail: waiting for its first try, sent, failed and to be tried again, or failed for good after its last try. */
+export const mailStateEnum = pgEnum('mail_state', ['waiting', 'sent', 'retrying', 'failed']);
 export const paymentStateEnum = pgEnum('payment_state', ['pending', 'paid', 'cancelled', 'refunded', 'failed']);
 export const tallyStateEnum = pgEnum('tally_state', ['within', 'nearing', 'reached', 'over']);
 /**

@@ -50,7 +50,15 @@ export const outgoingMail = pgTable(
     clientAddress: text('client_address'),
     /** A mail that must go once only (a breach notice per entry and recipient): a second with the same key is not sent. */
     dedupeKey: text('dedupe_key').unique(),
-    state: mailStateEnum('state').notNull().default('queued'),
+    /** The mail itself, kept so the `send-mail` job (src/server/jobs/send-mail.ts) can send it later; null on mail recorded before the outbox (0020). */
+    fromAddress: text('from_address'),
+    textBody: text('text_body'),
+    htmlBody: text('html_body'),
+    attachments: jsonb('attachments').$type<{ filename: string; contentType: string; content: string }[]>(),
+    state: mailStateEnum('state').notNull().default('waiting'),
+    /** How many times sending it was tried. */
+    attempts: integer('attempts').notNull().default(0),
+    /** The last try's error, as the mail server or the transport put it. */
     error: text('error'),
     createdAt: createdAt(),
     sentAt: at('sent_at'),
@@ -58,6 +66,8 @@ export const outgoingMail = pgTable(
   (t) => [
     index('outgoing_mail_to').on(t.purpose, t.toAddress, t.createdAt),
     index('outgoing_mail_client').on(t.purpose, t.clientAddress, t.createdAt),
+    // The sweep and /api/health read only the mail not sent yet.
+    index('outgoing_mail_unsent').on(t.state, t.createdAt).where(sql`${t.state} <> 'sent'`),
   ],
 );
 

@@ -1,9 +1,11 @@
+import { sql, type SQL } from 'drizzle-orm';
 import PgBoss from 'pg-boss';
-import type { Db } from '../../db/client';
+import type { Db, Executor } from '../../db/client';
 import type { Log } from '../log';
 import { dateChanges } from './date-changes';
 import { reminders } from './reminders';
 import type { JobDefinition } from './registry';
+import { sendMailJob } from './send-mail';
 
 /**
  * Work that runs on time, not on requests, through a job queue kept in PostgreSQL (pg-boss 10, schema
@@ -16,7 +18,7 @@ import type { JobDefinition } from './registry';
  * a job with a singleton key and a 60-second slot that a unique index holds to one per minute. A worker
  * then takes each job with SELECT … FOR UPDATE SKIP LOCKED, so exactly one process runs it.
  */
-export const appJobs: readonly JobDefinition[] = [dateChanges, reminders];
+export const appJobs: readonly JobDefinition[] = [dateChanges, reminders, sendMailJob as JobDefinition];
 
 export type AppJobName = (typeof appJobs)[number]['name'];
 
@@ -24,7 +26,7 @@ const schema = 'pgboss';
 /** How often an idle worker asks for a job (pg-boss's default is 2 s). */
 const pollingIntervalSeconds = 5;
 
-let running: { boss: PgBoss; log: Log } | null = null;
+let running: { boss: PgBoss; log: Log; workers: Map<string, string> } | null = null;
 let starting: Promise<void> | null = null;
 
 /**
@@ -51,13 +53,18 @@ async function start({ db, databaseUrl, log, jobs = appJobs }: { db: Db; databas
     archiveFailedAfterSeconds: 3 * 24 * 60 * 60,
   });
   boss.on('error', (error) => log.error({ err: error }, 'jobs: the queue reported an error'));
+  const workers = new Map<string, string>();
   try {
     await boss.start();
     for (const job of jobs) {
       await boss.createQueue(job.name, { name: job.name, ...job.queue });
-      await boss.work<object>(job.name, { batchSize: 1, pollingIntervalSeconds }, async (batch) => {
+      let worker = '';
+      worker = await boss.work<object>(job.name, { batchSize: 1, pollingIntervalSeconds: job.pollingIntervalSeconds ?? pollingIntervalSeconds }, async (batch) => {
         for (const item of batch) await runJob(job, { db, log, id: item.id, data: item.data });
+        // A worker that found a job asks again at once rather than after its interval, so a queue of them drains.
+        if (batch.length > 0 && worker) boss.notifyWorker(worker);
       });
+      workers.set(job.name, worker);
       if (job.cron) {
         await boss.schedule(job.name, job.cron, {}, { tz: 'UTC' });
         await boss.send(job.name, {}, { singletonKey: 'on-start', singletonSeconds: 60 });
@@ -67,7 +74,7 @@ async function start({ db, databaseUrl, log, jobs = appJobs }: { db: Db; databas
     await boss.stop({ graceful: false }).catch(() => {});
     throw error;
   }
-  running = { boss, log };
+  running = { boss, log, workers };
   log.info({ jobs: jobs.map((job) => job.name) }, 'jobs: the queue started');
 }
 
@@ -83,6 +90,11 @@ async function runJob(job: JobDefinition, { db, log, id, data }: { db: Db; log: 
   jobLog.info({ ms: Math.round(performance.now() - started) }, 'job done');
 }
 
+/** Whether this process's queue is started (sendJob throws until it is). */
+export function jobsRunning() {
+  return running !== null;
+}
+
 /** Stops taking jobs, lets one being run finish (up to 10 s), and closes the queue's connections. */
 export async function stopJobs() {
   await starting?.catch(() => {});
@@ -94,8 +106,33 @@ export async function stopJobs() {
   current.log.info('jobs: the queue stopped');
 }
 
-/** Queues one run of a job now (or as `options` say, e.g. `startAfter`); its id, or null when a singleton refused it. */
-export async function sendJob(name: AppJobName, data: object = {}, options: PgBoss.SendOptions = {}): Promise<string | null> {
+/**
+ * Queues one run of a job now (or as `options` say, e.g. `startAfter`); its id, or null when a
+ * singleton refused it. With `tx`, the job is written in that transaction: it exists only if the
+ * transaction commits, and a worker can take it only once it has. The job's worker is woken at once.
+ */
+export async function sendJob(name: AppJobName, data: object = {}, { tx, ...options }: PgBoss.SendOptions & { tx?: Executor } = {}): Promise<string | null> {
   if (!running) throw new Error('the job queue is not running');
-  return running.boss.send(name, data, options);
+  const id = await running.boss.send(name, data, tx ? { ...options, db: through(tx) } : options);
+  const worker = running.workers.get(name);
+  if (worker) running.boss.notifyWorker(worker);
+  return id;
+}
+
+/** pg-boss's statements (`$1`, `$2`… placeholders) run through a Drizzle database or transaction. */
+function through(executor: Executor): PgBoss.Db {
+  return {
+    async executeSql(text, values) {
+      const chunks: SQL[] = text.split(/\$(\d+)/).map((part, i) => (i % 2 === 0 ? sql.raw(part) : sql`${param(values[Number(part) - 1])}`));
+      return { rows: [...(await executor.execute(sql.join(chunks)))] };
+    },
+  };
+}
+
+/** A value as postgres.js takes it: pg-boss's own driver (pg) turns objects into JSON and undefined into null itself. */
+function param(value: unknown) {
+  if (value === undefined || value === null) return null;
+  if (value instanceof Date) return value.toISOString();
+  if (typeof value === 'object') return JSON.stringify(value);
+  return value;
 }

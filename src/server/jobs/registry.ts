@@ -13,6 +13,8 @@ export type JobDefinition<Data extends object = object> = {
   queue: QueueOptions;
   /** Five-field cron in UTC (`* * * * *`: every minute), when the job also runs on a schedule. */
   cron?: string;
+  /** How often an idle worker asks for one of these jobs, in seconds (5 unless set; pg-boss takes 0.5 at least). */
+  pollingIntervalSeconds?: number;
   run(context: JobContext<Data>): Promise<void>;
 };
 

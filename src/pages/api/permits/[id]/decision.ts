@@ -14,7 +14,11 @@ export const POST = endpoint(async ({ locals, params, request, url }) => {
   if (!existing) throw notFound('Permit');
   guard(actor, 'request:decide', { ownerId: actor.id });
   const input = await readJson(request, decisionSchema);
-  const permit = await db.transaction((tx) => decideRequest(tx, { permitId, ownerId: actor.id, ...input, now: new Date() }));
-  await noticeDecision({ permitId, origin: url.origin, approved: input.decision === 'approve', message: input.message });
+  // The requester's e-mail is written in the decision's transaction: it goes exactly when the decision stands.
+  const permit = await db.transaction(async (tx) => {
+    const decided = await decideRequest(tx, { permitId, ownerId: actor.id, ...input, now: new Date() });
+    await noticeDecision({ permitId, origin: url.origin, approved: input.decision === 'approve', message: input.message, tx });
+    return decided;
+  });
   return json({ permit: { id: permit.id, state: permit.state } });
 });
