@@ -25,9 +25,10 @@ export function findOrBuildServer(log: (line: string) => void): { entry: string;
   return { entry: join(outDir, 'server', 'entry.mjs'), built: true };
 }
 
-export async function startServer(entry: string, databaseUrl: string): Promise<ChildProcess> {
+/** Starts the app on the bench port; `nodeOptions` go to node before the script (`--cpu-prof`, for one). */
+export async function startServer(entry: string, databaseUrl: string, nodeOptions: string[] = []): Promise<ChildProcess> {
   // Served as production serves it (scripts/serve.mjs), in local mode: the bench's fakes and keys are the local ones.
-  const server = startChild('app', 'node', [join(root, 'scripts', 'serve.mjs')], {
+  const server = startChild('app', 'node', [...nodeOptions, join(root, 'scripts', 'serve.mjs')], {
     TALLYWOOD_OUT_DIR: dirname(dirname(entry)),
     TALLYWOOD_LOCAL_MODE: 'true',
     DATABASE_URL: databaseUrl,
