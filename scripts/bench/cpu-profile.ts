@@ -52,7 +52,7 @@ export function topSelfTime(dir: string, windowMs: number, count = 10): ProfileF
       continue;
     }
     busyUs += duration;
-    const where = url ? `${url.replace(/^file:\/\//, '').replace(`${root}/`, '')}:${lineNumber + 1}:${columnNumber + 1}` : '';
+    const where = url ? `${url.replace(/^file:\/\//, '').replace(/^.*\/node_modules\//, '').replace(`${root}/`, '')}:${lineNumber + 1}:${columnNumber + 1}` : '';
     const key = `${functionName}@${where}`;
     const entry = self.get(key) ?? { name: functionName || '(anonymous)', where, us: 0 };
     entry.us += duration;

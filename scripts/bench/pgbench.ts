@@ -14,8 +14,8 @@ import { capture } from './wrk';
  * "Built-in Operators").
  */
 const randomPosition = [
-  `\\set lon ${region.west} + random(0, 1000000) * ${(region.east - region.west) / 1e6}`,
-  `\\set lat ${region.south} + random(0, 1000000) * ${(region.north - region.south) / 1e6}`,
+  `\\set lon ${region.west} + random(0, 1000000) * ${(region.east - region.west).toFixed(4)} / 1000000.0`,
+  `\\set lat ${region.south} + random(0, 1000000) * ${(region.north - region.south).toFixed(4)} / 1000000.0`,
   '\\set acc 3 + random(0, 120) / 10.0',
 ];
 

@@ -45,7 +45,7 @@ export async function measureWithWrk({ entry, databaseUrl, tokens, positions, co
   const load = { cookies, positions, threads, connections };
   let server: ChildProcess | null = null;
   try {
-    server = await startServer(entry, databaseUrl);
+    server = await startServer(entry, databaseUrl, { logFile: join(localDir, 'bench', 'app-wrk.log') });
     log(`wrk: warm-up, ${warmUpSeconds} s…`);
     await runWrk({ ...load, url: `${url}/api/check-ins`, method: 'POST', seconds: warmUpSeconds, serverPid: server.pid, label: 'warm-up' });
     log(`wrk: POST /api/check-ins, ${connections} connections on ${threads} threads, ${seconds} s…`);
@@ -61,7 +61,7 @@ export async function measureWithWrk({ entry, databaseUrl, tokens, positions, co
     rmSync(profileDir, { recursive: true, force: true });
     mkdirSync(profileDir, { recursive: true });
     log('wrk: the check-in run again on a server under node --cpu-prof…');
-    server = await startServer(entry, databaseUrl, ['--cpu-prof', `--cpu-prof-dir=${profileDir}`]);
+    server = await startServer(entry, databaseUrl, { nodeOptions: ['--cpu-prof', `--cpu-prof-dir=${profileDir}`], logFile: join(localDir, 'bench', 'app-wrk-profiled.log') });
     await runWrk({ ...load, url: `${url}/api/check-ins`, method: 'POST', seconds: warmUpSeconds, serverPid: server.pid, label: 'warm-up' });
     const started = performance.now();
     const profiled = await runWrk({ ...load, url: `${url}/api/check-ins`, method: 'POST', seconds, serverPid: server.pid, label: 'profiled' });
