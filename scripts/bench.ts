@@ -1,4 +1,6 @@
-// `npm run bench`: figures for the check-in path on a large synthetic register, then for the club
+// `npm run bench`: figures for the check-in path on a large synthetic register (HTTP load from wrk,
+// the bare candidate query and the check-in's own candidate statement from pgbench, a CPU profile
+// of the app server during the check-in run, and the older Node-driven figures as a cross-check), then for the club
 // audit and the season report over a synthetic ledger (1 000 000 harvest entries on the first 200
 // bench parcels, scripts/bench/audit.ts), with the plan of the audit's aggregate statement. Prints a
 // table and writes .local/bench/results.json and results.md. A benchmark, not a test: it asserts nothing.
@@ -7,6 +9,7 @@
 // seeded parcels and entries between runs, so only the first run seeds. Environment (all optional):
 //   BENCH_PARCELS (100000) · BENCH_REQUESTS (5000) · BENCH_SQL_QUERIES (5000) · BENCH_NAIVE_POINTS (20)
 //   BENCH_ENTRIES (1000000) · BENCH_CONCURRENCY (8) · BENCH_MAX_SECONDS (60, per measured phase)
+//   BENCH_SECONDS (20, each wrk and pgbench run) · BENCH_WRK_THREADS (BENCH_CONCURRENCY: one connection per thread)
 //   TALLYWOOD_BENCH_PG_PORT (54349)
 import type { ChildProcess } from 'node:child_process';
 import { cpus, totalmem } from 'node:os';
@@ -19,9 +22,11 @@ import { benchPort, findOrBuildServer, measureCheckIns, startServer, stopServer,
 import { measureNaiveScan } from './bench/naive-scan';
 import { benchPositions, regionAreaKm2 } from './bench/parcels';
 import { measureFieldOffline } from './bench/field-offline';
-import { auditTargets, fieldTargets, report, type AuditResults, type BenchResults, type FieldResults } from './bench/report';
+import { auditTargets, checkInTargets, fieldTargets, report, type AuditResults, type BenchResults, type FieldResults, type PgbenchResults } from './bench/report';
 import { describeParcels, prepareMembers, prewarm, seedBench } from './bench/seed';
+import { appCandidateScript, bareLookupScript, runPgbench } from './bench/pgbench';
 import { coveringCounts, measureSql } from './bench/sql-lookup';
+import { measureWithWrk, type WrkResults } from './bench/wrk-check-ins';
 import { databaseUrls, ensureAppRole, ensureDatabase, ensurePostgres, localDir, localSecret, root, say, startCluster } from './lib/setup.mjs';
 
 const setting = (name: string, fallback: number) => {
@@ -37,6 +42,10 @@ const entryTarget = setting('BENCH_ENTRIES', 1_000_000);
 const concurrency = setting('BENCH_CONCURRENCY', 8);
 const maxMs = setting('BENCH_MAX_SECONDS', 60) * 1000;
 const pgPort = setting('TALLYWOOD_BENCH_PG_PORT', 54349);
+const loadSeconds = setting('BENCH_SECONDS', 20);
+const wrkThreads = setting('BENCH_WRK_THREADS', concurrency);
+/** pgbench's threads: one per core, as many as the machine's (the brief's `-j 2` on two cores). */
+const pgbenchThreads = Math.min(concurrency, Math.max(1, cpus().length));
 const started = performance.now();
 
 ensurePostgres();
@@ -80,6 +89,26 @@ try {
   const naivePositions = benchPositions(2, naivePoints, parcelTarget);
   const naive = await measureNaiveScan(sql, naivePositions, await coveringCounts(sql, naivePositions));
 
+  // pgbench: the bare lookup above, and the statement the check-in itself sends for its candidates
+  // (as the first bench member), at the same concurrency, random positions in the seeded region.
+  let pgbench: PgbenchResults;
+  try {
+    const [member] = await sql<{ id: string; club_ids: string[] }[]>`
+      select u.id, coalesce(array_agg(m.club_id::text) filter (where m.club_id is not null), '{}') as club_ids
+      from users u left join club_memberships m on m.user_id = u.id and m.state = 'active' where u.id = 'bench-member-00' group by u.id`;
+    if (!member) throw new Error('bench-member-00 is missing');
+    const common = { port: pgPort, database: 'tallywood_bench', user: 'app', clients: concurrency, threads: pgbenchThreads, seconds: loadSeconds };
+    say(`pgbench: the bare candidate lookup, -c ${concurrency} -j ${pgbenchThreads} -T ${loadSeconds}…`);
+    const bare = await runPgbench({ ...common, label: 'bare', script: bareLookupScript() });
+    say(`pgbench: the check-in's own candidate statement (loadParcelFactsNear), -c ${concurrency} -j ${pgbenchThreads} -T ${loadSeconds}…`);
+    const app = await runPgbench({ ...common, label: 'check-in-candidates', script: appCandidateScript({ id: member.id, clubIds: member.club_ids }) });
+    pgbench = { available: true, bare, app };
+  } catch (error) {
+    exitCode = 1;
+    pgbench = { available: false, reason: error instanceof Error ? error.message : String(error) };
+    console.log(`\n*** pgbench did not run: ${pgbench.reason} ***\n`);
+  }
+
   const tokens = await prepareMembers(sql, concurrency);
   let http: HttpFigures & { entry: string | null };
   let entry: string | null = null;
@@ -103,6 +132,25 @@ try {
       field = { available: false, reason: error instanceof Error ? error.message : String(error) };
     }
   }
+  await stopServer(server);
+  server = null;
+  let wrk: WrkResults = { available: false, reason: 'the app could not be built or found' };
+  if (entry) {
+    wrk = await measureWithWrk({
+      entry,
+      databaseUrl: appDatabaseUrl,
+      tokens,
+      positions: benchPositions(5, Math.max(1000, concurrency * 500), parcelTarget),
+      connections: concurrency,
+      threads: wrkThreads,
+      seconds: loadSeconds,
+      log: say,
+    });
+  }
+  if (!wrk.available) {
+    exitCode = 1;
+    console.log(`\n*** The check-in was not measured with wrk: ${wrk.reason} ***\n`);
+  }
   if (!http.available) {
     console.log(`\n*** The check-in endpoint was not measured: ${http.reason}. The SQL and turf figures below stand on their own. ***\n`);
     if (http.status !== 404) exitCode = 1;
@@ -123,6 +171,9 @@ try {
 
   const endpointP50 = http.available ? http.concurrent.p50 : null;
   const endpointOverSqlP50 = endpointP50 === null ? null : endpointP50 / sqlFigures.concurrent.p50;
+  const wrkOverPgbenchP50 = wrk.available && pgbench.available ? wrk.checkIns.p50 / pgbench.bare.p50 : null;
+  const wrkOverAppStatementP50 = wrk.available && pgbench.available ? wrk.checkIns.p50 / pgbench.app.p50 : null;
+  const cpuOverFloor = wrk.available && wrk.checkIns.serverCpuMsPerRequest !== null && wrk.floor.serverCpuMsPerRequest ? wrk.checkIns.serverCpuMsPerRequest / wrk.floor.serverCpuMsPerRequest : null;
   const [versions] = await sql<{ postgres: string; postgis: string }[]>`select current_setting('server_version') as postgres, postgis_lib_version() as postgis`;
   const results: BenchResults = {
     at: new Date().toISOString(),
@@ -139,17 +190,20 @@ try {
     sql: sqlFigures,
     naive,
     http,
+    wrk,
+    pgbench,
     audit,
     field,
     ratios: {
       endpointOverSqlP50,
+      wrkOverPgbenchP50,
+      wrkOverAppStatementP50,
+      cpuOverFloor,
       naiveOverEndpointP50: endpointP50 === null ? null : naive.msPerLookup / endpointP50,
       naiveOverSqlP50: naive.msPerLookup / sqlFigures.concurrent.p50,
     },
     targets: [
-      { name: 'endpoint p95 ms', value: http.available ? http.concurrent.p95 : null, target: '< 10', met: http.available ? http.concurrent.p95 < 10 : null },
-      { name: 'check-ins per second', value: http.available ? http.concurrent.perSecond : null, target: '≥ 1000', met: http.available ? http.concurrent.perSecond >= 1000 : null },
-      { name: 'endpoint p50 / bare SQL p50', value: endpointOverSqlP50, target: '≤ 4', met: endpointOverSqlP50 === null ? null : endpointOverSqlP50 <= 4 },
+      ...checkInTargets(wrk, wrkOverPgbenchP50, cpuOverFloor),
       ...auditTargets(audit),
       ...fieldTargets(field),
     ],

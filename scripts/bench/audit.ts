@@ -81,7 +81,7 @@ export async function seedEntries(sql: Sql, target = 1_000_000, log: (line: stri
           join w using (k)
           cross join lateral (select 'bench-member-' || lpad(((7 * n.r + n.k) % ${memberCount})::text, 2, '0') as id) m
           cross join lateral (select date '2026-01-01' + ((7919 * n.r + 31 * n.k) % ${entryDays})::int as local_date) d
-          on conflict (idempotency_key) do nothing
+          on conflict (forager_id, idempotency_key) do nothing
           returning id, idempotency_key)
         insert into harvest_quantities (entry_id, measure, quantity, unit, base_quantity)
         select i.id, 'mass'::measure, n.grams, 'g'::unit, n.grams

@@ -1,5 +1,5 @@
-import type { ChildProcess } from 'node:child_process';
-import { existsSync, readFileSync, statSync } from 'node:fs';
+import { spawn, type ChildProcess } from 'node:child_process';
+import { closeSync, existsSync, mkdirSync, openSync, readFileSync, statSync } from 'node:fs';
 import { Agent, request } from 'node:http';
 import { dirname, join } from 'node:path';
 import { bin, localDir, root, run, startChild, waitForHttp } from '../lib/setup.mjs';
@@ -25,9 +25,16 @@ export function findOrBuildServer(log: (line: string) => void): { entry: string;
   return { entry: join(outDir, 'server', 'entry.mjs'), built: true };
 }
 
-export async function startServer(entry: string, databaseUrl: string): Promise<ChildProcess> {
+/**
+ * Starts the app on the bench port; `nodeOptions` go to node before the script (`--cpu-prof`, for
+ * one). With `logFile`, the app writes its log (a line per request) straight into that file, as it
+ * would into a log collector, rather than through a pipe to this process: the bench relaying every
+ * line would take CPU from the two cores being measured, and Node writes to a pipe synchronously.
+ */
+export async function startServer(entry: string, databaseUrl: string, { nodeOptions = [], logFile }: { nodeOptions?: string[]; logFile?: string } = {}): Promise<ChildProcess> {
   // Served as production serves it (scripts/serve.mjs), in local mode: the bench's fakes and keys are the local ones.
-  const server = startChild('app', 'node', [join(root, 'scripts', 'serve.mjs')], {
+  const args = [...nodeOptions, join(root, 'scripts', 'serve.mjs')];
+  const env: Record<string, string> = {
     TALLYWOOD_OUT_DIR: dirname(dirname(entry)),
     TALLYWOOD_LOCAL_MODE: 'true',
     DATABASE_URL: databaseUrl,
@@ -41,7 +48,16 @@ export async function startServer(entry: string, databaseUrl: string): Promise<C
     STRIPE_SECRET_KEY: 'sk_test_tallywood_bench',
     STRIPE_WEBHOOK_SECRET: 'whsec_tallywood_bench',
     UPLOADS_DIR: join(localDir, 'bench-uploads'),
-  });
+  };
+  let server: ChildProcess;
+  if (logFile) {
+    mkdirSync(dirname(logFile), { recursive: true });
+    const fd = openSync(logFile, 'w');
+    server = spawn('node', args, { cwd: root, env: { ...process.env, ...env }, stdio: ['ignore', fd, fd] });
+    closeSync(fd);
+  } else {
+    server = startChild('app', 'node', args, env);
+  }
   await waitForHttp(`${origin}/api/health`, 60);
   return server;
 }

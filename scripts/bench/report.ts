@@ -5,7 +5,10 @@ import type { AuditFigures } from './audit';
 import type { HttpFigures } from './http-check-ins';
 import type { NaiveFigures } from './naive-scan';
 import type { ParcelFigures } from './seed';
+import type { ProfileFigures } from './cpu-profile';
+import type { PgbenchFigures } from './pgbench';
 import type { SqlFigures } from './sql-lookup';
+import type { WrkResults } from './wrk-check-ins';
 
 export type AuditResults = (AuditFigures & { available: true; seeding: { seeded: number; ms: number; limitsAdded: number } }) | { available: false; reason: string };
 
@@ -30,6 +33,41 @@ export function auditTargets(audit: AuditResults): Target[] {
   ];
 }
 
+export type PgbenchResults = { available: true; bare: PgbenchFigures; app: PgbenchFigures } | { available: false; reason: string };
+
+/**
+ * Issue 15's targets for the check-in, from wrk's run (8 connections, each a forager of its own) and
+ * pgbench's bare candidate lookup at the same concurrency: at least 1 000 check-ins/s, p95 at most
+ * 10 ms, the endpoint's p50 within 4× the bare query's, and the app's CPU per check-in within 4× its
+ * CPU per signed-out GET /api/me.
+ */
+export function checkInTargets(wrk: WrkResults, endpointOverQueryP50: number | null, cpuOverFloor: number | null): Target[] {
+  const at = (check: (w: Extract<WrkResults, { available: true }>) => number) => (wrk.available ? check(wrk) : null);
+  const perSecond = at((w) => w.checkIns.perSecond);
+  const p95 = at((w) => w.checkIns.p95);
+  return [
+    { name: 'check-ins per second (wrk)', value: perSecond, target: '≥ 1000', met: perSecond === null ? null : perSecond >= 1000 },
+    { name: 'check-in p95 ms (wrk)', value: p95, target: '≤ 10', met: p95 === null ? null : p95 <= 10 },
+    { name: 'check-in p50 / bare candidate query p50 (pgbench)', value: endpointOverQueryP50, target: '≤ 4', met: endpointOverQueryP50 === null ? null : endpointOverQueryP50 <= 4 },
+    { name: 'app CPU per check-in / per signed-out GET /api/me', value: cpuOverFloor, target: '≤ 4', met: cpuOverFloor === null ? null : cpuOverFloor <= 4 },
+  ];
+}
+
+/** The ten functions with the most self time in the app server during the profiled check-in run. */
+export function profileText(p: ProfileFigures): string {
+  const header = ['self ms', '%', 'function', 'where'];
+  const body = p.top.map((t) => [t.ms.toFixed(0), t.percent.toFixed(1), t.name, t.where]);
+  const widths = header.map((h, i) => Math.max(h.length, ...body.map((row) => (row[i] ?? '').length)));
+  const line = (cells: string[]) => cells.map((c, i) => (i < 2 ? c.padStart(widths[i] ?? 0) : c.padEnd(widths[i] ?? 0))).join('  ').trimEnd();
+  return [
+    `CPU profile of the app server during the check-in run (node --cpu-prof, ${p.file}): ` +
+      `${(p.windowMs / 1000).toFixed(1)} s counted, ${(p.busyMs / 1000).toFixed(2)} s busy, ${(p.idleMs / 1000).toFixed(2)} s idle; the ten functions with the most self time (% of busy):`,
+    line(header),
+    widths.map((w) => '─'.repeat(w)).join('  '),
+    ...body.map(line),
+  ].join('\n');
+}
+
 export type BenchResults = {
   at: string;
   machine: { cpus: number; cpuModel: string; memoryGb: number; node: string; postgres: string; postgis: string };
@@ -38,9 +76,11 @@ export type BenchResults = {
   sql: SqlFigures;
   naive: NaiveFigures;
   http: HttpFigures & { entry: string | null };
+  wrk: WrkResults;
+  pgbench: PgbenchResults;
   audit: AuditResults;
   field: FieldResults;
-  ratios: { endpointOverSqlP50: number | null; naiveOverEndpointP50: number | null; naiveOverSqlP50: number };
+  ratios: { endpointOverSqlP50: number | null; wrkOverPgbenchP50: number | null; wrkOverAppStatementP50: number | null; cpuOverFloor: number | null; naiveOverEndpointP50: number | null; naiveOverSqlP50: number };
   targets: Target[];
   totalMs: number;
 };
@@ -51,16 +91,28 @@ const times = (value: number | null) => (value === null ? '—' : `${value.toFix
 const mark = (met: boolean | null) => (met === null ? 'not measured' : met ? 'met' : 'NOT met');
 
 function rows(r: BenchResults): string[][] {
-  const { sql, naive, http } = r;
-  const out = [
-    ['bare SQL candidates + covers + edge distance', `${sql.concurrent.concurrency} connections`, ms(sql.concurrent.p50), ms(sql.concurrent.p95), rate(sql.concurrent.perSecond)],
-    ['bare SQL, one connection', 'serial', ms(sql.serial.p50), ms(sql.serial.p95), rate(1000 / sql.serial.mean)],
+  const { sql, naive, http, wrk, pgbench } = r;
+  const out: string[][] = [];
+  if (wrk.available) {
+    const w = wrk.checkIns;
+    out.push([`POST /api/check-ins, wrk`, `${w.connections} connections, ${w.seconds.toFixed(0)} s`, ms(w.p50), ms(w.p95), rate(w.perSecond)]);
+    out.push([`floor: GET /api/me signed out, wrk`, `${wrk.floor.connections} connections, ${wrk.floor.seconds.toFixed(0)} s`, ms(wrk.floor.p50), ms(wrk.floor.p95), rate(wrk.floor.perSecond)]);
+    out.push([`POST /api/check-ins, wrk, under --cpu-prof`, `${wrk.profiled.connections} connections, ${wrk.profiled.seconds.toFixed(0)} s`, ms(wrk.profiled.p50), ms(wrk.profiled.p95), rate(wrk.profiled.perSecond)]);
+  }
+  if (pgbench.available) {
+    for (const [label, f] of [['bare candidate query, pgbench', pgbench.bare], ["check-in's candidate statement, pgbench", pgbench.app]] as const) {
+      out.push([label, `${f.clients} clients, ${f.seconds} s`, ms(f.p50), ms(f.p95), rate(f.tps)]);
+    }
+  }
+  out.push(
+    ['bare SQL from Node (cross-check)', `${sql.concurrent.concurrency} connections`, ms(sql.concurrent.p50), ms(sql.concurrent.p95), rate(sql.concurrent.perSecond)],
+    ['bare SQL from Node, one connection', 'serial', ms(sql.serial.p50), ms(sql.serial.p95), rate(1000 / sql.serial.mean)],
     ['naive turf scan of every parcel', `${naive.points} points`, ms(naive.msPerLookup), '', rate(1000 / naive.msPerLookup)],
-  ];
+  );
   if (http.available) {
-    out.push(['POST /api/check-ins over loopback', `${http.concurrent.concurrency} clients`, ms(http.concurrent.p50), ms(http.concurrent.p95), rate(http.concurrent.perSecond)]);
-    out.push(['POST /api/check-ins, one client', 'serial', ms(http.serial.p50), ms(http.serial.p95), rate(1000 / http.serial.mean)]);
-    out.push(['floor: GET /api/me signed out (no database)', `${http.concurrent.concurrency} clients`, ms(http.floor.p50), ms(http.floor.p95), rate(http.floor.perSecond)]);
+    out.push(['POST /api/check-ins from Node (cross-check)', `${http.concurrent.concurrency} clients`, ms(http.concurrent.p50), ms(http.concurrent.p95), rate(http.concurrent.perSecond)]);
+    out.push(['POST /api/check-ins from Node, one client', 'serial', ms(http.serial.p50), ms(http.serial.p95), rate(1000 / http.serial.mean)]);
+    out.push(['floor: GET /api/me signed out from Node', `${http.concurrent.concurrency} clients`, ms(http.floor.p50), ms(http.floor.p95), rate(http.floor.perSecond)]);
   }
   const { audit } = r;
   if (audit.available) {
@@ -81,7 +133,20 @@ const header = ['measurement', 'load', 'p50 ms', 'p95 ms', 'per s'];
 
 function summaryLines(r: BenchResults): string[] {
   const p = r.parcels;
+  const { wrk, pgbench } = r;
+  const cpu = (value: number | null) => (value === null ? '—' : `${value.toFixed(2)} ms`);
   return [
+    wrk.available
+      ? `wrk check-ins: ${wrk.checkIns.requests} requests, p50 ${ms(wrk.checkIns.p50)}, p90 ${ms(wrk.checkIns.p90)}, p95 ${ms(wrk.checkIns.p95)}, p99 ${ms(wrk.checkIns.p99)} ms; ` +
+        `statuses ${JSON.stringify(wrk.checkIns.statuses)}, verdicts ${JSON.stringify(wrk.checkIns.verdicts)}, socket errors ${JSON.stringify(wrk.checkIns.errors)}; ` +
+        `app CPU ${cpu(wrk.checkIns.serverCpuMsPerRequest)} per check-in, ${cpu(wrk.floor.serverCpuMsPerRequest)} per signed-out GET /api/me (${times(r.ratios.cpuOverFloor)}); ` +
+        `under --cpu-prof ${rate(wrk.profiled.perSecond)}/s (${ms(wrk.profiled.p50)} ms p50)`
+      : `wrk: NOT MEASURED — ${wrk.reason}`,
+    pgbench.available
+      ? [pgbench.bare, pgbench.app]
+          .map((f) => `pgbench ${f.label}: ${f.transactions} transactions (${f.failed} failed), ${rate(f.tps)} tps, latency average ${ms(f.latencyAverage)} ms (the select ${f.statementAverage === null ? '—' : ms(f.statementAverage)} ms), p50 ${ms(f.p50)}, p95 ${ms(f.p95)}, p99 ${ms(f.p99)} ms`)
+          .join('; ') + `; check-in p50 (wrk) / the check-in's candidate statement p50 = ${times(r.ratios.wrkOverAppStatementP50)}`
+      : `pgbench: NOT MEASURED — ${pgbench.reason}`,
     `${p.parcels.toLocaleString('en-US')} parcels: ${p.meanVertices.toFixed(1)} vertices on average, ${((100 * p.withHole) / p.parcels).toFixed(1)} % with a hole, ` +
       `${((100 * p.multi) / p.parcels).toFixed(1)} % MultiPolygons, ${p.minHa.toFixed(1)}–${p.maxHa.toFixed(1)} ha (mean ${p.meanHa.toFixed(1)}), covering the region ${p.coverage.toFixed(2)}× over; ${p.invalid} invalid by ST_IsValid`,
     `machine: ${r.machine.cpus} CPU cores (${r.machine.cpuModel}), ${r.machine.memoryGb} GB, Node ${r.machine.node}, PostgreSQL ${r.machine.postgres}, PostGIS ${r.machine.postgis}`,
@@ -94,7 +159,7 @@ function summaryLines(r: BenchResults): string[] {
       : `endpoint: NOT MEASURED — ${r.http.reason}${r.http.entry ? ` (server ${r.http.entry})` : ''}`,
     ...auditLines(r.audit),
     ...fieldLines(r.field),
-    `ratios: endpoint p50 / bare SQL p50 = ${times(r.ratios.endpointOverSqlP50)}; naive scan / endpoint p50 = ${times(r.ratios.naiveOverEndpointP50)}; naive scan / bare SQL p50 = ${times(r.ratios.naiveOverSqlP50)}`,
+    `ratios (Node-driven, cross-check): endpoint p50 / bare SQL p50 = ${times(r.ratios.endpointOverSqlP50)}; naive scan / endpoint p50 = ${times(r.ratios.naiveOverEndpointP50)}; naive scan / bare SQL p50 = ${times(r.ratios.naiveOverSqlP50)}`,
   ];
 }
 
@@ -149,7 +214,7 @@ function targetLines(r: BenchResults): string[] {
 
 /** The table for the terminal, and results.json + results.md in .local/bench. */
 export function report(r: BenchResults, dir: string): string {
-  const text = [table(header, rows(r)), '', ...summaryLines(r), '', 'targets:', ...targetLines(r).map((l) => `  ${l}`)].join('\n');
+  const text = [table(header, rows(r)), '', ...summaryLines(r), '', ...(r.wrk.available ? [profileText(r.wrk.profile), ''] : []), 'targets:', ...targetLines(r).map((l) => `  ${l}`)].join('\n');
   mkdirSync(dir, { recursive: true });
   writeFileSync(join(dir, 'results.json'), `${JSON.stringify(r, null, 2)}\n`);
   const md = [
@@ -165,6 +230,8 @@ export function report(r: BenchResults, dir: string): string {
     '',
     ...targetLines(r).map((l) => `- ${l}`),
     '',
+    ...(r.wrk.available ? ['## CPU profile', '', '```', profileText(r.wrk.profile), '```', ''] : []),
+    ...(r.pgbench.available ? ["## pgbench scripts (the bare lookup; the check-in's candidate statement)", '', '```', r.pgbench.bare.script, '```', '', '```', r.pgbench.app.script, '```', ''] : []),
     '## Plan of the bare query (EXPLAIN ANALYZE, one in-parcel position)',
     '',
     '```',

@@ -8,7 +8,7 @@ import { fileURLToPath } from 'node:url';
 
 export const root = resolve(dirname(fileURLToPath(import.meta.url)), '..', '..');
 export const localDir = join(root, '.local');
-const pgBin = process.env.PG_BIN ?? '/usr/lib/postgresql/15/bin';
+export const pgBin = process.env.PG_BIN ?? '/usr/lib/postgresql/15/bin';
 const isRoot = typeof process.getuid === 'function' && process.getuid() === 0;
 
 export function say(message) {
@@ -65,6 +65,12 @@ export function ensurePostgres() {
 export function ensureChromium() {
   if (existsSync('/usr/bin/chromium')) return;
   aptInstall(['chromium'], 'Chromium for the end-to-end tests');
+}
+
+/** Debian's wrk, the benchmark's HTTP load generator (`npm run bench`): a small C program, so the load does not share Node's event loop. */
+export function ensureWrk() {
+  if (existsSync('/usr/bin/wrk')) return;
+  aptInstall(['wrk'], 'wrk, the load generator of the benchmark');
 }
 
 /** Debian's libfaketime, for the test runs at fixed instants (`npm test`). */
