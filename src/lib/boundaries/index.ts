@@ -3,6 +3,6 @@ export { parseBoundaryFile, type BoundaryFileFormat, type ParseResult } from './
 export { checkBoundary, defaultBoundaryLimits } from './validate';
 export { mergeFeatures, normalizeWinding, toMultiPolygon, zoneInsideParcel } from './shape';
 export { problemFromPostgis } from './postgis-reasons';
-export { formatPosition, haversineDistanceM, sphericalAreaM2 } from './geodesy';
+export { formatPosition, geodesicDistanceM, geodesicAreaM2 } from './geodesy';
 export { gpxClosingToleranceM } from './kml-gpx';
 export * from './types';

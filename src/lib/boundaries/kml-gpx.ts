@@ -1,14 +1,14 @@
 import { gpx, kml } from '@tmcw/togeojson';
 import { DOMParser } from '@xmldom/xmldom';
 import { collectGeoJson, type Collected } from './geojson';
-import { haversineDistanceM } from './geodesy';
+import { geodesicDistanceM } from './geodesy';
 import type { BoundaryProblem, Position } from './types';
 
 /**
  * A walked track or route whose ends are this close is taken as a closed boundary. 25 m is twice the
  * worst phone error under leafy canopy (RMSE 5.4–12.6 m, Tomaštík et al. 2021, REFERENCES §5), so a
  * walk that came back to its start is not refused for GPS noise, and one that stopped short is.
- * Distance is haversine on the mean Earth radius (geodesy.ts).
+ * Distance is geodesic on WGS 84 (geodesy.ts).
  */
 export const gpxClosingToleranceM = 25;
 
@@ -77,7 +77,7 @@ export function collectGpx(doc: XmlDocument): Collected {
       problems.push({ code: 'no-polygon', message: `${label} has ${points.length} points; a boundary walk needs at least three. Record the walk again.` });
       continue;
     }
-    const gap = haversineDistanceM(first, last);
+    const gap = geodesicDistanceM(first, last);
     if (gap > gpxClosingToleranceM) {
       problems.push({
         code: 'open-track',

@@ -1,5 +1,5 @@
 import { capitalize, describeRing, readBoundaryGeometry, type Parts } from './coordinates';
-import { formatHectares, formatPosition, sphericalAreaM2 } from './geodesy';
+import { formatHectares, formatPosition, geodesicAreaM2 } from './geodesy';
 import { topologyProblems } from './topology';
 import type { BoundaryLimits, BoundaryProblem, Position } from './types';
 
@@ -36,7 +36,7 @@ export function checkBoundary(geometry: unknown, limits: BoundaryLimits = defaul
   }
   const problems = [...ringProblems(parts), ...rangeProblems(parts)];
   if (problems.length > 0) return { problems, vertexCount };
-  const areaM2 = sphericalAreaM2(parts);
+  const areaM2 = geodesicAreaM2(parts);
   if (areaM2 > limits.maxAreaHectares * 10_000) {
     problems.push({
       code: 'too-large',
