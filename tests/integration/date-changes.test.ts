@@ -116,13 +116,16 @@ describe('startJobs', () => {
     if (app) await closeDb(app);
   });
 
-  it("given the app's role, it keeps date-changes and the outbox's send-mail sweep on a one-minute cron and reminders on a 15-minute one in pgboss.schedule, runs date-changes once at start, and the role still owns nothing", async () => {
+  it("given the app's role and a schedule left by a job since removed, it keeps date-changes and the outbox's send-mail sweep on a one-minute cron and reminders on a 15-minute one in pgboss.schedule, drops the removed one, runs date-changes once at start, and the role still owns nothing", async () => {
     const appUrl = process.env.DATABASE_URL;
     if (!appUrl || !throwaway) throw new Error('DATABASE_URL is not set');
     // The app's role (tallywood_web, as the server signs in) on this test's own database.
     const url = new URL(appUrl);
     url.pathname = `/${throwaway.name}`;
     app = createDb(url.toString(), { max: 2, hotMax: 1 });
+    // A nightly job an earlier version had: its queue and its schedule are still in the database.
+    await db().execute(sql`select pgboss.create_queue('retired-nightly', '{}'::json)`);
+    await db().execute(sql`insert into pgboss.schedule (name, cron, timezone) values ('retired-nightly', '0 3 * * *', 'UTC')`);
     await startJobs({ db: app, databaseUrl: url.toString(), log: pino({ level: 'silent' }) });
 
     const schedules = await db().execute<{ name: string; cron: string; timezone: string }>(sql`select name, cron, timezone from pgboss.schedule order by name`);

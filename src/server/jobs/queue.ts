@@ -70,12 +70,22 @@ async function start({ db, databaseUrl, log, jobs = appJobs }: { db: Db; databas
         await boss.send(job.name, {}, { singletonKey: 'on-start', singletonSeconds: 60 });
       }
     }
+    await dropRetiredSchedules(boss, jobs);
   } catch (error) {
     await boss.stop({ graceful: false }).catch(() => {});
     throw error;
   }
   running = { boss, log, workers };
   log.info({ jobs: jobs.map((job) => job.name) }, 'jobs: the queue started');
+}
+
+/**
+ * A job taken out of `appJobs` leaves its row in pgboss.schedule, and the cron would go on queuing runs
+ * that no worker takes. Any schedule that no job here (or in `jobs`) keeps is removed.
+ */
+async function dropRetiredSchedules(boss: PgBoss, jobs: readonly JobDefinition[]) {
+  const kept = new Set([...appJobs, ...jobs].filter((job) => job.cron).map((job) => job.name));
+  for (const { name } of await boss.getSchedules()) if (!kept.has(name)) await boss.unschedule(name);
 }
 
 async function runJob(job: JobDefinition, { db, log, id, data }: { db: Db; log: Log; id: string; data: object }) {
