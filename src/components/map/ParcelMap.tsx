@@ -29,6 +29,7 @@ import PositionMarker, { describePosition, type MapPosition } from './PositionMa
 import { describeDrawing, layersToMultiPolygon, toLatLngs, type Area, type LonLatBounds } from './geometry';
 import { fitMaxZoom, viewKey, viewTargetFor, type ViewTarget } from './map-view';
 import { hatchColour, kindWords, markerIcons, pathStyleFor, toneWords, type FeatureKind, type MarkerTone } from './map-styles';
+import { useMapName } from './useMapName';
 
 export type MapFeature = {
   id: string;
@@ -122,12 +123,7 @@ function MapBehaviour({ target, label, maxZoom }: { target: ViewTarget; label: s
     else map.setView(view.center, view.zoom);
   };
 
-  useEffect(() => {
-    const container = map.getContainer();
-    container.setAttribute('role', 'region');
-    container.setAttribute('aria-roledescription', 'map');
-    container.setAttribute('aria-label', label);
-  }, [map, label]);
+  useMapName(label);
 
   useEffect(() => {
     if (shownKey.current === key) return;

@@ -7,13 +7,14 @@
 import 'leaflet/dist/leaflet.css';
 import './map.css';
 import type { LeafletEvent, Marker as LeafletMarker } from 'leaflet';
-import { useEffect, useMemo } from 'react';
-import { MapContainer, Marker, Popup, Rectangle, TileLayer, Tooltip, useMap } from 'react-leaflet';
+import { useMemo } from 'react';
+import { MapContainer, Marker, Popup, Rectangle, TileLayer, Tooltip } from 'react-leaflet';
 import { formatArea } from '../../lib/format';
 import BaseLayer from './BaseLayer';
 import { L } from './leaflet-setup';
 import { defaultView, fitMaxZoom } from './map-view';
 import { placesBounds, roughPlaces, roughWords, type RoughParcel, type RoughPlace } from './rough-locations';
+import { useMapName } from './useMapName';
 
 export type RoughLocationsMapProps = {
   tiles: { url: string; attribution: string; maxZoom: number; baseLayerUrl?: string };
@@ -48,13 +49,7 @@ function openRequestForm(anchorId: string) {
 }
 
 function Accessible({ label }: { label: string }) {
-  const map = useMap();
-  useEffect(() => {
-    const container = map.getContainer();
-    container.setAttribute('role', 'region');
-    container.setAttribute('aria-roledescription', 'map');
-    container.setAttribute('aria-label', label);
-  }, [map, label]);
+  useMapName(label);
   return null;
 }
 
