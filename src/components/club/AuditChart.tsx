@@ -32,6 +32,12 @@ function useNarrow() {
   return narrow;
 }
 
+/**
+ * On a wide chart the names sit left of their bars, wrapped by word into 240 px: at 12 px that is
+ * about 28 characters a line, give or take the breaks. Each row is tall enough for the longest name.
+ */
+const wideRowHeight = (names: string[]) => Math.max(30, Math.ceil(Math.max(0, ...names.map((n) => n.length)) / 28) * 14 + 4);
+
 export default function AuditChart({ bars }: { bars: AuditChartBar[] }) {
   const uid = useId().replace(/[^\w-]/g, '');
   const narrow = useNarrow();
@@ -67,7 +73,7 @@ export default function AuditChart({ bars }: { bars: AuditChartBar[] }) {
           ))}
         </defs>
       </svg>
-      <div role="img" aria-label={summary} style={{ height: data.length * (narrow ? 46 : 30) + 60 }} className="mt-2">
+      <div role="img" aria-label={summary} style={{ height: data.length * (narrow ? 46 : wideRowHeight(data.map((d) => d.name))) + 60 }} className="mt-2">
         <ResponsiveContainer width="100%" height="100%">
           <BarChart data={data} layout="vertical" margin={{ top: 24, right: narrow ? 96 : 120, bottom: 4, left: 4 }}>
             <CartesianGrid horizontal={false} stroke="#eee7dd" />
