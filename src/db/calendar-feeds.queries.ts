@@ -1,4 +1,5 @@
 import { and, eq, isNull, sql } from 'drizzle-orm';
+import type { FeedParcel } from '../lib/calendar-events';
 import type { Forager } from '../lib/field/types';
 import type { Executor } from './client';
 import { calendarFeeds } from './schema';
@@ -46,4 +47,21 @@ export async function findFeedOwner(db: Executor, { tokenHash }: { tokenHash: st
     from calendar_feeds f join users u on u.id = f.account_id
     where f.token_hash = ${tokenHash} and f.revoked_at is null`);
   return row ? { id: row.id, clubIds: row.club_ids } : null;
+}
+
+/**
+ * The owner's listed parcels as their calendar shows them: closures, and each allowed species with
+ * its seasons. Drafts and archived parcels have no dates in force, so they are left out.
+ */
+export async function listOwnParcelsForCalendar(db: Executor, { ownerId }: { ownerId: string }): Promise<FeedParcel[]> {
+  const rows = await db.execute<{ id: string; name: string; time_zone: string; closures: FeedParcel['closures']; allowances: FeedParcel['allowances'] }>(sql`
+    select p.id, p.name, p.time_zone,
+      coalesce((select json_agg(json_build_object('startsOn', c.starts_on::text, 'endsOn', c.ends_on::text, 'reason', c.reason) order by c.starts_on)
+        from closures c where c.parcel_id = p.id), '[]') as closures,
+      coalesce((select json_agg(json_build_object('speciesId', s.id, 'commonName', s.common_name, 'seasons', a.seasons) order by s.common_name)
+        from allowances a join species s on s.id = a.species_id where a.parcel_id = p.id and a.removed_at is null), '[]') as allowances
+    from parcels p
+    where p.owner_id = ${ownerId} and p.status = 'listed'
+    order by p.name, p.id`);
+  return rows.map((r) => ({ id: String(r.id), name: r.name, timeZone: r.time_zone, closures: r.closures, allowances: r.allowances }));
 }

@@ -60,6 +60,11 @@ export async function listPermitsForParcel(db: Executor, { parcelId, ownerId }: 
   return permitsWithHolders(db).where(and(eq(permits.parcelId, parcelId), eq(parcels.ownerId, ownerId))).orderBy(desc(permits.createdAt));
 }
 
+/** Every permit on any of the owner's parcels, in the order they start. */
+export async function listPermitsOnOwnersLand(db: Executor, { ownerId }: { ownerId: string }) {
+  return permitsWithHolders(db).where(eq(parcels.ownerId, ownerId)).orderBy(asc(permits.startsOn));
+}
+
 /** Access requests waiting for the owner's decision, oldest first. */
 export async function listRequestsForOwner(db: Executor, { ownerId }: { ownerId: string }) {
   return permitsWithHolders(db).where(and(eq(parcels.ownerId, ownerId), eq(permits.state, 'requested'))).orderBy(asc(permits.createdAt));

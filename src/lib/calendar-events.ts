@@ -33,6 +33,9 @@ export type FeedPermit = {
   clubName: string | null;
 };
 
+/** A permit on the person's own land, as its landowner sees it: who holds it. */
+export type FeedGrant = FeedPermit & { holderName: string | null };
+
 export type FeedParcel = {
   id: string;
   name: string;
@@ -65,6 +68,22 @@ function permitEvent(permit: FeedPermit, species: string[]): CalendarEvent {
     ),
     location: permit.parcelName,
     timeZone: permit.timeZone,
+  };
+}
+
+function grantEvent(grant: FeedGrant): CalendarEvent {
+  const holder = grant.clubName ?? grant.holderName ?? 'A forager';
+  return {
+    uid: `granted-${grant.id}@tallywood`,
+    firstDay: grant.startsOn,
+    lastDay: grant.endsOn,
+    summary: `Permit on your land: ${holder}, ${grant.parcelName}`,
+    description: withNote(
+      `${holder} may harvest on ${grant.parcelName} (${grant.clubName ? 'a club permit' : 'a personal permit'}, ${grant.state}), ${formatDate(grant.startsOn)} – ${formatDate(grant.endsOn)} on the parcel's calendar.`,
+      'Their entries and running totals are on the parcel\'s Tallies page.',
+    ),
+    location: grant.parcelName,
+    timeZone: grant.timeZone,
   };
 }
 
@@ -116,15 +135,24 @@ function closureEvents(parcel: FeedParcel, from: string, until: string): Calenda
 /**
  * A person's feed: their permits' windows (their own and their clubs'), and on the parcels they may
  * use, each season's opening and closing day and each closure within the next twelve months, counted
- * from the parcel's own today.
+ * from the parcel's own today. A landowner's feed also has, on their own parcels, the windows of the
+ * permits they granted and the same season days and closures. A parcel both owned and used is listed once.
  */
-export function buildCalendarEvents({ permits, parcels, now }: { permits: FeedPermit[]; parcels: FeedParcel[]; now: Date }): CalendarEvent[] {
+export function buildCalendarEvents({ permits, parcels, grants = [], ownParcels = [], now }: {
+  permits: FeedPermit[];
+  parcels: FeedParcel[];
+  grants?: FeedGrant[];
+  ownParcels?: FeedParcel[];
+  now: Date;
+}): CalendarEvent[] {
   const speciesOn = new Map(parcels.map((p) => [p.id, p.allowances.map((a) => a.commonName)]));
   const permitEvents = permits.filter((p) => shownStates.has(p.state)).map((p) => permitEvent(p, speciesOn.get(p.parcelId) ?? []));
-  const parcelEvents = parcels.flatMap((parcel) => {
+  const grantEvents = grants.filter((g) => shownStates.has(g.state)).map(grantEvent);
+  const everyParcel = [...parcels, ...ownParcels.filter((own) => !parcels.some((p) => p.id === own.id))];
+  const parcelEvents = everyParcel.flatMap((parcel) => {
     const today = localDateAt(now, parcel.timeZone);
     const until = addDays(addYears(today, 1), -1);
     return [...seasonEvents(parcel, today, until), ...closureEvents(parcel, today, until)];
   });
-  return [...permitEvents, ...parcelEvents].sort((a, b) => (a.firstDay < b.firstDay ? -1 : a.firstDay > b.firstDay ? 1 : a.uid < b.uid ? -1 : 1));
+  return [...permitEvents, ...grantEvents, ...parcelEvents].sort((a, b) => (a.firstDay < b.firstDay ? -1 : a.firstDay > b.firstDay ? 1 : a.uid < b.uid ? -1 : 1));
 }

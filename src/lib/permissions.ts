@@ -13,7 +13,7 @@ export const permissionTable = {
   'permit:read-own': { roles: ['forager'], ownership: 'self' },
   'permit:request': { roles: ['forager', 'steward'] },
   /** A private calendar feed of one's own permits, seasons and closures: make, replace or turn it off. */
-  'calendar-feed:manage-own': { roles: ['forager', 'steward'] },
+  'calendar-feed:manage-own': { roles: ['forager', 'steward', 'landowner'] },
   /** A permit card: its holder, a member of the holding club, or the parcel's landowner (the query decides which permit). */
   'permit:read-card': { roles: ['forager', 'steward', 'landowner'] },
   'parcel:list-own': { roles: ['landowner'] },

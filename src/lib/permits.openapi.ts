@@ -40,12 +40,12 @@ export const permitOperations: ApiOperation[] = [
     ok: { status: 200, description: 'Received' },
   },
   {
-    method: 'post', path: '/api/calendar-feed', tag: 'permits', summary: 'Make your private calendar feed, or a new address for it (the old address stops working at once)', who: 'Foragers and stewards (their own)',
+    method: 'post', path: '/api/calendar-feed', tag: 'permits', summary: 'Make your private calendar feed, or a new address for it (the old address stops working at once)', who: 'Foragers, stewards and landowners (their own)',
     description: 'The address carries a random token that is shown only in this answer (only its SHA-256 is kept): `url` (https) and `webcal` (the same, for calendar apps). ' +
       "The feed holds your permits' windows (yours and your clubs'), and on the parcels you may use each season's opening and closing day and each closure in the next twelve months, as whole days on the parcel's calendar.",
     ok: { status: 201, description: '`{ feed: { url, webcal, createdAt } }`' },
   },
-  { method: 'delete', path: '/api/calendar-feed', tag: 'permits', summary: 'Turn your calendar feed off: its address answers 404 from now on', who: 'Foragers and stewards (their own)', ok: { status: 200, description: '`{ revoked }`, false when no feed was on' } },
+  { method: 'delete', path: '/api/calendar-feed', tag: 'permits', summary: 'Turn your calendar feed off: its address answers 404 from now on', who: 'Foragers, stewards and landowners (their own)', ok: { status: 200, description: '`{ revoked }`, false when no feed was on' } },
   {
     method: 'get', path: '/api/calendar/{token}.ics', tag: 'permits', summary: 'A private calendar feed (iCalendar, RFC 5545), opened by the token in its address', who: 'Whoever holds the address (calendar apps fetch it with no session)', signedIn: false,
     description: 'Whole-day events (DTSTART;VALUE=DATE) on each parcel\'s calendar, with a VTIMEZONE for each parcel\'s zone. An unknown, replaced or turned-off address is a 404 with a plain-text sentence.',

@@ -2,9 +2,9 @@ import { createHash, randomBytes } from 'node:crypto';
 import { getVtimezoneComponent } from '@touch4it/ical-timezones';
 import ical, { ICalEventTransparency } from 'ical-generator';
 import type { Executor } from '../db/client';
-import { findFeedOwner } from '../db/calendar-feeds.queries';
+import { findFeedOwner, listOwnParcelsForCalendar } from '../db/calendar-feeds.queries';
 import { loadUsableParcelFacts } from '../db/field.queries';
-import { listPermitsForForager } from '../db/permits.queries';
+import { listPermitsForForager, listPermitsOnOwnersLand } from '../db/permits.queries';
 import { addDays } from '../lib/field/time';
 import { buildCalendarEvents, type CalendarEvent } from '../lib/calendar-events';
 
@@ -64,15 +64,18 @@ export function renderCalendar(events: CalendarEvent[], now: Date): string {
 
 /**
  * The feed a token opens, or null for an unknown or revoked token. Every query is scoped to the
- * feed's owner: their permits and their clubs', and the parcels they may use under them.
+ * feed's owner: their permits and their clubs', the parcels they may use under them, and the
+ * parcels they own with the permits granted there.
  */
 export async function loadCalendarFeed(db: Executor, { token, now = new Date() }: { token: string; now?: Date }): Promise<string | null> {
   if (!feedTokenPattern.test(token)) return null;
   const forager = await findFeedOwner(db, { tokenHash: hashFeedToken(token) });
   if (!forager) return null;
-  const [permits, usable] = await Promise.all([
+  const [permits, usable, grants, ownParcels] = await Promise.all([
     listPermitsForForager(db, { userId: forager.id, clubIds: forager.clubIds }),
     loadUsableParcelFacts(db, { forager, limit: 500 }),
+    listPermitsOnOwnersLand(db, { ownerId: forager.id }),
+    listOwnParcelsForCalendar(db, { ownerId: forager.id }),
   ]);
-  return renderCalendar(buildCalendarEvents({ permits, parcels: usable.parcels, now }), now);
+  return renderCalendar(buildCalendarEvents({ permits, parcels: usable.parcels, grants, ownParcels, now }), now);
 }

@@ -27,6 +27,7 @@ const plusDays = (isoDate: string, days: number) => {
 
 let walter: APIRequestContext;
 let permitId = '';
+let parcelId = '';
 const today = newYorkDate(new Date());
 const opensOn = plusDays(today, 20);
 
@@ -37,7 +38,7 @@ test.beforeAll(async () => {
   const ring = [[west, south], [west + size, south], [west + size, south + size], [west, south + size], [west, south]];
   const created = await walter.post('/api/parcels', { data: { name: parcelName, timeZone: 'America/New_York', nearingThresholdPercent: 80, openToRequests: false, description: '', boundary: { type: 'Polygon', coordinates: [ring] } } });
   expect(created.status(), await created.text()).toBe(201);
-  const parcelId = (await created.json()).parcel.id as string;
+  parcelId = (await created.json()).parcel.id as string;
   const listed = await walter.patch(`/api/parcels/${parcelId}`, { data: { status: 'listed' } });
   expect(listed.status(), await listed.text()).toBe(200);
   const { species } = (await (await walter.get('/api/species')).json()) as { species: { id: string; commonName: string }[] };
@@ -168,5 +169,48 @@ test('given no session, making or turning off a feed is refused with 401', async
     expect((await app.delete('/api/calendar-feed', { headers: { origin: baseURL } })).status()).toBe(401);
   } finally {
     await app.dispose();
+  }
+});
+
+test("given the landowner's own feed, made on Land, a calendar app reads the permit he granted and his parcel's season opening as whole local days, and nothing of land he does not own", async ({ browser }) => {
+  const page = await pageAs(browser, 'landowner@example.org');
+  page.on('dialog', (dialog) => void dialog.accept());
+  const app = await calendarApp();
+  try {
+    let path = '';
+    for (const width of [390, 1280]) {
+      await page.setViewportSize({ width, height: 900 });
+      await page.goto('/land');
+      await page.locator('[data-testid="calendar-feed"][data-hydrated="true"]').waitFor();
+      const panel = page.getByTestId('calendar-feed');
+      await expect(panel).toContainText('the permits you have granted');
+      await panel.getByRole('button', { name: /Make my calendar address|Make a new address/ }).click();
+      const address = panel.getByTestId('calendar-feed-url');
+      await expect(address).toHaveValue(new RegExp(`^${baseURL}/api/calendar/[A-Za-z0-9_-]{43}\\.ics$`));
+      const { scrollWidth, innerWidth } = await page.evaluate(() => ({ scrollWidth: document.documentElement.scrollWidth, innerWidth: window.innerWidth }));
+      expect(scrollWidth, `page width at ${width} px`).toBeLessThanOrEqual(innerWidth);
+      path = new URL(await address.inputValue()).pathname;
+    }
+    const answer = await app.get(path);
+    expect(answer.status()).toBe(200);
+    const { events } = parseFeed(await answer.text());
+
+    const permit = ((await (await walter.get(`/api/permits/${permitId}`)).json()) as { permit: { startsOn: string; endsOn: string } }).permit;
+    const granted = events.find((e) => e.uid === `granted-${permitId}@tallywood`);
+    expect(granted, 'the granted permit').toBeDefined();
+    expect(granted?.summary).toMatch(new RegExp(`^Permit on your land: .+, ${parcelName}$`));
+    expect(granted?.start.toString()).toBe(permit.startsOn);
+    expect(granted?.end?.toString()).toBe(plusDays(permit.endsOn, 1));
+
+    const opening = events.find((e) => e.uid.startsWith(`season-opens-${parcelId}-`));
+    expect(opening?.summary).toBe(`Season opens: Oyster mushroom on ${parcelName}`);
+    expect(opening?.start.toString()).toBe(opensOn);
+
+    // Scoped to his land: Farrand Sugarbush, Farrand Woodlots and Hosmer Back Forty are other owners' parcels in the
+    // demo (src/db/demo), with permits and seasons of their own.
+    expect(events.filter((e) => /Farrand Sugarbush|Farrand Woodlots|Hosmer Back Forty/.test(e.summary))).toEqual([]);
+  } finally {
+    await app.dispose();
+    await page.context().close();
   }
 });

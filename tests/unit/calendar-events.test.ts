@@ -1,6 +1,6 @@
 import ICAL from 'ical.js';
 import { afterEach, describe, expect, it } from 'vitest';
-import { buildCalendarEvents, type FeedParcel, type FeedPermit } from '../../src/lib/calendar-events';
+import { buildCalendarEvents, type FeedGrant, type FeedParcel, type FeedPermit } from '../../src/lib/calendar-events';
 import { renderCalendar } from '../../src/server/calendar-feed';
 
 /*
@@ -130,5 +130,31 @@ describe('buildCalendarEvents and renderCalendar', () => {
     const tuesday = build(new Date('2026-12-08T15:00:00Z'));
     expect(tuesday).toEqual(monday);
     expect(new Set(monday).size).toBe(monday.length);
+  });
+
+  it("given a landowner's grants, it shows each granted, active or expired permit on their land as a whole-day window naming the holder (a club by its name), and no request", () => {
+    const grant = (overrides: Partial<FeedGrant>): FeedGrant => ({ ...permit(), holderName: 'Ada Birch', ...overrides });
+    const grants = [
+      grant({ id: 'g-personal', startsOn: '2026-12-10', endsOn: '2027-01-09' }),
+      grant({ id: 'g-club', holderName: 'Rowan Steward', clubName: 'Ridge Club', state: 'approved', startsOn: '2027-01-01', endsOn: '2027-06-30' }),
+      grant({ id: 'g-asked', state: 'requested' }),
+    ];
+    const now = new Date('2026-12-03T15:00:00Z');
+    const { events } = parse(renderCalendar(buildCalendarEvents({ permits: [], parcels: [], grants, now }), now));
+    expect(events.map((e) => [e.uid, e.summary, e.start, e.end])).toEqual([
+      ['granted-g-personal@tallywood', 'Permit on your land: Ada Birch, Hemlock Hollow', '2026-12-10', '2027-01-10'],
+      ['granted-g-club@tallywood', 'Permit on your land: Ridge Club, Hemlock Hollow', '2027-01-01', '2027-07-01'],
+    ]);
+    expect(events[1]?.description).toContain('a club permit');
+  });
+
+  it("given a parcel the landowner owns and also holds a permit on, its season days and closures appear once", () => {
+    const own = parcel({ allowances: [chaga], closures: [{ startsOn: '2026-12-20', endsOn: '2026-12-24', reason: 'Logging' }] });
+    const now = new Date('2026-12-03T15:00:00Z');
+    const both = buildCalendarEvents({ permits: [], parcels: [own], ownParcels: [own], now }).map((e) => e.uid);
+    const ownedOnly = buildCalendarEvents({ permits: [], parcels: [], ownParcels: [own], now }).map((e) => e.uid);
+    expect(both).toEqual(ownedOnly);
+    // The closure, Chaga's closing on 2027-03-15 and its next opening on 2027-11-01 (a season of 11-01 … 03-15, read by hand).
+    expect(ownedOnly).toHaveLength(3);
   });
 });

@@ -87,10 +87,10 @@ describe('decide', () => {
     },
   );
 
-  it('given a forager or a steward, it lets them manage their own calendar feed; a landowner or admin alone may not, nor anyone signed out', () => {
+  it('given a forager, a steward or a landowner, it lets them manage their own calendar feed; an admin alone may not, nor anyone signed out', () => {
     expect(decide(forager, 'calendar-feed:manage-own')).toEqual({ allowed: true });
     expect(decide(steward, 'calendar-feed:manage-own')).toEqual({ allowed: true });
-    expect(decide(landowner, 'calendar-feed:manage-own')).toEqual({ allowed: false, reason: 'forbidden' });
+    expect(decide(landowner, 'calendar-feed:manage-own')).toEqual({ allowed: true });
     expect(decide(admin, 'calendar-feed:manage-own')).toEqual({ allowed: false, reason: 'forbidden' });
     expect(decide(null, 'calendar-feed:manage-own')).toEqual({ allowed: false, reason: 'signed-out' });
   });

@@ -3,11 +3,20 @@ import { sendJson } from '../api-client';
 
 type Feed = { url: string; webcal: string; createdAt: string };
 
+const forForager = 'Subscribe in your calendar app to see your permits, the days seasons open and close on the parcels you may use, and closures there.';
+const forLandowner = 'Subscribe in your calendar app to see, on your listed parcels, the permits you have granted, the days seasons open and close, and your closures.';
+
 /**
- * The person's private calendar feed on My permits: make it, show its address once (only a hash of
- * its token is kept, so it cannot be shown again), make a new one, or turn it off.
+ * The person's private calendar feed (on My permits, and on Land for a landowner): make it, show its
+ * address once (only a hash of its token is kept, so it cannot be shown again), make a new one, or
+ * turn it off. It is one feed per person wherever it is made: both places show the same one.
  */
-export default function CalendarFeed({ liveSince }: { /** When the live feed was made, in words; null with none. */ liveSince: string | null }) {
+export default function CalendarFeed({ liveSince, landowner = false }: {
+  /** When the live feed was made, in words; null with none. */
+  liveSince: string | null;
+  /** Worded for the land the person owns rather than the land they may use. */
+  landowner?: boolean;
+}) {
   const [feed, setFeed] = useState<Feed | null>(null);
   const [on, setOn] = useState(liveSince !== null);
   const [busy, setBusy] = useState(false);
@@ -46,8 +55,7 @@ export default function CalendarFeed({ liveSince }: { /** When the live feed was
   return (
     <div className="card space-y-3" data-testid="calendar-feed" data-hydrated={hydrated ? 'true' : undefined}>
       <p className="text-sm">
-        Subscribe in your calendar app to see your permits, the days seasons open and close on the parcels you may use, and closures there.
-        Anyone with the address can read it, so keep it to yourself.
+        {landowner ? forLandowner : forForager} Anyone with the address can read it, so keep it to yourself.
       </p>
       {feed ? (
         <div className="space-y-2">

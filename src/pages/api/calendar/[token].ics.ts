@@ -10,7 +10,7 @@ import { loadCalendarFeed } from '../../../server/calendar-feed';
 export const GET = endpoint(async ({ params }) => {
   const calendar = await loadCalendarFeed(db, { token: params.token ?? '' });
   if (calendar === null) {
-    return new Response('This calendar address is not in use: it was turned off or replaced by a new one. Make a new address on My permits in Tallywood.\n', {
+    return new Response('This calendar address is not in use: it was turned off or replaced by a new one. Make a new address in Tallywood (on My permits, or on Land for a landowner).\n', {
       status: 404,
       headers: { 'content-type': 'text/plain; charset=utf-8', 'cache-control': 'no-store' },
     });
