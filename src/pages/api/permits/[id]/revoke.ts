@@ -1,4 +1,5 @@
 import { db } from '../../../../db';
+import { lockPaidPayment } from '../../../../db/payments.queries';
 import { findPermitForOwner } from '../../../../db/permits.queries';
 import { revokePermit } from '../../../../db/permits.commands';
 import { notFound } from '../../../../lib/errors';
@@ -17,8 +18,15 @@ export const POST = endpoint(async ({ locals, params, request, url }) => {
   guard(actor, 'permit:grant', { ownerId: actor.id });
   const { reason } = await readJson(request, revokeSchema);
   const now = new Date();
-  const permit = await db.transaction((tx) => revokePermit(tx, { permitId, ownerId: actor.id, reason, now }));
   const beforeStart = Boolean(existing.feePaidAt) && existing.startsOn > localDate(now, existing.timeZone);
+  // The holder's e-mail is written with the revocation; the refund, which needs the provider, follows its commit.
+  const permit = await db.transaction(async (tx) => {
+    const revoked = await revokePermit(tx, { permitId, ownerId: actor.id, reason, now });
+    // A fee settled outside the provider's checkout (the demo's) has nothing to give back through it.
+    const paid = beforeStart ? await lockPaidPayment(tx, { permitId }) : null;
+    await noticeRevoked(tx, { permitId, origin: url.origin, reason, refundDue: Boolean(paid?.providerPaymentId) });
+    return revoked;
+  });
   // The revocation stands whatever the provider says; a refund that fails is reported, not hidden.
   const refund = beforeStart
     ? await refundPermitFee(db, { permitId, actorId: actor.id, reason, origin: url.origin, now }).catch((error) => {
@@ -27,6 +35,5 @@ export const POST = endpoint(async ({ locals, params, request, url }) => {
       })
     : null;
   const refunded = refund?.outcome === 'refunded';
-  await noticeRevoked({ permitId, origin: url.origin, reason, refunded });
   return json({ permit: { id: permit.id, state: permit.state }, refunded, refund: refund?.outcome ?? 'not-due' });
 });
