@@ -210,7 +210,8 @@ async function refundLatePayment({ paymentId, origin }: { paymentId: string; ori
 /** Hands a refund the provider refused to the `refund-payment` job; only if even that fails is it left to a person, in the log. */
 export async function retryRefundLater(data: { paymentId: string; reason: string; actorId: string | null; origin?: string }) {
   try {
-    await queueRefund(data);
+    // Null when a job for this payment is already waiting, running or just done (its id is the payment's).
+    if (!(await queueRefund(data))) log.warn({ paymentId: data.paymentId }, 'a refund job for this payment exists already; not queued again');
   } catch (error) {
     log.error({ err: error, paymentId: data.paymentId }, 'payment needs a refund by hand');
   }
