@@ -69,9 +69,19 @@ export async function lockPayment(tx: Tx, { paymentId }: { paymentId: string }):
   return row ?? null;
 }
 
+/** Marks a paid payment as one every automatic refund failed for, so a person refunds it by hand; true the first time. */
+export async function markRefundFailed(db: Executor, { paymentId, at }: { paymentId: string; at: Date }) {
+  const marked = await db
+    .update(payments)
+    .set({ refundFailedAt: at })
+    .where(and(eq(payments.id, paymentId), eq(payments.state, 'paid'), isNull(payments.refundFailedAt)))
+    .returning({ id: payments.id });
+  return marked.length > 0;
+}
+
 /** Marks a payment refunded and records who refunded it and why on the permit's audit trail. */
 export async function recordRefund(db: Executor, { payment, actorId, reason, refundedAt }: { payment: Payment; actorId: string | null; reason: string; refundedAt: Date }) {
-  await db.update(payments).set({ state: 'refunded', refundedAt }).where(eq(payments.id, payment.id));
+  await db.update(payments).set({ state: 'refunded', refundedAt, refundFailedAt: null }).where(eq(payments.id, payment.id));
   await db.insert(auditEvents).values({
     actorId, action: 'permit.fee-refunded', subjectType: 'permit', subjectId: payment.permitId,
     detail: { paymentId: payment.id, amountMinor: payment.amountMinor, currency: payment.currency, reason }, at: refundedAt,

@@ -37,6 +37,8 @@ const permitColumns = {
   currentTermsId: sql<string | null>`(select t.id from terms t where t.parcel_id = permits.parcel_id order by t.version desc limit 1)`,
   currentTermsVersion: sql<number | null>`(select t.version from terms t where t.parcel_id = permits.parcel_id order by t.version desc limit 1)`,
   acceptedTermsVersion: sql<number | null>`(select t.version from terms t where t.id = permits.accepted_terms_id)`,
+  /** Set when a fee still paid could not be given back after every automatic try: it needs a refund by hand. */
+  refundFailedAt: sql<string | null>`(select max(pay.refund_failed_at)::text from payments pay where pay.permit_id = permits.id and pay.state = 'paid')`,
 };
 
 function permitsWithHolders(db: Executor) {

@@ -1,11 +1,11 @@
+import type { Tx } from '../db/client';
 import { mailHtml, sendMail } from './mail';
-import { log } from './log';
 
 /**
- * The e-mail that tells a landowner how an admin answered their ask to be verified. A failed send is
- * logged and never undoes the decision it reports.
+ * The e-mail that tells a landowner how an admin answered their ask to be verified, written in `tx`,
+ * the decision's transaction: it exists exactly when the decision does.
  */
-export async function noticeLandownerDecision({ to, name, origin, verified, reason }: { to: string; name: string | null; origin: string; verified: boolean; reason?: string }) {
+export async function noticeLandownerDecision(tx: Tx, { to, name, origin, verified, reason }: { to: string; name: string | null; origin: string; verified: boolean; reason?: string }) {
   const heading = verified ? 'Your landowner account is verified' : 'Your landowner account was not verified';
   const paragraphs = verified
     ? [
@@ -18,15 +18,11 @@ export async function noticeLandownerDecision({ to, name, origin, verified, reas
         'You can still draft parcels. An admin can verify your account later, once the reason above is settled.',
       ];
   const action = { label: verified ? 'Open Land' : 'Open Tallywood', url: `${origin}${verified ? '/land' : '/'}` };
-  try {
-    await sendMail({
-      purpose: verified ? 'landowner-verified' : 'landowner-declined',
-      to,
-      subject: heading,
-      text: `${heading}\n\n${paragraphs.join('\n\n')}\n\n${action.label}: ${action.url}\n`,
-      html: mailHtml({ heading, paragraphs, action }),
-    });
-  } catch (error) {
-    log.error({ err: error }, 'could not send the landowner decision');
-  }
+  await sendMail({
+    purpose: verified ? 'landowner-verified' : 'landowner-declined',
+    to,
+    subject: heading,
+    text: `${heading}\n\n${paragraphs.join('\n\n')}\n\n${action.label}: ${action.url}\n`,
+    html: mailHtml({ heading, paragraphs, action }),
+  }, tx);
 }

@@ -16,10 +16,14 @@ export async function saveAllowanceRequest(locals: App.Locals, params: Record<st
   const { actor, parcelId } = await ownedParcel(locals, params);
   const allowance = await readJson(request, allowanceSchema);
   if (!(await findSpecies(db, { speciesId: allowance.speciesId }))) throw invalidInput('speciesId', 'That species is not in the catalogue.');
-  const before = await listPermitsBindingLimits(db, { parcelId, ownerId: actor.id });
-  const row = await saveAllowance(db, { parcelId, ownerId: actor.id, allowance, now: new Date(), target });
+  // The holders' e-mails are written with the allowance they tell of.
+  const row = await db.transaction(async (tx) => {
+    const before = await listPermitsBindingLimits(tx, { parcelId, ownerId: actor.id });
+    const saved = await saveAllowance(tx, { parcelId, ownerId: actor.id, allowance, now: new Date(), target });
+    if (saved) await noticeLimitsTightened(tx, { before, after: await listPermitsBindingLimits(tx, { parcelId, ownerId: actor.id }), origin });
+    return saved;
+  });
   if (!row) throw notFound('Parcel');
-  await noticeLimitsTightened({ before, after: await listPermitsBindingLimits(db, { parcelId, ownerId: actor.id }), origin });
   return row;
 }
 

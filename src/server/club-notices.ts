@@ -1,4 +1,4 @@
-import { db } from '../db';
+import type { Tx } from '../db/client';
 import type { SeasonReport } from '../db/reports.queries';
 import { sql } from 'drizzle-orm';
 import { mailHtml, sendMail } from './mail';
@@ -7,11 +7,10 @@ import { formatDate } from '../lib/format';
 import { seasonReportCsv, seasonReportFileName } from '../lib/season-report-csv';
 import { entriesWords, reportLayout, reportTallyLine, seasonHeading, untakenLine } from '../lib/season-report-words';
 import { formatQuantities } from '../lib/tally-words';
-import { log } from './log';
 
-/** An invitation to a club, with the way in: sign in with the invited address, then open Club. */
-export async function noticeClubInvitation({ membershipId, email, origin, newAccount }: { membershipId: string; email: string; origin: string; newAccount: boolean }) {
-  const [row] = await db.execute<{ club_name: string; inviter: string | null }>(sql`
+/** An invitation to a club, with the way in: sign in with the invited address, then open Club. Written in `tx`, the invitation's transaction. */
+export async function noticeClubInvitation(tx: Tx, { membershipId, email, origin, newAccount }: { membershipId: string; email: string; origin: string; newAccount: boolean }) {
+  const [row] = await tx.execute<{ club_name: string; inviter: string | null }>(sql`
     select c.name as club_name, coalesce(u.name, u.email) as inviter
     from club_memberships m join clubs c on c.id = m.club_id left join users u on u.id = m.invited_by where m.id = ${membershipId}::uuid`);
   if (!row) return;
@@ -21,11 +20,7 @@ export async function noticeClubInvitation({ membershipId, email, origin, newAcc
     newAccount ? `Sign in with this address (${email}) to accept or decline; no password is needed.` : 'Open Club to accept or decline.',
   ];
   const url = `${origin}/sign-in?next=${encodeURIComponent('/club')}`;
-  try {
-    await sendMail({ purpose: 'club-invitation', to: email, subject: heading, text: `${heading}\n\n${paragraphs.join('\n\n')}\n\nOpen Club: ${url}\n`, html: mailHtml({ heading, paragraphs, action: { label: 'Open Club', url } }) });
-  } catch (error) {
-    log.error({ err: error }, 'could not send the club invitation');
-  }
+  await sendMail({ purpose: 'club-invitation', to: email, subject: heading, text: `${heading}\n\n${paragraphs.join('\n\n')}\n\nOpen Club: ${url}\n`, html: mailHtml({ heading, paragraphs, action: { label: 'Open Club', url } }) }, tx);
 }
 
 const count = (n: number, one: string, many: string) => `${n} ${n === 1 ? one : many}`;

@@ -1,17 +1,19 @@
 import { randomUUID } from 'node:crypto';
-import { STRIPE_API_URL, STRIPE_SECRET_KEY, STRIPE_WEBHOOK_SECRET } from 'astro:env/server';
+import { MAIL_FROM, STRIPE_API_URL, STRIPE_SECRET_KEY, STRIPE_WEBHOOK_SECRET } from 'astro:env/server';
 import Stripe from 'stripe';
 import { db, type Executor, type Tx } from '../db';
 import {
-  findClubRole, findPaymentNotice, findPendingPayment, insertPayment, lockPaidPayment, lockPayment, lockPaymentBySession,
-  markPaymentCancelled, markPaymentPaid, recordPaymentEvent, recordRefund, type PaymentNotice,
+  findClubRole, findPendingPayment, insertPayment, lockPaidPayment, lockPayment, lockPaymentBySession,
+  markPaymentCancelled, markPaymentPaid, recordPaymentEvent, recordRefund,
 } from '../db/payments.queries';
 import { lockPermit, recordFeePaid, type LockedPermit } from '../db/permits.lifecycle';
 import type { Payment } from '../db/schema';
 import { AppError, conflict, forbidden, notFound } from '../lib/errors';
 import { formatDate, formatMoney } from '../lib/format';
-import { mailHtml, sendMail } from './mail';
+import { queueRefund, refundAtProvider, useRefunder } from './jobs/refund-payment';
+import { sendMail } from './mail';
 import { log } from './log';
+import { paymentMail, refundWords, type PaymentMailOptions, type PaymentWords } from './payment-mails';
 
 /** The provider's SDK, pointed at STRIPE_API_URL: the local fake by default, `https://api.stripe.com` for real money. */
 export const stripe = createStripeClient(STRIPE_API_URL, STRIPE_SECRET_KEY);
@@ -26,6 +28,11 @@ function createStripeClient(apiUrl: string, secretKey: string) {
   // The local fake and its published keys are allowed in local mode only: src/server/deployment.ts
   // refuses to start a server that would take them anywhere else.
   return new Stripe(secretKey, { host: api.hostname, port, protocol, maxNetworkRetries: 2, timeout: 20_000 });
+}
+
+/** The `refund-payment` job refunds through this client and mails from MAIL_FROM (src/server/startup.ts). */
+export function useAppRefunder() {
+  useRefunder({ stripe, mailFrom: MAIL_FROM });
 }
 
 /** Calls the provider; its failures become an error a person can act on. Nothing in our database has changed yet. */
@@ -122,8 +129,8 @@ export async function handleWebhook(rawBody: string, signature: string | null, n
         const settled = await settleCheckout(tx, event.data.object, now);
         // The receipt and the landowner's notice are written with the payment: they go exactly when it is recorded paid.
         if (settled?.kind === 'receipt') {
-          await mailReceipt(settled.paymentId, settled.origin, tx);
-          await mailFeePaidToLandowner(settled.paymentId, settled.origin, tx);
+          await mailReceipt(tx, settled.paymentId, settled.origin);
+          await mailFeePaidToLandowner(tx, settled.paymentId, settled.origin);
         }
         return settled;
       }
@@ -185,16 +192,28 @@ export function checkoutMismatch(
   return null;
 }
 
+/** A payment that came too late is refunded at once; when the provider refuses, the `refund-payment` job tries again. */
 async function refundLatePayment({ paymentId, origin }: { paymentId: string; origin?: string }, now: Date) {
   const reason = 'The payment arrived after the permit had stopped taking a fee (it was paid already, revoked or ended).';
   try {
-    const refunded = await db.transaction(async (tx) => {
+    await db.transaction(async (tx) => {
       const payment = await lockPayment(tx, { paymentId });
-      return payment?.state === 'paid' ? refundLocked(tx, payment, { actorId: null, reason, now }) : null;
+      const refunded = payment?.state === 'paid' ? await refundLocked(tx, payment, { actorId: null, reason, now }) : null;
+      if (refunded?.outcome === 'refunded') await mailRefund(tx, paymentId, reason, origin);
     });
-    if (refunded) await mailRefund(paymentId, reason, origin);
   } catch (error) {
-    log.error({ err: error, paymentId }, 'payment needs a refund by hand');
+    log.warn({ err: error, paymentId }, 'refund of a late payment failed; the refund job will try again');
+    await retryRefundLater({ paymentId, reason, actorId: null, origin });
+  }
+}
+
+/** Hands a refund the provider refused to the `refund-payment` job; only if even that fails is it left to a person, in the log. */
+export async function retryRefundLater(data: { paymentId: string; reason: string; actorId: string | null; origin?: string }) {
+  try {
+    // Null when a job for this payment is already waiting, running or just done (its id is the payment's).
+    if (!(await queueRefund(data))) log.warn({ paymentId: data.paymentId }, 'a refund job for this payment exists already; not queued again');
+  } catch (error) {
+    log.error({ err: error, paymentId: data.paymentId }, 'payment needs a refund by hand');
   }
 }
 
@@ -214,62 +233,32 @@ export async function refundPermitFee(
   executor: Executor,
   { permitId, actorId, reason, origin, now = new Date() }: { permitId: string; actorId: string | null; reason: string; origin?: string; now?: Date },
 ): Promise<RefundOutcome> {
-  const outcome = await executor.transaction(async (tx): Promise<RefundOutcome> => {
+  return executor.transaction(async (tx): Promise<RefundOutcome> => {
     const payment = await lockPaidPayment(tx, { permitId });
-    return payment ? refundLocked(tx, payment, { actorId, reason, now }) : { outcome: 'nothing-paid' };
+    const outcome: RefundOutcome = payment ? await refundLocked(tx, payment, { actorId, reason, now }) : { outcome: 'nothing-paid' };
+    if (outcome.outcome === 'refunded') await mailRefund(tx, outcome.paymentId, reason, origin);
+    return outcome;
   });
-  if (outcome.outcome === 'refunded') await mailRefund(outcome.paymentId, reason, origin);
-  return outcome;
 }
 
 async function refundLocked(tx: Tx, payment: Payment, { actorId, reason, now }: { actorId: string | null; reason: string; now: Date }): Promise<RefundOutcome> {
-  const intent = payment.providerPaymentId;
-  if (!intent) return { outcome: 'paid-outside-checkout', paymentId: payment.id };
-  try {
-    await stripe.refunds.create({ payment_intent: intent, metadata: { permitId: payment.permitId, paymentId: payment.id } }, { idempotencyKey: `refund-${payment.id}` });
-  } catch (error) {
-    // A retry after the provider forgot the idempotency key (24 h) finds the charge already refunded: that is the goal.
-    const alreadyRefunded = error instanceof Stripe.errors.StripeError && error.code === 'charge_already_refunded';
-    if (!alreadyRefunded) throwProviderError(error);
-  }
+  if (!payment.providerPaymentId) return { outcome: 'paid-outside-checkout', paymentId: payment.id };
+  await refundAtProvider(stripe, payment).catch(throwProviderError);
   await recordRefund(tx, { payment, actorId, reason, refundedAt: now });
   return { outcome: 'refunded', paymentId: payment.id, amountMinor: payment.amountMinor, currency: payment.currency };
 }
 
 /**
- * Puts one e-mail about a payment in the outbox, to its payer unless told whom. Given the payment's
- * transaction (`tx`), in it: the mail exists exactly when the payment's change does. Without one, a
- * mail that could not be recorded is logged and never undoes the payment.
+ * Puts one e-mail about a payment in the outbox, to its payer unless told whom, in `tx`, the transaction
+ * of the payment's change: the mail exists exactly when the change does.
  */
-async function mailPayer(
-  paymentId: string, purpose: string, compose: (n: PaymentNotice) => { subject: string; paragraphs: string[] }, origin?: string,
-  { to, page, tx }: { to?: (n: PaymentNotice) => string; page?: (n: PaymentNotice) => { label: string; path: string }; tx?: Tx } = {},
-) {
-  const notice = await findPaymentNotice(tx ?? db, { paymentId });
-  if (!notice) return;
-  const { subject, paragraphs } = compose(notice);
-  const link = page ? page(notice) : { label: 'Open My permits', path: '/my-permits' };
-  const action = origin ? { label: link.label, url: `${origin}${link.path}` } : undefined;
-  const mail = {
-    purpose,
-    to: to ? to(notice) : notice.payerEmail,
-    subject,
-    text: `${subject}\n\n${paragraphs.join('\n\n')}\n${action ? `\n${action.label}: ${action.url}\n` : ''}`,
-    html: mailHtml({ heading: subject, paragraphs, action }),
-  };
-  if (tx) {
-    await sendMail(mail, tx);
-    return;
-  }
-  try {
-    await sendMail(mail);
-  } catch (error) {
-    log.error({ err: error, paymentId, purpose }, 'could not send a payment mail');
-  }
+async function mailPayer(tx: Tx, paymentId: string, purpose: string, words: PaymentWords, origin?: string, options: Omit<PaymentMailOptions, 'dedupeKey'> = {}) {
+  const mail = await paymentMail(tx, paymentId, purpose, words, origin, options);
+  if (mail) await sendMail(mail, tx);
 }
 
-function mailReceipt(paymentId: string, origin?: string, tx?: Tx) {
-  return mailPayer(paymentId, 'receipt', (n) => ({
+function mailReceipt(tx: Tx, paymentId: string, origin?: string) {
+  return mailPayer(tx, paymentId, 'receipt', (n) => ({
     subject: `Receipt: ${formatMoney(n.amountMinor, n.currency)} for your permit at ${n.parcelName}`,
     paragraphs: [
       `We received ${formatMoney(n.amountMinor, n.currency)} for your access permit at ${n.parcelName}, ${formatDate(n.startsOn)} – ${formatDate(n.endsOn)}.`,
@@ -278,12 +267,12 @@ function mailReceipt(paymentId: string, origin?: string, tx?: Tx) {
         : "Your permit is active once the parcel's terms are accepted and its first day has come.",
       `Payment reference: ${n.paymentId}. Keep this e-mail as your receipt.`,
     ],
-  }), origin, { tx });
+  }), origin);
 }
 
 /** The landowner is told a fee came in: who paid, how much, for which permit. */
-function mailFeePaidToLandowner(paymentId: string, origin?: string, tx?: Tx) {
-  return mailPayer(paymentId, 'fee-paid', (n) => {
+function mailFeePaidToLandowner(tx: Tx, paymentId: string, origin?: string) {
+  return mailPayer(tx, paymentId, 'fee-paid', (n) => {
     const payer = n.payerName ?? n.payerEmail;
     const holder = n.clubName ? `${n.clubName} (paid by ${payer})` : payer;
     return {
@@ -294,16 +283,9 @@ function mailFeePaidToLandowner(paymentId: string, origin?: string, tx?: Tx) {
         `Payment reference: ${n.paymentId}.`,
       ],
     };
-  }, origin, { to: (n) => n.ownerEmail, page: (n) => ({ label: 'Open the parcel', path: `/land/${n.parcelId}` }), tx });
+  }, origin, { to: (n) => n.ownerEmail, page: (n) => ({ label: 'Open the parcel', path: `/land/${n.parcelId}` }) });
 }
 
-function mailRefund(paymentId: string, reason: string, origin?: string) {
-  return mailPayer(paymentId, 'refund', (n) => ({
-    subject: `Refund: ${formatMoney(n.amountMinor, n.currency)} for your permit at ${n.parcelName}`,
-    paragraphs: [
-      `The ${formatMoney(n.amountMinor, n.currency)} you paid for your access permit at ${n.parcelName} has been refunded to the card or account you paid with. It can take a few days to show.`,
-      `Reason: ${reason}`,
-      `Payment reference: ${n.paymentId}.`,
-    ],
-  }), origin);
+function mailRefund(tx: Tx, paymentId: string, reason: string, origin?: string) {
+  return mailPayer(tx, paymentId, 'refund', refundWords(reason), origin);
 }

@@ -6,6 +6,7 @@ import { deploymentProblems } from './deployment';
 import { startJobs, stopJobs } from './jobs/queue';
 import { log } from './log';
 import { useAppMailTransport } from './mail';
+import { useAppRefunder } from './payments';
 
 /*
  * Imported by the built server entry (astro.config.mjs, startupCheck) before it starts listening:
@@ -35,6 +36,7 @@ if (problems.length > 0) {
  */
 let retry: NodeJS.Timeout | undefined;
 useAppMailTransport();
+useAppRefunder();
 function startQueue() {
   startJobs({ db, databaseUrl: DATABASE_URL, log }).catch((error: unknown) => {
     log.error({ err: error }, 'jobs: the queue did not start; trying again in a minute');

@@ -86,6 +86,8 @@ export const payments = pgTable(
     createdAt: createdAt(),
     paidAt: at('paid_at'),
     refundedAt: at('refunded_at'),
+    /** When the last automatic try to give a paid fee back failed: it must be refunded by hand. Cleared by a refund. */
+    refundFailedAt: at('refund_failed_at'),
   },
   (t) => [index('payments_permit').on(t.permitId), check('payments_amount', sql`${t.amountMinor} >= 0`)],
 );

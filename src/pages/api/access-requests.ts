@@ -10,7 +10,11 @@ export const POST = endpoint(async ({ locals, request, url }) => {
   const actor = guard(locals.actor, 'permit:request');
   const input = await readJson(request, accessRequestSchema);
   await spend('mailToOthers', actor.id);
-  const { permitId } = await db.transaction((tx) => requestAccess(tx, { ...input, requesterId: actor.id, now: new Date() }));
-  await noticeAccessRequested({ permitId, origin: url.origin, note: input.note });
+  // The landowner's e-mail is written with the request: it exists exactly when the request does.
+  const { permitId } = await db.transaction(async (tx) => {
+    const asked = await requestAccess(tx, { ...input, requesterId: actor.id, now: new Date() });
+    await noticeAccessRequested(tx, { permitId: asked.permitId, origin: url.origin, note: input.note });
+    return asked;
+  });
   return json({ permit: { id: permitId, state: 'requested' } }, 201);
 });

@@ -7,7 +7,7 @@ import type { Forager } from '../../lib/field/types';
 import { AppError, invalidInput, notFound } from '../../lib/errors';
 import type { CorrectionInput } from '../../lib/field.schemas';
 import { addDecimals, compareDecimals, measureOf, toBase, units, type Measure } from '../../lib/units';
-import { keyInUse, replayOf, requestHashOf, storedQuantities, type RecordResult } from './harvest';
+import { keyInUse, replayOf, requestHashOf, storedQuantities, type AfterEntryWritten, type RecordResult } from './harvest';
 
 const measureWords = (m: Measure) => (m === 'mass' ? 'a weight' : m === 'volume' ? 'a volume' : `a count of ${m.replace('-', ' ')}`);
 
@@ -18,7 +18,10 @@ const measureWords = (m: Measure) => (m === 'mass' ? 'a weight' : m === 'volume'
  * adding 500 g to yesterday's entry that takes yesterday over its day limit is a breach of
  * yesterday, flagged and told like any other. It may not take away more than the chain still counts.
  */
-export async function correctEntry(db: Db, { forager, entryId, input, now = new Date() }: { forager: Forager; entryId: string; input: CorrectionInput; now?: Date }): Promise<RecordResult> {
+export async function correctEntry(
+  db: Db,
+  { forager, entryId, input, now = new Date(), afterWrite }: { forager: Forager; entryId: string; input: CorrectionInput; now?: Date; afterWrite?: AfterEntryWritten },
+): Promise<RecordResult> {
   return db.transaction(
     async (tx) => {
       const target = await findOwnEntry(tx, { entryId, foragerId: forager.id });
@@ -95,6 +98,7 @@ export async function correctEntry(db: Db, { forager, entryId, input, now = new 
       }
       const decision = check ? flagFor(check.before, check.projection.tallies, breach) : null;
       if (decision && check) await insertFlag(tx, { entry, decision, tallies: check.projection.tallies, now });
+      await afterWrite?.(tx, entry);
       return { entry, replayed: false, tallies: check?.projection.tallies ?? null };
     },
     { isolationLevel: 'read committed' },

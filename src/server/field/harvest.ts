@@ -1,7 +1,7 @@
 import { createHash } from 'node:crypto';
 import { findEntryByKey, findVisit, insertEntry, insertFlag, lockAllowance, photoDistance, type StoredEntry } from '../../db/field.commands';
 import { loadParcelFacts, loadUsage } from '../../db/field.queries';
-import type { Db, Executor } from '../../db/client';
+import type { Db, Executor, Tx } from '../../db/client';
 import { countingFactsFor, flagFor, usageWindows } from '../../lib/field/counting';
 import { decideCheckIn, formatDay, localDateAt, methodAllowed, projectEntry, talliesFor, type Projection } from '../../lib/field';
 import type { Forager, Tally } from '../../lib/field/types';
@@ -74,6 +74,12 @@ export async function previewHarvest(db: Executor, { forager, input, now = new D
 
 export type RecordResult = { entry: StoredEntry; replayed: boolean; tallies: Tally[] | null };
 
+/**
+ * Work that must stand or fall with a new entry (its notice mail), run in the entry's transaction after
+ * the entry and its flag are written; a replay runs none. When it throws, nothing of the entry is kept.
+ */
+export type AfterEntryWritten = (tx: Tx, entry: StoredEntry) => Promise<void>;
+
 /** The quantities of an entry as the ledger stores them, each with its exact base-unit value. */
 export function storedQuantities(quantities: HarvestInput['quantities'], bases: Partial<Record<Measure, string>>) {
   return quantities.map((q) => {
@@ -93,7 +99,10 @@ export function replayOf(entry: StoredEntry | null, requestHash: string): Record
  * Records one harvest entry. An entry that would take a limit over needs `acknowledgeOver` and is
  * then flagged as a breach; one that moves a tally into nearing or reached raises a flag too.
  */
-export async function recordHarvest(db: Db, { forager, input, now = new Date() }: { forager: Forager; input: HarvestInput; now?: Date }): Promise<RecordResult> {
+export async function recordHarvest(
+  db: Db,
+  { forager, input, now = new Date(), afterWrite }: { forager: Forager; input: HarvestInput; now?: Date; afterWrite?: AfterEntryWritten },
+): Promise<RecordResult> {
   return db.transaction(
     async (tx) => {
       const visit = await findVisit(tx, { visitId: input.visitId, foragerId: forager.id });
@@ -144,6 +153,7 @@ export async function recordHarvest(db: Db, { forager, input, now = new Date() }
       }
       const decision = flagFor(before, projection.tallies, breach);
       if (decision) await insertFlag(tx, { entry, decision, tallies: projection.tallies, now });
+      await afterWrite?.(tx, entry);
       return { entry, replayed: false, tallies: projection.tallies };
     },
     { isolationLevel: 'read committed' },

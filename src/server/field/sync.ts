@@ -8,7 +8,7 @@ import { clockRefusal, permitRecordedUnder, syncFlagFor, syncSeason, type SyncFl
 import type { Forager, ParcelFacts } from '../../lib/field/types';
 import { AppError } from '../../lib/errors';
 import type { FieldSyncInput, SyncItem, SyncItemRead } from '../../lib/field.schemas';
-import { keyInUse, replayOf, requestHashOf, storedQuantities } from './harvest';
+import { keyInUse, replayOf, requestHashOf, storedQuantities, type AfterEntryWritten } from './harvest';
 
 /**
  * Items a device recorded offline, sent when the connection returns (POST /api/field/sync). Each
@@ -37,14 +37,18 @@ export type SyncResult = {
   replayed: boolean;
 };
 
-type Ctx = { forager: Forager; packAsOf: Date; now: Date };
+type Ctx = { forager: Forager; packAsOf: Date; now: Date; afterWrite?: AfterEntryWritten };
 
 const refused = (item: SyncItem, message: string): SyncResult => ({ idempotencyKey: item.idempotencyKey, kind: item.kind, status: 'refused', message, replayed: false });
 
 /** A batch as the endpoint read it: each item parsed on its own (src/lib/field.schemas.ts, parseSyncItems). */
 export type SyncBatch = { packAsOf: Date; items: (SyncItem | SyncItemRead)[] };
 
-export async function syncFieldItems(db: Db, { forager, input, now = new Date() }: { forager: Forager; input: FieldSyncInput | SyncBatch; now?: Date }): Promise<SyncResult[]> {
+/** `afterWrite` runs in each new entry's transaction (its notice mail), as with recordHarvest. */
+export async function syncFieldItems(
+  db: Db,
+  { forager, input, now = new Date(), afterWrite }: { forager: Forager; input: FieldSyncInput | SyncBatch; now?: Date; afterWrite?: AfterEntryWritten },
+): Promise<SyncResult[]> {
   const results: SyncResult[] = [];
   // Visits of days that are over end at their day's end first, so an item finds them as they were.
   await closeStaleVisits(db, { now, foragerId: forager.id });
@@ -54,7 +58,7 @@ export async function syncFieldItems(db: Db, { forager, input, now = new Date() 
       continue;
     }
     const item = 'ok' in read ? read.item : read;
-    const ctx = { forager, packAsOf: input.packAsOf, now };
+    const ctx = { forager, packAsOf: input.packAsOf, now, afterWrite };
     try {
       results.push(item.kind === 'check-in' ? await syncCheckIn(db, item, ctx) : await syncEntry(db, item, ctx));
     } catch (error) {
@@ -145,7 +149,7 @@ async function entryReplay(db: Executor, forager: Forager, key: string, requestH
   return entryResult(prior.entry, await findFlagOfEntry(db, { entryId: prior.entry.id }), true);
 }
 
-async function syncEntry(db: Db, item: EntryItem, { forager, packAsOf, now }: Ctx): Promise<SyncResult> {
+async function syncEntry(db: Db, item: EntryItem, { forager, packAsOf, now, afterWrite }: Ctx): Promise<SyncResult> {
   const requestHash = requestHashOf('sync-entry', item);
   const first = await entryReplay(db, forager, item.idempotencyKey, requestHash);
   if (first) return first;
@@ -219,6 +223,7 @@ async function syncEntry(db: Db, item: EntryItem, { forager, packAsOf, now }: Ct
       }
       const flag = syncFlagFor(before, projection.tallies, { breach, acknowledged: item.acknowledgeOver, offPermit: notClear.length > 0 ? notClear : null });
       if (flag) await insertFlag(tx, { entry, decision: flag, tallies: projection.tallies, now });
+      await afterWrite?.(tx, entry);
       return entryResult(entry, flag, false);
     },
     { isolationLevel: 'read committed' },

@@ -3,8 +3,9 @@ import PgBoss from 'pg-boss';
 import type { Db, Executor } from '../../db/client';
 import type { Log } from '../log';
 import { dateChanges } from './date-changes';
+import { refundPaymentJob } from './refund-payment';
 import { reminders } from './reminders';
-import type { JobDefinition } from './registry';
+import type { JobAttempt, JobDefinition } from './registry';
 import { sendMailJob } from './send-mail';
 
 /**
@@ -18,7 +19,7 @@ import { sendMailJob } from './send-mail';
  * a job with a singleton key and a 60-second slot that a unique index holds to one per minute. A worker
  * then takes each job with SELECT … FOR UPDATE SKIP LOCKED, so exactly one process runs it.
  */
-export const appJobs: readonly JobDefinition[] = [dateChanges, reminders, sendMailJob as JobDefinition];
+export const appJobs: readonly JobDefinition[] = [dateChanges, reminders, sendMailJob as JobDefinition, refundPaymentJob as JobDefinition];
 
 export type AppJobName = (typeof appJobs)[number]['name'];
 
@@ -59,8 +60,10 @@ async function start({ db, databaseUrl, log, jobs = appJobs }: { db: Db; databas
     for (const job of jobs) {
       await boss.createQueue(job.name, { name: job.name, ...job.queue });
       let worker = '';
-      worker = await boss.work<object>(job.name, { batchSize: 1, pollingIntervalSeconds: job.pollingIntervalSeconds ?? pollingIntervalSeconds }, async (batch) => {
-        for (const item of batch) await runJob(job, { db, log, id: item.id, data: item.data });
+      const workOptions = { batchSize: 1, includeMetadata: true as const, pollingIntervalSeconds: job.pollingIntervalSeconds ?? pollingIntervalSeconds };
+      worker = await boss.work<object>(job.name, workOptions, async (batch) => {
+        // pg-boss counts retries as it hands a job out: the last try is the one at its retry limit.
+        for (const item of batch) await runJob(job, { db, log, id: item.id, data: item.data, attempt: { number: item.retryCount + 1, last: item.retryCount >= item.retryLimit } });
         // A worker that found a job asks again at once rather than after its interval, so a queue of them drains.
         if (batch.length > 0 && worker) boss.notifyWorker(worker);
       });
@@ -88,11 +91,11 @@ async function dropRetiredSchedules(boss: PgBoss, jobs: readonly JobDefinition[]
   for (const { name } of await boss.getSchedules()) if (!kept.has(name)) await boss.unschedule(name);
 }
 
-async function runJob(job: JobDefinition, { db, log, id, data }: { db: Db; log: Log; id: string; data: object }) {
-  const jobLog = log.child({ job: job.name, jobId: id });
+async function runJob(job: JobDefinition, { db, log, id, data, attempt }: { db: Db; log: Log; id: string; data: object; attempt: JobAttempt }) {
+  const jobLog = log.child({ job: job.name, jobId: id, attempt: attempt.number });
   const started = performance.now();
   try {
-    await job.run({ db, now: new Date(), data, log: jobLog });
+    await job.run({ db, now: new Date(), data, attempt, log: jobLog });
   } catch (error) {
     jobLog.error({ err: error }, 'job failed');
     throw error; // pg-boss marks it failed and retries it as its queue says

@@ -4,8 +4,11 @@ import type { Log } from '../log';
 /** How pg-boss retries a job of this queue that threw: up to `retryLimit` more times, `retryDelay` seconds apart, doubling each time when `retryBackoff`. */
 export type QueueOptions = { retryLimit: number; retryDelay: number; retryBackoff: boolean };
 
-/** What a job's `run` is given: the database, the instant it runs at (an argument, so tests pass their own), what it was sent, and a log line maker. */
-export type JobContext<Data> = { db: Db; now: Date; data: Data; log: Log };
+/** Which try of a job this is (1 for the first) and whether it is its queue's last: when it throws, pg-boss gives up. */
+export type JobAttempt = { number: number; last: boolean };
+
+/** What a job's `run` is given: the database, the instant it runs at (an argument, so tests pass their own), what it was sent, which try this is, and a log line maker. */
+export type JobContext<Data> = { db: Db; now: Date; data: Data; attempt: JobAttempt; log: Log };
 
 export type JobDefinition<Data extends object = object> = {
   /** The queue's name in pgboss.queue; kebab-case. */

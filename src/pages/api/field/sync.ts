@@ -1,7 +1,6 @@
 import { db } from '../../../db';
 import { fieldSyncEnvelopeSchema, parseSyncItems } from '../../../lib/field.schemas';
 import { AppError } from '../../../lib/errors';
-import { toldFlagKinds } from '../../../lib/flag-words';
 import { endpoint, guard, json, readJson } from '../../../server/http';
 import { noticeBreach } from '../../../server/field-notices';
 import { syncFieldItems } from '../../../server/field/sync';
@@ -19,10 +18,10 @@ export const POST = endpoint(async ({ locals, request, url }) => {
   if (foragerId !== actor.id) {
     throw new AppError(409, 'other-forager', 'These were recorded on this phone by another account, so nothing was saved. Sign in as the forager who recorded them to send them.', 'foragerId');
   }
-  const results = await syncFieldItems(db, { forager: { id: actor.id, clubIds: actor.memberOfClubIds }, input: { packAsOf, items: parseSyncItems(items) } });
-  // Told on a replay too: whatever did not go the first time (a lost answer, a failed send) goes now, and nothing twice.
-  for (const r of results) {
-    if (r.entryId && r.flag && toldFlagKinds.includes(r.flag.kind)) await noticeBreach({ entryId: r.entryId, origin: url.origin });
-  }
+  // Each breach, over-on-sync or off-permit mail is written in its entry's transaction: a replay finds both and writes neither again.
+  const results = await syncFieldItems(db, {
+    forager: { id: actor.id, clubIds: actor.memberOfClubIds }, input: { packAsOf, items: parseSyncItems(items) },
+    afterWrite: (tx, entry) => noticeBreach(tx, { entryId: entry.id, origin: url.origin }),
+  });
   return json({ results });
 });

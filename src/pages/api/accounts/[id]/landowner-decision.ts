@@ -14,13 +14,19 @@ export const POST = endpoint(async ({ locals, params, request, url }) => {
   const userId = idParam(params.id, 'An unverified landowner with that id');
   const decision = await readJson(request, landownerDecisionSchema);
   const now = new Date();
-  const person =
-    decision.outcome === 'verified'
-      ? await verifyLandowner(db, { userId, adminId: admin.id, now })
-      : await declineLandowner(db, { userId, adminId: admin.id, reason: decision.reason, now });
-  if (!person) throw notFound('An unverified landowner with that id');
-  await noticeLandownerDecision({
-    to: person.email, name: person.name, origin: url.origin, verified: decision.outcome === 'verified', reason: decision.outcome === 'declined' ? decision.reason : undefined,
+  // The landowner's e-mail is written with the decision.
+  const person = await db.transaction(async (tx) => {
+    const decided =
+      decision.outcome === 'verified'
+        ? await verifyLandowner(tx, { userId, adminId: admin.id, now })
+        : await declineLandowner(tx, { userId, adminId: admin.id, reason: decision.reason, now });
+    if (decided) {
+      await noticeLandownerDecision(tx, {
+        to: decided.email, name: decided.name, origin: url.origin, verified: decision.outcome === 'verified', reason: decision.outcome === 'declined' ? decision.reason : undefined,
+      });
+    }
+    return decided;
   });
+  if (!person) throw notFound('An unverified landowner with that id');
   return json({ outcome: decision.outcome, account: { id: person.id, email: person.email } });
 });

@@ -8,8 +8,12 @@ import { endpoint, guard, idParam, json, wantsRedirect } from '../../../../serve
 export const POST = endpoint(async ({ locals, params, request, redirect, url }) => {
   const admin = guard(locals.actor, 'landowner:verify');
   const userId = idParam(params.id, 'An unverified landowner with that id');
-  const verified = await verifyLandowner(db, { userId, adminId: admin.id, now: new Date() });
+  // The landowner's e-mail is written with the verification.
+  const verified = await db.transaction(async (tx) => {
+    const done = await verifyLandowner(tx, { userId, adminId: admin.id, now: new Date() });
+    if (done) await noticeLandownerDecision(tx, { to: done.email, name: done.name, origin: url.origin, verified: true });
+    return done;
+  });
   if (!verified) throw notFound('An unverified landowner with that id');
-  await noticeLandownerDecision({ to: verified.email, name: verified.name, origin: url.origin, verified: true });
   return wantsRedirect(request) ? redirect('/accounts?verified=1', 303) : json({ verified });
 });

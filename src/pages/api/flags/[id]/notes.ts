@@ -19,7 +19,10 @@ export const POST = endpoint(async ({ locals, params, request, url }) => {
   if (!allowed) throw notFound('Flag');
   const input = await readJson(request, flagNoteSchema);
   if (input.sendToMember) await spend('mailToOthers', actor.id);
-  const note = await addFlagNote(db, { flagId, authorId: actor.id, note: input.note, handled: input.handled, now: new Date() });
-  const sentTo = input.sendToMember ? await sendFlagNoteToMember({ flagId, authorId: actor.id, note: input.note, origin: url.origin }) : null;
+  // The forager's e-mail is written with the note.
+  const { note, sentTo } = await db.transaction(async (tx) => ({
+    note: await addFlagNote(tx, { flagId, authorId: actor.id, note: input.note, handled: input.handled, now: new Date() }),
+    sentTo: input.sendToMember ? await sendFlagNoteToMember(tx, { flagId, authorId: actor.id, note: input.note, origin: url.origin }) : null,
+  }));
   return json({ note, sentTo }, 201);
 });

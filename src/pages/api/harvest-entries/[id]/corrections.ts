@@ -13,8 +13,11 @@ export const POST = endpoint(async ({ locals, params, request, url }) => {
   const actor = guard(locals.actor, 'field:check-in');
   const entryId = idParam(params.id, 'The entry to correct');
   const input = await readJson(request, correctionSchema);
-  const result = await correctEntry(db, { forager: { id: actor.id, clubIds: actor.memberOfClubIds }, entryId, input });
-  // Sent again on a replay too: whatever did not go the first time (a lost answer, a failed send) goes now, and nothing twice.
-  if (result.entry.breach) await noticeBreach({ entryId: result.entry.id, origin: url.origin });
+  // The landowner's mail is written with the correction: a replay finds both and writes neither again.
+  const result = await correctEntry(db, {
+    forager: { id: actor.id, clubIds: actor.memberOfClubIds }, entryId, input, afterWrite: async (tx, entry) => {
+      if (entry.breach) await noticeBreach(tx, { entryId: entry.id, origin: url.origin });
+    },
+  });
   return json({ entry: result.entry, replayed: result.replayed, tallies: result.tallies }, result.replayed ? 200 : 201);
 });

@@ -22,7 +22,7 @@ export const POST = endpoint(async ({ locals, params, request, url }) => {
   const { actor, parcelId } = await ownedParcel(locals, params, 'permit:grant');
   const input = await readJson(request, grantPermitSchema);
   await spend('mailToOthers', actor.id);
-  // The invitee's account and the permit are made together, or neither is.
+  // The invitee's account, the permit and its e-mail are made together, or none is.
   const { permit, invited } = await db.transaction(async (tx) => {
     let invited = false;
     let holder: { userId: string } | { clubId: string };
@@ -38,8 +38,9 @@ export const POST = endpoint(async ({ locals, params, request, url }) => {
     } else {
       holder = { clubId: input.holder.clubId };
     }
-    return { permit: await grantPermit(tx, { parcelId, ownerId: actor.id, holder, input, now: new Date() }), invited };
+    const granted = await grantPermit(tx, { parcelId, ownerId: actor.id, holder, input, now: new Date() });
+    await noticeGranted(tx, { permitId: granted.id, origin: url.origin, invited });
+    return { permit: granted, invited };
   });
-  await noticeGranted({ permitId: permit.id, origin: url.origin, invited });
   return json({ permit: { id: permit.id, state: permit.state }, invited }, 201);
 });

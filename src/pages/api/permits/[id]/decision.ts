@@ -17,7 +17,7 @@ export const POST = endpoint(async ({ locals, params, request, url }) => {
   // The requester's e-mail is written in the decision's transaction: it goes exactly when the decision stands.
   const permit = await db.transaction(async (tx) => {
     const decided = await decideRequest(tx, { permitId, ownerId: actor.id, ...input, now: new Date() });
-    await noticeDecision({ permitId, origin: url.origin, approved: input.decision === 'approve', message: input.message, tx });
+    await noticeDecision(tx, { permitId, origin: url.origin, approved: input.decision === 'approve', message: input.message });
     return decided;
   });
   return json({ permit: { id: permit.id, state: permit.state } });

@@ -18,8 +18,11 @@ export const POST = endpoint(async ({ locals, params, request, url }) => {
   guard(actor, 'permit:grant', { ownerId: actor.id });
   const limit = await readJson(request, permitLimitSchema);
   const scope = { parcelId: permit.parcelId, ownerId: actor.id, permitId };
-  const before = await listPermitsBindingLimits(db, scope);
-  await db.transaction((tx) => tightenPermit(tx, { permitId, ownerId: actor.id, limit }));
-  await noticeLimitsTightened({ before, after: await listPermitsBindingLimits(db, scope), origin: url.origin });
+  // The holders' e-mails are written with the change they tell of.
+  await db.transaction(async (tx) => {
+    const before = await listPermitsBindingLimits(tx, scope);
+    await tightenPermit(tx, { permitId, ownerId: actor.id, limit });
+    await noticeLimitsTightened(tx, { before, after: await listPermitsBindingLimits(tx, scope), origin: url.origin });
+  });
   return json({ limit }, 201);
 });

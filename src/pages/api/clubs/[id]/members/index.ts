@@ -12,7 +12,11 @@ export const POST = endpoint(async ({ locals, params, request, url }) => {
   guard(actor, 'club:manage', { clubId });
   const input = await readJson(request, inviteMemberSchema);
   await spend('mailToOthers', actor.id);
-  const invited = await db.transaction((tx) => inviteMember(tx, { clubId, email: input.email, role: input.role, invitedBy: actor.id, now: new Date() }));
-  await noticeClubInvitation({ membershipId: invited.membershipId, email: invited.email, origin: url.origin, newAccount: invited.newAccount });
+  // The invitation and its e-mail are written together, or neither is.
+  const invited = await db.transaction(async (tx) => {
+    const made = await inviteMember(tx, { clubId, email: input.email, role: input.role, invitedBy: actor.id, now: new Date() });
+    await noticeClubInvitation(tx, { membershipId: made.membershipId, email: made.email, origin: url.origin, newAccount: made.newAccount });
+    return made;
+  });
   return json({ membershipId: invited.membershipId, email: invited.email, state: 'invited' }, 201);
 });

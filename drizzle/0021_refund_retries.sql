@@ -1,0 +1,1 @@
+ALTER TABLE "payments" ADD COLUMN "refund_failed_at" timestamp with time zone;
