@@ -136,7 +136,7 @@ describe('the refund-payment job', () => {
     expect(await mailsAbout(payment.id)).toEqual([expect.objectContaining({ to: 'payer@refunds.test', purpose: 'refund', subject: 'Refund: $15.00 for your permit at Refund Hollow' })]);
   }, 60_000);
 
-  it('given a refund the provider made whose answer was lost, the next try asks with the same key and records it without refunding twice', async () => {
+  it('given a refund the provider made whose answer was lost, the next try, under a key of its own, is refused as already refunded and records the refund without refunding twice', async () => {
     const { payment, intent } = await paidPermit(900);
     // The provider refunded under the payment's key, then the connection dropped before our commit.
     await stripe.refunds.create({ payment_intent: intent, metadata: { permitId: payment.permitId, paymentId: payment.id } }, { idempotencyKey: `refund-${payment.id}` });

@@ -5,13 +5,15 @@ import type { Payment } from '../../db/schema';
 import type { Log } from '../log';
 import { queueMail } from '../outbox';
 import { paymentMail, refundFailedWords, refundWords } from '../payment-mails';
-import { defineJob } from './registry';
+import { defineJob, type JobAttempt } from './registry';
 
 /**
  * A paid fee that is due back and that the provider would not refund when asked (src/server/payments.ts)
- * is refunded by this job, tried again with backoff. Every try asks with the payment's own idempotency
- * key, so a refund the provider made but whose answer was lost is answered again, not made twice; a
- * charge already refunded in full is refused by the provider, which counts as done. The payment row is
+ * is refunded by this job, tried again with backoff. Each try asks under an idempotency key of its own
+ * (`refund-<payment>-try-<n>`): a provider keeps the answer it gave to a key, errors included, for a day,
+ * so a key shared by every try would replay the first refusal. A refund the provider made but whose
+ * answer was lost is not made twice: the next try is refused as a charge already refunded in full,
+ * which counts as done. The payment row is
  * locked while the provider is asked, so two runs for one payment refund it once. When the last try
  * fails, the payment is marked `refund_failed_at` and its landowner mailed, in one transaction, to
  * refund it by hand.
@@ -32,13 +34,17 @@ export function useRefunder(next: Refunder) {
   refunder = next;
 }
 
-/** Asks the provider to give back a payment in full, under the key every try for that payment shares. */
-export async function refundAtProvider(stripe: Stripe, payment: Pick<Payment, 'id' | 'permitId' | 'providerPaymentId'>) {
+/**
+ * Asks the provider to give back a payment in full: inline under `refund-<payment>`, from the job under
+ * that and the try's number, so a retry is a new request rather than a replay of the refusal.
+ */
+export async function refundAtProvider(stripe: Stripe, payment: Pick<Payment, 'id' | 'permitId' | 'providerPaymentId'>, jobTry?: number) {
   if (!payment.providerPaymentId) throw new Error(`payment ${payment.id} was not made through the provider`);
+  const idempotencyKey = jobTry === undefined ? `refund-${payment.id}` : `refund-${payment.id}-try-${jobTry}`;
   try {
-    await stripe.refunds.create({ payment_intent: payment.providerPaymentId, metadata: { permitId: payment.permitId, paymentId: payment.id } }, { idempotencyKey: `refund-${payment.id}` });
+    await stripe.refunds.create({ payment_intent: payment.providerPaymentId, metadata: { permitId: payment.permitId, paymentId: payment.id } }, { idempotencyKey });
   } catch (error) {
-    // A retry after the provider forgot the idempotency key (24 h) finds the charge already refunded: that is the goal.
+    // A refund made under another key (an earlier try whose answer was lost): the charge is back with its payer, the goal.
     const alreadyRefunded = error instanceof Stripe.errors.StripeError && error.code === 'charge_already_refunded';
     if (!alreadyRefunded) throw error;
   }
@@ -56,16 +62,16 @@ export type RefundTry = 'refunded' | 'nothing-due' | 'retrying' | 'failed';
  * One try. A payment no longer 'paid' (refunded already) or settled outside the provider is left alone.
  * A refusal is thrown (after the mark and mail, on the `last` try) so pg-boss retries or fails the job.
  */
-export async function tryRefund(db: Db, { data, now, last, refunder: { stripe, mailFrom }, log }: { data: RefundJobData; now: Date; last: boolean; refunder: Refunder; log: Log }): Promise<RefundTry> {
+export async function tryRefund(db: Db, { data, now, attempt, refunder: { stripe, mailFrom }, log }: { data: RefundJobData; now: Date; attempt: JobAttempt; refunder: Refunder; log: Log }): Promise<RefundTry> {
   let failure: unknown = null;
   const outcome = await db.transaction(async (tx): Promise<RefundTry> => {
     const payment = await lockPayment(tx, { paymentId: data.paymentId });
     if (!payment || payment.state !== 'paid' || !payment.providerPaymentId) return 'nothing-due';
     try {
-      await refundAtProvider(stripe, payment);
+      await refundAtProvider(stripe, payment, attempt.number);
     } catch (error) {
       failure = error;
-      if (!last) return 'retrying';
+      if (!attempt.last) return 'retrying';
       // Marked once; the mail's dedupe key holds it to one should the job be run again.
       if (await markRefundFailed(tx, { paymentId: payment.id, at: now })) {
         const mail = await paymentMail(tx, payment.id, 'refund-failed', refundFailedWords, data.origin, {
@@ -90,6 +96,6 @@ export const refundPaymentJob = defineJob<RefundJobData>({
   queue: refundPaymentQueue,
   async run({ db, now, data, attempt, log }) {
     if (!refunder) throw new Error('no payment provider is set (useRefunder)');
-    await tryRefund(db, { data, now, last: attempt.last, refunder, log });
+    await tryRefund(db, { data, now, attempt, refunder, log });
   },
 });
