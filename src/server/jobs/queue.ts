@@ -4,7 +4,7 @@ import type { Db, Executor } from '../../db/client';
 import type { Log } from '../log';
 import { dateChanges } from './date-changes';
 import { reminders } from './reminders';
-import type { JobDefinition } from './registry';
+import type { JobDefinition, QueueOptions } from './registry';
 import { sendMailJob } from './send-mail';
 
 /**
@@ -34,7 +34,7 @@ let starting: Promise<void> | null = null;
  * itself), creates each job's queue, keeps each cron, and works them. A job with a cron is also sent
  * once now (at most once a minute across processes), so a server that was down at midnight catches up.
  */
-export function startJobs(options: { db: Db; databaseUrl: string; log: Log; jobs?: readonly JobDefinition[] }): Promise<void> {
+export function startJobs(options: StartOptions): Promise<void> {
   starting ??= start(options).catch((error: unknown) => {
     starting = null;
     throw error;
@@ -42,7 +42,16 @@ export function startJobs(options: { db: Db; databaseUrl: string; log: Log; jobs
   return starting;
 }
 
-async function start({ db, databaseUrl, log, jobs = appJobs }: { db: Db; databaseUrl: string; log: Log; jobs?: readonly JobDefinition[] }) {
+type StartOptions = {
+  db: Db;
+  databaseUrl: string;
+  log: Log;
+  jobs?: readonly JobDefinition[];
+  /** Retry settings that replace a job's own, by job name (the server's MAIL_RETRY_DELAY_SECONDS for `send-mail`). */
+  queueSettings?: Readonly<Record<string, Partial<QueueOptions>>>;
+};
+
+async function start({ db, databaseUrl, log, jobs = appJobs, queueSettings = {} }: StartOptions) {
   const boss = new PgBoss({
     connectionString: databaseUrl,
     schema,
@@ -57,7 +66,10 @@ async function start({ db, databaseUrl, log, jobs = appJobs }: { db: Db; databas
   try {
     await boss.start();
     for (const job of jobs) {
-      await boss.createQueue(job.name, { name: job.name, ...job.queue });
+      const queue = { ...job.queue, ...queueSettings[job.name] };
+      await boss.createQueue(job.name, { name: job.name, ...queue });
+      // A queue made earlier keeps the settings it was made with until told; jobs sent from now on take these.
+      await boss.updateQueue(job.name, { name: job.name, ...queue });
       let worker = '';
       worker = await boss.work<object>(job.name, { batchSize: 1, pollingIntervalSeconds: job.pollingIntervalSeconds ?? pollingIntervalSeconds }, async (batch) => {
         for (const item of batch) await runJob(job, { db, log, id: item.id, data: item.data });
