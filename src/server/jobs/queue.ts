@@ -64,12 +64,21 @@ async function start({ db, databaseUrl, log, jobs = appJobs, queueSettings = {} 
   boss.on('error', (error) => log.error({ err: error }, 'jobs: the queue reported an error'));
   const workers = new Map<string, string>();
   try {
-    await boss.start();
+    // Processes starting at once on a new database would make the same queues at once, and pg-boss's
+    // create_queue then deadlocks (each inserts into pgboss.queue, then adds a foreign key to it, which
+    // waits for the other's insert). So they take turns: pg-boss's start (which makes its own cron
+    // queue) and the queues, under a lock held by a transaction of the app's pool meanwhile.
+    await db.transaction(async (tx) => {
+      await tx.execute(sql`select pg_advisory_xact_lock(hashtext('tallywood:start-job-queue'))`);
+      await boss.start();
+      for (const job of jobs) {
+        const queue = { name: job.name, ...job.queue, ...queueSettings[job.name] };
+        await boss.createQueue(job.name, queue);
+        // A queue made earlier keeps the settings it was made with until told; jobs sent from now on take these.
+        await boss.updateQueue(job.name, queue);
+      }
+    });
     for (const job of jobs) {
-      const queue = { ...job.queue, ...queueSettings[job.name] };
-      await boss.createQueue(job.name, { name: job.name, ...queue });
-      // A queue made earlier keeps the settings it was made with until told; jobs sent from now on take these.
-      await boss.updateQueue(job.name, { name: job.name, ...queue });
       let worker = '';
       worker = await boss.work<object>(job.name, { batchSize: 1, pollingIntervalSeconds: job.pollingIntervalSeconds ?? pollingIntervalSeconds }, async (batch) => {
         for (const item of batch) await runJob(job, { db, log, id: item.id, data: item.data });
