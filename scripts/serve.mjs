@@ -72,7 +72,8 @@ async function serveApp({ announce }) {
 
   // On SIGINT or SIGTERM (or, in a worker, the primary's word): stop taking requests and
   // jobs, let a job being run finish (src/server/startup.ts leaves the function that stops the queue),
-  // then exit. A second signal exits at once.
+  // then exit. The same signal a second time exits at once: a terminal's Ctrl-C reaches every process
+  // of the group as SIGINT while `npm start` passes on SIGTERM, and that is one request to stop.
   let stopping = false;
   async function stop() {
     if (stopping) return;
@@ -87,11 +88,11 @@ async function serveApp({ announce }) {
     }
     process.exit(0);
   }
-  let signals = 0;
+  const received = new Set();
   for (const signal of ['SIGINT', 'SIGTERM']) {
     process.on(signal, () => {
-      signals += 1;
-      if (signals > 1) process.exit(1);
+      if (received.has(signal)) process.exit(1);
+      received.add(signal);
       void stop();
     });
   }
@@ -107,7 +108,7 @@ const stopMessage = 'tallywood:stop';
 /**
  * The primary: forks `count` workers on one port, says it serves once all listen, replaces a worker
  * that dies (after a pause that doubles while they keep dying, up to 30 s), and on SIGINT or SIGTERM
- * asks each to stop and exits when all have. A worker that exits before it first listens (the
+ * asks each to stop and exits when all have (the same signal again ends them all at once). A worker that exits before it first listens (the
  * deployment check refused the settings, say) stops the whole server with its code: a new one would
  * only fail the same way.
  */
@@ -147,7 +148,7 @@ function superviseWorkers(count) {
     failures = servedSince !== undefined && Date.now() - servedSince >= 60_000 ? 1 : failures + 1;
     const pauseMs = Math.min(30_000, 500 * 2 ** (failures - 1));
     console.error(`a Tallywood process (pid ${worker.process.pid}) exited (${signal ?? `code ${code}`}); starting another in ${pauseMs / 1000} s.`);
-    setTimeout(() => !stopping && fork(), pauseMs).unref();
+    setTimeout(() => !stopping && fork(), pauseMs);
   });
 
   /** Asks every worker to stop (one still starting gets SIGTERM), and exits with `code` when all have. */
@@ -162,14 +163,16 @@ function superviseWorkers(count) {
     }
   }
 
+  const received = new Set();
   for (const signal of ['SIGINT', 'SIGTERM']) {
     process.on(signal, () => {
-      if (stopping) {
-        // A second signal: every worker ends at once, and so does this.
+      if (received.has(signal)) {
+        // The same signal again: every worker ends at once, and so does this.
         for (const worker of workers()) worker.process.kill('SIGKILL');
         process.exit(1);
       }
-      stopAll(0);
+      received.add(signal);
+      if (!stopping) stopAll(0);
     });
   }
   for (let n = 0; n < count; n += 1) fork();
