@@ -126,6 +126,11 @@ export default defineConfig({
       LOG_LEVEL: envField.enum({ context: 'server', access: 'secret', values: ['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent'], default: 'info' }),
       UPLOADS_DIR: envField.string({ context: 'server', access: 'public', default: '.local/uploads' }),
       MAIL_FROM: envField.string({ context: 'server', access: 'public', default: 'Tallywood <no-reply@tallywood.example>' }),
+      /**
+       * Seconds before a mail that could not be sent is tried again, doubling with each try (8 retries).
+       * The default, 30, spreads the tries over about two hours; the process tests set a few seconds.
+       */
+      MAIL_RETRY_DELAY_SECONDS: envField.number({ context: 'server', access: 'secret', default: 30, int: true, min: 1, max: 3600 }),
       /** Sign-in e-mails one address may be sent in an hour. */
       SIGN_IN_LIMIT_PER_HOUR: envField.number({ context: 'server', access: 'secret', default: 5 }),
       /** Sign-in e-mails one client address may ask for in an hour (a household or office shares one). */

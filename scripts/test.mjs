@@ -69,6 +69,8 @@ const paymentsStore = join(localDir, 'payments-test');
 const common = {
   ...process.env,
   AUTH_SECRET: 'test-secret-not-for-production',
+  /** One app process per test server (scripts/serve.mjs); tests/e2e/processes.spec.ts runs several on one database. */
+  TALLYWOOD_PROCESSES: '1',
   /** Signs permit cards; made once and kept in .local/, apart from the one `npm start` keeps. */
   PERMIT_SIGNING_KEY: localSigningKey('permit-signing-key-test.pem'),
   /** This machine only: the local mail catcher, its mailbox and the payments fake (src/server/deployment.ts). */

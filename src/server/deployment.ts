@@ -8,6 +8,9 @@ import { signingKeyProblem } from './signing-key';
  * fake with the test keys that are published in this repository. Anywhere else — a server other
  * people reach — every one of those would let a stranger in or fake a payment, so the server
  * refuses to start until the real settings are given.
+ *
+ * TALLYWOOD_PROCESSES is checked before this, by scripts/serve.mjs (scripts/lib/processes.mjs): it
+ * decides how many processes to start, and this check runs in each of them.
  */
 export type DeploymentSettings = {
   localMode: boolean;

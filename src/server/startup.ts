@@ -1,5 +1,5 @@
 import {
-  AUTH_SECRET, DATABASE_URL, PERMIT_SIGNING_KEY, PUBLIC_HOSTNAME, SMTP_URL, STRIPE_API_URL, STRIPE_SECRET_KEY, STRIPE_WEBHOOK_SECRET, TALLYWOOD_LOCAL_MODE, TRUSTED_PROXIES,
+  AUTH_SECRET, DATABASE_URL, MAIL_RETRY_DELAY_SECONDS, PERMIT_SIGNING_KEY, PUBLIC_HOSTNAME, SMTP_URL, STRIPE_API_URL, STRIPE_SECRET_KEY, STRIPE_WEBHOOK_SECRET, TALLYWOOD_LOCAL_MODE, TRUSTED_PROXIES,
 } from 'astro:env/server';
 import { db } from '../db';
 import { deploymentProblems } from './deployment';
@@ -38,7 +38,7 @@ let retry: NodeJS.Timeout | undefined;
 useAppMailTransport();
 useAppRefunder();
 function startQueue() {
-  startJobs({ db, databaseUrl: DATABASE_URL, log }).catch((error: unknown) => {
+  startJobs({ db, databaseUrl: DATABASE_URL, log, queueSettings: { 'send-mail': { retryDelay: MAIL_RETRY_DELAY_SECONDS } } }).catch((error: unknown) => {
     log.error({ err: error }, 'jobs: the queue did not start; trying again in a minute');
     retry = setTimeout(startQueue, 60_000).unref();
   });

@@ -1,4 +1,4 @@
-import { spawn, type ChildProcess } from 'node:child_process';
+import { spawn, spawnSync, type ChildProcess } from 'node:child_process';
 import { generateKeyPairSync, randomBytes, randomUUID } from 'node:crypto';
 import { readFileSync } from 'node:fs';
 import { request as httpRequest } from 'node:http';
@@ -221,6 +221,31 @@ test('given the server started, health reports the job queue and the outbox in n
   }
   expect(await server.exited).toBe(0);
   expect(server.output()).toContain('jobs: the queue stopped');
+});
+
+test('given TALLYWOOD_PROCESSES=2, two processes serve one port, one that dies is replaced, and SIGTERM stops the queue of each before the server exits with 0', async () => {
+  const server = await serve({ TALLYWOOD_PROCESSES: '2' });
+  const started = () => server.output().split('jobs: the queue started').length - 1;
+  try {
+    expect(server.output()).toContain('with 2 processes');
+    await expect.poll(started, { timeout: 20_000 }).toBe(2);
+    const workers = spawnSync('pgrep', ['-P', String(server.child.pid)], { encoding: 'utf8' }).stdout.trim().split('\n').map(Number);
+    expect(workers).toHaveLength(2);
+    process.kill(workers[0]!, 'SIGKILL');
+    await expect.poll(() => server.output(), { timeout: 10_000 }).toContain(`(pid ${workers[0]}) exited (SIGKILL); starting another`);
+    await expect.poll(started, { timeout: 20_000 }).toBe(3);
+    for (let n = 0; n < 4; n += 1) expect((await raw(`${server.url}/api/health`)).status).toBe(200);
+  } finally {
+    await server.stop();
+  }
+  expect(await server.exited).toBe(0);
+  expect(server.output().split('jobs: the queue stopped').length - 1).toBe(2);
+});
+
+test('given TALLYWOOD_PROCESSES that is not a whole number of processes, it refuses to start and says so', async () => {
+  const server = await serve({ TALLYWOOD_PROCESSES: 'all' }, { waitForReady: false });
+  expect(await server.exited).toBe(1);
+  expect(server.output()).toContain('TALLYWOOD_PROCESSES must be a whole number');
 });
 
 test('given a database that does not answer, health says so in one word and keeps the error for the log', async () => {

@@ -105,3 +105,16 @@ describe('attachments', () => {
     expect(Buffer.from(report?.attachments[0]?.contentBase64 ?? '', 'base64').toString('utf8')).toBe(csv);
   });
 });
+
+describe('one message per Message-ID', () => {
+  it('given one message delivered twice under its Message-ID, it keeps it once and counts both deliveries; another Message-ID is another message', async () => {
+    const transport = nodemailer.createTransport({ host: '127.0.0.1', port: smtpPort, secure: false, ignoreTLS: true });
+    const mail = { from: 'app@tallywood.example', to: 'twice@example.org', subject: 'Sent again after a crash', text: 'Same mail.' };
+    await transport.sendMail({ ...mail, messageId: '<row-1@tallywood.example>' });
+    await transport.sendMail({ ...mail, messageId: '<row-1@tallywood.example>' });
+    await transport.sendMail({ ...mail, messageId: '<row-2@tallywood.example>' });
+    const shown = JSON.parse((await raw('GET', { ...here(), 'x-local-token': token })).body) as { messageId: string; deliveries: number; to: string[] }[];
+    const mine = shown.filter((m) => m.to.includes('twice@example.org'));
+    expect(mine.map((m) => [m.messageId, m.deliveries]).sort()).toEqual([['<row-1@tallywood.example>', 2], ['<row-2@tallywood.example>', 1]]);
+  });
+});

@@ -5,7 +5,7 @@ import type { Log } from '../log';
 import { dateChanges } from './date-changes';
 import { refundPaymentJob } from './refund-payment';
 import { reminders } from './reminders';
-import type { JobAttempt, JobDefinition } from './registry';
+import type { JobAttempt, JobDefinition, QueueOptions } from './registry';
 import { sendMailJob } from './send-mail';
 
 /**
@@ -35,7 +35,7 @@ let starting: Promise<void> | null = null;
  * itself), creates each job's queue, keeps each cron, and works them. A job with a cron is also sent
  * once now (at most once a minute across processes), so a server that was down at midnight catches up.
  */
-export function startJobs(options: { db: Db; databaseUrl: string; log: Log; jobs?: readonly JobDefinition[] }): Promise<void> {
+export function startJobs(options: StartOptions): Promise<void> {
   starting ??= start(options).catch((error: unknown) => {
     starting = null;
     throw error;
@@ -43,7 +43,16 @@ export function startJobs(options: { db: Db; databaseUrl: string; log: Log; jobs
   return starting;
 }
 
-async function start({ db, databaseUrl, log, jobs = appJobs }: { db: Db; databaseUrl: string; log: Log; jobs?: readonly JobDefinition[] }) {
+type StartOptions = {
+  db: Db;
+  databaseUrl: string;
+  log: Log;
+  jobs?: readonly JobDefinition[];
+  /** Retry settings that replace a job's own, by job name (the server's MAIL_RETRY_DELAY_SECONDS for `send-mail`). */
+  queueSettings?: Readonly<Record<string, Partial<QueueOptions>>>;
+};
+
+async function start({ db, databaseUrl, log, jobs = appJobs, queueSettings = {} }: StartOptions) {
   const boss = new PgBoss({
     connectionString: databaseUrl,
     schema,
@@ -56,9 +65,21 @@ async function start({ db, databaseUrl, log, jobs = appJobs }: { db: Db; databas
   boss.on('error', (error) => log.error({ err: error }, 'jobs: the queue reported an error'));
   const workers = new Map<string, string>();
   try {
-    await boss.start();
+    // Processes starting at once on a new database would make the same queues at once, and pg-boss's
+    // create_queue then deadlocks (each inserts into pgboss.queue, then adds a foreign key to it, which
+    // waits for the other's insert). So they take turns: pg-boss's start (which makes its own cron
+    // queue) and the queues, under a lock held by a transaction of the app's pool meanwhile.
+    await db.transaction(async (tx) => {
+      await tx.execute(sql`select pg_advisory_xact_lock(hashtext('tallywood:start-job-queue'))`);
+      await boss.start();
+      for (const job of jobs) {
+        const queue = { name: job.name, ...job.queue, ...queueSettings[job.name] };
+        await boss.createQueue(job.name, queue);
+        // A queue made earlier keeps the settings it was made with until told; jobs sent from now on take these.
+        await boss.updateQueue(job.name, queue);
+      }
+    });
     for (const job of jobs) {
-      await boss.createQueue(job.name, { name: job.name, ...job.queue });
       let worker = '';
       const workOptions = { batchSize: 1, includeMetadata: true as const, pollingIntervalSeconds: job.pollingIntervalSeconds ?? pollingIntervalSeconds };
       worker = await boss.work<object>(job.name, workOptions, async (batch) => {

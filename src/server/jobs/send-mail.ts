@@ -21,7 +21,7 @@ export type MailSender = (message: {
   attachments?: { filename: string; contentType: string; content: string }[];
 }) => Promise<unknown>;
 
-/** pg-boss tries a failed send again up to 8 times, 30 s after the first failure and twice as long each time after (about 2 h in all). */
+/** pg-boss tries a failed send again up to 8 times, 30 s after the first failure and twice as long each time after (about 2 h in all); the server's MAIL_RETRY_DELAY_SECONDS replaces the 30 (src/server/startup.ts). */
 export const sendMailQueue = { retryLimit: 8, retryDelay: 30, retryBackoff: true };
 /** The try after which a mail is 'failed' for good: the first and each retry. */
 export const sendMailAttempts = sendMailQueue.retryLimit + 1;
