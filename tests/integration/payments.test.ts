@@ -1,19 +1,18 @@
-import { spawn, type ChildProcess } from 'node:child_process';
+import type { ChildProcess } from 'node:child_process';
 import { mkdtemp, rm } from 'node:fs/promises';
 import { createServer, request, type Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import Stripe from 'stripe';
 import { afterAll, beforeAll, beforeEach, describe, expect, it } from 'vitest';
+import { startPaymentsFake, stopPaymentsFake } from './payments-fake';
 
 /**
  * The local payments fake, through the official `stripe` SDK: the SDK is the reference for what the
  * provider accepts and answers, and its webhook helpers are the reference for the signature scheme
  * (https://docs.stripe.com/webhooks/signature: HMAC-SHA256 of "<t>.<body>", header `t=…,v1=…`).
  */
-const root = fileURLToPath(new URL('../..', import.meta.url));
 const secretKey = 'sk_test_fake_integration';
 const webhookSecret = 'whsec_fake_integration';
 
@@ -36,26 +35,9 @@ async function listen(server: Server, onPort = 0) {
   return (server.address() as AddressInfo).port;
 }
 
-/** Starts the fake as `npm start` does and resolves once it says it is listening. */
-async function startFake(webhookPort: number) {
-  const child = spawn(join(root, 'node_modules', '.bin', 'tsx'), ['scripts/payments-fake.ts'], {
-    cwd: root,
-    env: { ...process.env, PAYMENTS_FAKE_PORT: String(port), PAYMENTS_FAKE_STORE: store, PAYMENTS_WEBHOOK_URL: `http://127.0.0.1:${webhookPort}/hook`, LOCAL_FAKES_TOKEN: localToken, STRIPE_SECRET_KEY: secretKey, STRIPE_WEBHOOK_SECRET: webhookSecret },
-    stdio: ['ignore', 'pipe', 'inherit'],
-  });
-  await new Promise<void>((resolve, reject) => {
-    child.stdout?.on('data', (chunk: Buffer) => chunk.toString().includes('local payments fake') && resolve());
-    child.once('exit', (code) => reject(new Error(`the payments fake exited with ${code}`)));
-  });
-  return child;
-}
-
-async function stopFake() {
-  if (!fake || fake.exitCode !== null) return;
-  const exited = new Promise((resolve) => fake?.once('exit', resolve));
-  fake.kill('SIGTERM');
-  await exited;
-}
+const startFake = (webhookPort: number) =>
+  startPaymentsFake({ port, store, webhookUrl: `http://127.0.0.1:${webhookPort}/hook`, localToken, secretKey, webhookSecret });
+const stopFake = () => stopPaymentsFake(fake);
 
 beforeAll(async () => {
   store = await mkdtemp(join(tmpdir(), 'tallywood-payments-'));

@@ -1,10 +1,9 @@
-import { spawn, type ChildProcess } from 'node:child_process';
+import type { ChildProcess } from 'node:child_process';
 import { mkdtemp, readFile, rm } from 'node:fs/promises';
 import { createServer, type Server } from 'node:http';
 import type { AddressInfo } from 'node:net';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import { eq, sql } from 'drizzle-orm';
 import pino from 'pino';
 import Stripe from 'stripe';
@@ -14,13 +13,13 @@ import { listPermitsForParcel } from '../../src/db/permits.queries';
 import { outgoingMail, parcels, payments, permits } from '../../src/db/schema';
 import { refundPaymentJob, refundPaymentQueue, useRefunder, type RefundJobData } from '../../src/server/jobs/refund-payment';
 import { createThrowawayDatabase, insertUser, migrationsFolder, one, referenceBoundary, type ThrowawayDatabase } from './throwaway-database';
+import { startPaymentsFake, stopPaymentsFake } from './payments-fake';
 
 /*
  * The `refund-payment` job, driven directly (as pg-boss would run it) against the local payments fake
  * through the official `stripe` SDK, on a database of its own. The fake "refuses" a refund by not being
  * there: stopped, every call is refused at the connection, as when the provider cannot be reached.
  */
-const root = fileURLToPath(new URL('../..', import.meta.url));
 const secretKey = 'sk_test_fake_refunds';
 const localToken = 'refunds-test-local-token';
 const log = pino({ level: 'silent' });
@@ -42,26 +41,10 @@ async function listen(server: Server, onPort = 0) {
   return (server.address() as AddressInfo).port;
 }
 
-/** Starts the fake as `npm start` does (tests/integration/payments.test.ts) and resolves once it says it is listening. */
-async function startFake() {
-  const child = spawn(join(root, 'node_modules', '.bin', 'tsx'), ['scripts/payments-fake.ts'], {
-    cwd: root,
-    env: { ...process.env, PAYMENTS_FAKE_PORT: String(port), PAYMENTS_FAKE_STORE: store, PAYMENTS_WEBHOOK_URL: `http://127.0.0.1:${(receiver.address() as AddressInfo).port}/hook`, LOCAL_FAKES_TOKEN: localToken, STRIPE_SECRET_KEY: secretKey, STRIPE_WEBHOOK_SECRET: 'whsec_fake_refunds' },
-    stdio: ['ignore', 'pipe', 'inherit'],
-  });
-  await new Promise<void>((resolve, reject) => {
-    child.stdout?.on('data', (chunk: Buffer) => chunk.toString().includes('local payments fake') && resolve());
-    child.once('exit', (code) => reject(new Error(`the payments fake exited with ${code}`)));
-  });
-  return child;
-}
-
-async function stopFake() {
-  if (!fake || fake.exitCode !== null) return;
-  const exited = new Promise((resolve) => fake?.once('exit', resolve));
-  fake.kill('SIGTERM');
-  await exited;
-}
+/** The payments fake (tests/integration/payments-fake.ts), its webhooks to this test's receiver. */
+const startFake = () =>
+  startPaymentsFake({ port, store, webhookUrl: `http://127.0.0.1:${(receiver.address() as AddressInfo).port}/hook`, localToken, secretKey, webhookSecret: 'whsec_fake_refunds' });
+const stopFake = () => stopPaymentsFake(fake);
 
 /** The refunds the fake made for one payment intent, read from its own store (scripts/payments-fake.ts keeps state.json). */
 async function refundsAtFake(intent: string) {
