@@ -74,13 +74,13 @@ export type BenchResults = {
   parcels: ParcelFigures;
   seeding: { seeded: number; ms: number };
   sql: SqlFigures;
-  naive: NaiveFigures;
+  naive: NaiveFigures | null;
   http: HttpFigures & { entry: string | null };
   wrk: WrkResults;
   pgbench: PgbenchResults;
   audit: AuditResults;
   field: FieldResults;
-  ratios: { endpointOverSqlP50: number | null; wrkOverPgbenchP50: number | null; wrkOverAppStatementP50: number | null; cpuOverFloor: number | null; naiveOverEndpointP50: number | null; naiveOverSqlP50: number };
+  ratios: { endpointOverSqlP50: number | null; wrkOverPgbenchP50: number | null; wrkOverAppStatementP50: number | null; cpuOverFloor: number | null; naiveOverEndpointP50: number | null; naiveOverSqlP50: number | null };
   targets: Target[];
   totalMs: number;
 };
@@ -107,8 +107,8 @@ function rows(r: BenchResults): string[][] {
   out.push(
     ['bare SQL from Node (cross-check)', `${sql.concurrent.concurrency} connections`, ms(sql.concurrent.p50), ms(sql.concurrent.p95), rate(sql.concurrent.perSecond)],
     ['bare SQL from Node, one connection', 'serial', ms(sql.serial.p50), ms(sql.serial.p95), rate(1000 / sql.serial.mean)],
-    ['naive turf scan of every parcel', `${naive.points} points`, ms(naive.msPerLookup), '', rate(1000 / naive.msPerLookup)],
   );
+  if (naive) out.push(['naive turf scan of every parcel', `${naive.points} points`, ms(naive.msPerLookup), '', rate(1000 / naive.msPerLookup)]);
   if (http.available) {
     out.push(['POST /api/check-ins from Node (cross-check)', `${http.concurrent.concurrency} clients`, ms(http.concurrent.p50), ms(http.concurrent.p95), rate(http.concurrent.perSecond)]);
     out.push(['POST /api/check-ins from Node, one client', 'serial', ms(http.serial.p50), ms(http.serial.p95), rate(1000 / http.serial.mean)]);
@@ -152,14 +152,14 @@ function summaryLines(r: BenchResults): string[] {
     `machine: ${r.machine.cpus} CPU cores (${r.machine.cpuModel}), ${r.machine.memoryGb} GB, Node ${r.machine.node}, PostgreSQL ${r.machine.postgres}, PostGIS ${r.machine.postgis}`,
     `seeding: ${r.seeding.seeded.toLocaleString('en-US')} parcels in ${(r.seeding.ms / 1000).toFixed(1)} s; whole run ${(r.totalMs / 1000).toFixed(1)} s`,
     `SQL: ${r.sql.meanCandidates.toFixed(2)} candidates per lookup, ${(100 * r.sql.coveredShare).toFixed(0)} % of positions inside a parcel; GiST index on boundary::geography used: ${r.sql.indexUsed ? 'yes' : 'NO'}`,
-    `naive scan: boundaries loaded in ${(r.naive.loadMs / 1000).toFixed(1)} s; its answers match PostGIS ST_Covers at ${r.naive.matchesPostgis} of ${r.naive.points} points`,
+    r.naive ? `naive scan: boundaries loaded in ${(r.naive.loadMs / 1000).toFixed(1)} s; its answers match PostGIS ST_Covers at ${r.naive.matchesPostgis} of ${r.naive.points} points` : 'naive scan: left out',
     r.http.available
       ? `endpoint: ${r.http.concurrent.count} requests measured (${r.http.concurrent.failures} failed), statuses ${JSON.stringify(r.http.statuses)}, verdicts ${JSON.stringify(r.http.verdicts)}; ` +
         `app server CPU ${r.http.concurrent.serverCpuMsPerRequest === null ? '—' : r.http.concurrent.serverCpuMsPerRequest.toFixed(2)} ms per check-in; server ${r.http.entry}`
       : `endpoint: NOT MEASURED — ${r.http.reason}${r.http.entry ? ` (server ${r.http.entry})` : ''}`,
     ...auditLines(r.audit),
     ...fieldLines(r.field),
-    `ratios (Node-driven, cross-check): endpoint p50 / bare SQL p50 = ${times(r.ratios.endpointOverSqlP50)}; naive scan / endpoint p50 = ${times(r.ratios.naiveOverEndpointP50)}; naive scan / bare SQL p50 = ${times(r.ratios.naiveOverSqlP50)}`,
+    `ratios (Node-driven, cross-check): endpoint p50 / bare SQL p50 = ${times(r.ratios.endpointOverSqlP50)}; naive scan / endpoint p50 = ${times(r.ratios.naiveOverEndpointP50)}; naive scan / bare SQL p50 = ${times(r.ratios.naiveOverSqlP50 ?? null)}`,
   ];
 }
 
