@@ -156,6 +156,7 @@ try {
       databaseUrl: appDatabaseUrl,
       tokens,
       positions: benchPositions(5, Math.max(1000, concurrency * 500), parcelTarget),
+      entryPositions: benchPositions(6, concurrency * 20, parcelTarget).filter((p) => p.kind === 'in-parcel'),
       connections: concurrency,
       threads: wrkThreads,
       seconds: loadSeconds,

@@ -45,11 +45,14 @@ export function checkInTargets(wrk: WrkResults, endpointOverQueryP50: number | n
   const at = (check: (w: Extract<WrkResults, { available: true }>) => number) => (wrk.available ? check(wrk) : null);
   const perSecond = at((w) => w.checkIns.perSecond);
   const p95 = at((w) => w.checkIns.p95);
+  // Only entries answered 201 (recorded) count.
+  const entries = wrk.available && wrk.entries.available ? (wrk.entries.statuses['201'] ?? 0) / wrk.entries.seconds : null;
   return [
     { name: 'check-ins per second (wrk)', value: perSecond, target: '≥ 1000', met: perSecond === null ? null : perSecond >= 1000 },
     { name: 'check-in p95 ms (wrk)', value: p95, target: '≤ 10', met: p95 === null ? null : p95 <= 10 },
     { name: 'check-in p50 / bare candidate query p50 (pgbench)', value: endpointOverQueryP50, target: '≤ 4', met: endpointOverQueryP50 === null ? null : endpointOverQueryP50 <= 4 },
     { name: 'app CPU per check-in / per signed-out GET /api/me', value: cpuOverFloor, target: '≤ 4', met: cpuOverFloor === null ? null : cpuOverFloor <= 4 },
+    { name: 'entries recorded per second, 8 foragers on parcels of their own (wrk)', value: entries, target: '≥ 300', met: entries === null ? null : entries >= 300 },
   ];
 }
 
@@ -97,6 +100,7 @@ function rows(r: BenchResults): string[][] {
     const w = wrk.checkIns;
     out.push([`POST /api/check-ins, wrk`, `${w.connections} connections, ${w.seconds.toFixed(0)} s`, ms(w.p50), ms(w.p95), rate(w.perSecond)]);
     out.push([`floor: GET /api/me signed out, wrk`, `${wrk.floor.connections} connections, ${wrk.floor.seconds.toFixed(0)} s`, ms(wrk.floor.p50), ms(wrk.floor.p95), rate(wrk.floor.perSecond)]);
+    if (wrk.entries.available) out.push([`POST /api/harvest-entries, wrk`, `${wrk.entries.connections} foragers, ${wrk.entries.seconds.toFixed(0)} s`, ms(wrk.entries.p50), ms(wrk.entries.p95), rate(wrk.entries.perSecond)]);
     out.push([`POST /api/check-ins, wrk, under --cpu-prof`, `${wrk.profiled.connections} connections, ${wrk.profiled.seconds.toFixed(0)} s`, ms(wrk.profiled.p50), ms(wrk.profiled.p95), rate(wrk.profiled.perSecond)]);
   }
   if (pgbench.available) {
@@ -142,6 +146,11 @@ function summaryLines(r: BenchResults): string[] {
         `app CPU ${cpu(wrk.checkIns.serverCpuMsPerRequest)} per check-in, ${cpu(wrk.floor.serverCpuMsPerRequest)} per signed-out GET /api/me (${times(r.ratios.cpuOverFloor)}); ` +
         `under --cpu-prof ${rate(wrk.profiled.perSecond)}/s (${ms(wrk.profiled.p50)} ms p50)`
       : `wrk: NOT MEASURED — ${wrk.reason}`,
+    wrk.available
+      ? wrk.entries.available
+        ? `wrk entries: ${wrk.entries.requests} requests from ${wrk.entries.connections} foragers on ${wrk.entries.parcels} parcels, statuses ${JSON.stringify(wrk.entries.statuses)}, p50 ${ms(wrk.entries.p50)}, p95 ${ms(wrk.entries.p95)} ms; app CPU ${cpu(wrk.entries.serverCpuMsPerRequest)} per entry`
+        : `wrk entries: NOT MEASURED — ${wrk.entries.reason}`
+      : 'wrk entries: NOT MEASURED',
     pgbench.available
       ? [pgbench.bare, pgbench.app]
           .map((f) => `pgbench ${f.label}: ${f.transactions} transactions (${f.failed} failed), ${rate(f.tps)} tps, latency average ${ms(f.latencyAverage)} ms (the select ${f.statementAverage === null ? '—' : ms(f.statementAverage)} ms), p50 ${ms(f.p50)}, p95 ${ms(f.p95)}, p99 ${ms(f.p99)} ms`)

@@ -17,6 +17,8 @@ export type WrkResults =
       /** The same check-in load again, on a server started with `node --cpu-prof`: its figures show the profiler's cost. */
       profiled: WrkFigures;
       profile: ProfileFigures;
+      /** POST /api/harvest-entries from wrk: each connection a bench member recording on a parcel of their own. */
+      entries: (WrkFigures & { available: true; parcels: number }) | { available: false; reason: string };
     }
   | { available: false; reason: string };
 
@@ -25,13 +27,16 @@ type Options = {
   databaseUrl: string;
   tokens: string[];
   positions: BenchPosition[];
+  /** Positions well inside bench parcels (more than connections), where the members check in to record entries. */
+  entryPositions: BenchPosition[];
   connections: number;
   threads: number;
   seconds: number;
   log: (line: string) => void;
 };
 
-const warmUpSeconds = 3;
+/** Long enough for the jobs the server runs once as it starts (date changes, reminders) to be over: the figures are a running server's. */
+const warmUpSeconds = 10;
 
 /**
  * The check-in under wrk (a C load generator: the load does not take the app's event loop or much
@@ -39,7 +44,7 @@ const warmUpSeconds = 3;
  * check-in run again on a server started with `--cpu-prof`, whose profile is read for the samples
  * of that run only.
  */
-export async function measureWithWrk({ entry, databaseUrl, tokens, positions, connections, threads, seconds, log }: Options): Promise<WrkResults> {
+export async function measureWithWrk({ entry, databaseUrl, tokens, positions, entryPositions, connections, threads, seconds, log }: Options): Promise<WrkResults> {
   const url = `http://127.0.0.1:${benchPort}`;
   const cookies = tokens.map((token) => `authjs.session-token=${token}`);
   const load = { cookies, positions, threads, connections };
@@ -54,6 +59,15 @@ export async function measureWithWrk({ entry, databaseUrl, tokens, positions, co
     const floor = await runWrk({ ...load, cookies: [], positions: [], url: `${url}/api/me`, method: 'GET', seconds, serverPid: server.pid, label: 'floor' });
     const floorStatuses = Object.keys(floor.statuses);
     if (floorStatuses.some((s) => s !== '401')) throw new Error(`GET /api/me signed out answered ${JSON.stringify(floor.statuses)}, not only 401`);
+    let entries: Extract<WrkResults, { available: true }>['entries'];
+    try {
+      const bodies = await openVisits(url, cookies.slice(0, connections), entryPositions);
+      log(`wrk: POST /api/harvest-entries, ${connections} foragers each on a parcel of their own, ${seconds} s…`);
+      const figures = await runWrk({ ...load, cookies: cookies.slice(0, connections), bodies, url: `${url}/api/harvest-entries`, method: 'POST', seconds, serverPid: server.pid, label: 'entries' });
+      entries = { available: true, parcels: bodies.length, ...figures };
+    } catch (error) {
+      entries = { available: false, reason: error instanceof Error ? error.message : String(error) };
+    }
     await stopServer(server);
     server = null;
 
@@ -69,10 +83,40 @@ export async function measureWithWrk({ entry, databaseUrl, tokens, positions, co
     await stopServer(server);
     server = null;
     const profile = topSelfTime(profileDir, performance.now() - started);
-    return { available: true, checkIns, floor, profiled, profile };
+    return { available: true, checkIns, floor, profiled, profile, entries };
   } catch (error) {
     return { available: false, reason: error instanceof Error ? error.message : String(error) };
   } finally {
     await stopServer(server);
   }
+}
+
+/**
+ * Each member checks in on a parcel no other member is on (clear, so a visit opens), and gets the
+ * body of an entry to record there again and again: 0.1 g of the bench species, a key of its own
+ * each time (`@KEY@`, filled by the Lua script). The bench allowance's limit is 2 kg a day.
+ */
+async function openVisits(url: string, cookies: string[], positions: BenchPosition[]): Promise<string[]> {
+  const taken = new Set<string>();
+  const bodies: string[] = [];
+  let next = 0;
+  for (const cookie of cookies) {
+    let body: string | null = null;
+    while (!body && next < positions.length) {
+      const { longitude, latitude } = positions[next++] as BenchPosition;
+      const response = await fetch(`${url}/api/check-ins`, {
+        method: 'POST',
+        headers: { cookie, origin: url, 'content-type': 'application/json' },
+        body: JSON.stringify({ longitude, latitude, accuracyM: 3 }),
+      });
+      const answer = (await response.json()) as { verdict?: string; visitId?: string | null; parcel?: { id: string } | null; species?: { speciesId: string; inSeason: boolean }[] };
+      const species = answer.species?.find((s) => s.inSeason);
+      if (answer.verdict !== 'clear' || !answer.visitId || !answer.parcel || taken.has(answer.parcel.id) || !species) continue;
+      taken.add(answer.parcel.id);
+      body = JSON.stringify({ idempotencyKey: '@KEY@', visitId: answer.visitId, speciesId: species.speciesId, method: 'pick', quantities: [{ quantity: '0.1', unit: 'g' }] });
+    }
+    if (!body) throw new Error('could not open a visit on a parcel of its own for every bench member');
+    bodies.push(body);
+  }
+  return bodies;
 }

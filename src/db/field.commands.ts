@@ -45,24 +45,24 @@ type CheckInRecord = {
  *
  * One statement does it all (checkInStatement), after the lock in the same transaction: under READ
  * COMMITTED each statement reads a snapshot taken when it starts (PostgreSQL manual §13.2.1), so it
- * sees the visits as the forager's previous check-in left them. On the pool the four statements
- * (begin, lock, the check-in, commit) are sent at once on one connection (postgres.js pipelines
- * queries not yet answered), so a check-in costs one round trip to the database, not seven.
+ * sees the visits as the forager's previous check-in left them. On the pool the statements (`first`,
+ * a read the caller wants answered before the check-in is logged; begin, lock, the check-in,
+ * commit) are sent at once on one connection (postgres.js pipelines queries not yet answered), so
+ * logging a check-in costs one round trip to the database, not seven. Returns the visit, and the
+ * rows `first` read.
  */
-export async function recordCheckIn(db: Executor, r: CheckInRecord): Promise<string | null> {
+export async function recordCheckIn(db: Executor, r: CheckInRecord, { first }: { first?: SQL } = {}): Promise<{ visitId: string | null; firstRows: Record<string, unknown>[] }> {
   const statement = checkInStatement(r);
-  if (!r.visit || !r.parcelId) {
-    await db.execute(statement);
-    return null;
-  }
-  const lock = sql`select pg_advisory_xact_lock(hashtextextended(${`visits:${r.forager.id}`}, 0))`;
+  const lock = r.visit && r.parcelId ? sql`select pg_advisory_xact_lock(hashtextextended(${`visits:${r.forager.id}`}, 0))` : null;
   const client = isPool(db) ? db.$client : null;
   if (!client) {
-    return db.transaction(async (tx) => {
-      await tx.execute(lock);
-      const [row] = await tx.execute<{ visit_id: string | null }>(statement);
+    const firstRows = first ? ((await db.execute(first)) as unknown as Record<string, unknown>[]) : [];
+    const run = async (tx: Executor) => {
+      if (lock) await tx.execute(lock);
+      const [row] = (await tx.execute(statement)) as unknown as { visit_id: string | null }[];
       return row?.visit_id ?? null;
-    });
+    };
+    return { visitId: lock ? await db.transaction(run) : await run(db), firstRows };
   }
   const connection = await client.reserve();
   try {
@@ -71,18 +71,21 @@ export async function recordCheckIn(db: Executor, r: CheckInRecord): Promise<str
       return connection.unsafe(text, params as never[]);
     };
     // Sent without waiting for each answer; an error rolls the transaction back before the connection is released.
-    const begun = connection.unsafe('begin');
-    const locked = send(lock);
-    const logged = send(statement);
-    const committed = connection.unsafe('commit');
-    const settled = await Promise.allSettled([begun, locked, logged, committed]);
+    const sent = [
+      first ? send(first) : Promise.resolve([]),
+      ...(lock ? [connection.unsafe('begin'), send(lock)] : []),
+      send(statement),
+      ...(lock ? [connection.unsafe('commit')] : []),
+    ];
+    const settled = await Promise.allSettled(sent);
     const failed = settled.find((s): s is PromiseRejectedResult => s.status === 'rejected');
     if (failed) {
-      await connection.unsafe('rollback').catch(() => {});
+      if (lock) await connection.unsafe('rollback').catch(() => {});
       throw failed.reason;
     }
-    const [row] = (await logged) as unknown as { visit_id: string | null }[];
-    return row?.visit_id ?? null;
+    const firstRows = (await sent[0]) as unknown as Record<string, unknown>[];
+    const [row] = (await sent[lock ? 3 : 1]) as unknown as { visit_id: string | null }[];
+    return { visitId: row?.visit_id ?? null, firstRows };
   } finally {
     connection.release();
   }

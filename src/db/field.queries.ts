@@ -184,11 +184,15 @@ type UsageRow = { parcel_id: string; species_id: string; measure: Measure; visit
  * Returns the usage per parcel, and the visit each parcel's visit total was read from.
  */
 export async function loadUsage(db: Executor, { forager, windows }: { forager: Forager; windows: UsageWindow[] }): Promise<{ usage: Map<string, Usage>; visits: Map<string, string | null> }> {
+  if (windows.length === 0) return usageOf([]);
+  return usageOf(await executePrepared<UsageRow>(db, usageQuery({ forager, windows })));
+}
+
+/** loadUsage's answer from the rows of its statement (usageQuery), however they were sent. */
+export function usageOf(rows: readonly Record<string, unknown>[]): { usage: Map<string, Usage>; visits: Map<string, string | null> } {
   const usage = new Map<string, Usage>();
   const visits = new Map<string, string | null>();
-  if (windows.length === 0) return { usage, visits };
-  const rows = await executePrepared<UsageRow>(db, usageQuery({ forager, windows }));
-  for (const r of rows) {
+  for (const r of rows as UsageRow[]) {
     const parcel = usage.get(r.parcel_id) ?? {};
     const species = (parcel[r.species_id] ??= {});
     const scopes: ScopeUsage = { visit: r.visit, day: r.day, season: r.season, 'parcel-season': r.parcel_season, 'club-season': r.clubs };
