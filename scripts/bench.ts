@@ -14,7 +14,8 @@
 // Flags (after `npm run bench --`): --check-ins measures only what issue 15's targets are judged on
 // (pgbench, wrk, the CPU profile), leaving out the Node-driven cross-checks, the naive scan, the
 // audit and the Field page; --build builds the app into .local/bench-dist first, so the figures are
-// those of the code in this checkout.
+// those of the code in this checkout; --scale also seeds 1 000 000 parcels in a database of its own
+// (once, a few minutes) and measures the candidate statements and the check-in there.
 import type { ChildProcess } from 'node:child_process';
 import { cpus, totalmem } from 'node:os';
 import { join } from 'node:path';
@@ -26,11 +27,12 @@ import { benchPort, findOrBuildServer, measureCheckIns, startServer, stopServer,
 import { measureNaiveScan, type NaiveFigures } from './bench/naive-scan';
 import { benchPositions, regionAreaKm2 } from './bench/parcels';
 import { measureFieldOffline } from './bench/field-offline';
-import { auditTargets, checkInTargets, fieldTargets, report, type AuditResults, type BenchResults, type FieldResults, type PgbenchResults } from './bench/report';
+import { auditTargets, checkInTargets, scaleTargets, fieldTargets, report, type AuditResults, type BenchResults, type FieldResults, type PgbenchResults } from './bench/report';
 import { describeParcels, prepareMembers, prewarm, seedBench } from './bench/seed';
 import { appCandidateScript, bareLookupScript, runPgbench } from './bench/pgbench';
 import { coveringCounts, measureSql } from './bench/sql-lookup';
 import { measureWithWrk, type WrkResults } from './bench/wrk-check-ins';
+import { measureScale } from './bench/scale';
 import { databaseUrls, ensureAppRole, ensureDatabase, ensurePostgres, localDir, localSecret, root, say, startCluster } from './lib/setup.mjs';
 
 const setting = (name: string, fallback: number) => {
@@ -51,7 +53,7 @@ const wrkThreads = setting('BENCH_WRK_THREADS', concurrency);
 /** pgbench's threads: one per core, as many as the machine's (the brief's `-j 2` on two cores). */
 const pgbenchThreads = Math.min(concurrency, Math.max(1, cpus().length));
 const flags = new Set(process.argv.slice(2));
-for (const flag of flags) if (!['--check-ins', '--build'].includes(flag)) throw new Error(`unknown flag ${flag}: the bench knows --check-ins and --build`);
+for (const flag of flags) if (!['--check-ins', '--build', '--scale'].includes(flag)) throw new Error(`unknown flag ${flag}: the bench knows --check-ins, --build and --scale`);
 const checkInsOnly = flags.has('--check-ins');
 const leftOut = 'left out (--check-ins)';
 const started = performance.now();
@@ -113,9 +115,9 @@ try {
     if (!member) throw new Error('bench-member-00 is missing');
     const common = { port: pgPort, database: 'tallywood_bench', user: 'app', clients: concurrency, threads: pgbenchThreads, seconds: loadSeconds };
     say(`pgbench: the bare candidate lookup, -c ${concurrency} -j ${pgbenchThreads} -T ${loadSeconds}…`);
-    const bare = await runPgbench({ ...common, label: 'bare', script: bareLookupScript() });
+    const bare = await runPgbench({ ...common, label: 'bare', script: bareLookupScript(parcelTarget) });
     say(`pgbench: the check-in's own candidate statement (loadParcelFactsNear), -c ${concurrency} -j ${pgbenchThreads} -T ${loadSeconds}…`);
-    const app = await runPgbench({ ...common, label: 'check-in-candidates', script: appCandidateScript({ id: member.id, clubIds: member.club_ids }) });
+    const app = await runPgbench({ ...common, label: 'check-in-candidates', script: appCandidateScript({ id: member.id, clubIds: member.club_ids }, parcelTarget) });
     pgbench = { available: true, bare, app };
   } catch (error) {
     exitCode = 1;
@@ -172,6 +174,17 @@ try {
     if (http.status !== 404) exitCode = 1;
   }
 
+  let scale: BenchResults['scale'] = null;
+  if (flags.has('--scale') && entry) {
+    try {
+      scale = { available: true, ...(await measureScale({ port: pgPort, password, entry, concurrency, threads: wrkThreads, seconds: loadSeconds, log: say })) };
+    } catch (error) {
+      exitCode = 1;
+      scale = { available: false, reason: error instanceof Error ? error.message : String(error) };
+      console.log(`\n*** The scale run did not finish: ${scale.reason} ***\n`);
+    }
+  }
+
   let audit: AuditResults;
   try {
     if (checkInsOnly) throw new Skipped();
@@ -214,6 +227,7 @@ try {
     pgbench,
     audit,
     field,
+    scale,
     ratios: {
       endpointOverSqlP50,
       wrkOverPgbenchP50,
@@ -224,6 +238,7 @@ try {
     },
     targets: [
       ...checkInTargets(wrk, wrkOverPgbenchP50, cpuOverFloor),
+      ...scaleTargets(scale, pgbench, wrk),
       ...(checkInsOnly ? [] : [...auditTargets(audit), ...fieldTargets(field)]),
     ],
     totalMs: performance.now() - started,

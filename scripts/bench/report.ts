@@ -9,6 +9,24 @@ import type { ProfileFigures } from './cpu-profile';
 import type { PgbenchFigures } from './pgbench';
 import type { SqlFigures } from './sql-lookup';
 import type { WrkResults } from './wrk-check-ins';
+import type { ScaleFigures } from './scale';
+
+export type ScaleResults = ({ available: true } & ScaleFigures) | { available: false; reason: string } | null;
+
+/** Issue 15's scale target: at 1 000 000 parcels the candidate statement's and the check-in's p50 within 1.5× of theirs at 100 000 (null: --scale not asked). */
+export function scaleTargets(scale: ScaleResults, pgbench: PgbenchResults, wrk: WrkResults): Target[] {
+  if (scale === null) return [];
+  const ratio = (big: number | undefined, small: number | undefined) => (big === undefined || small === undefined ? null : big / small);
+  const statement = scale.available && pgbench.available ? ratio(scale.app.p50, pgbench.app.p50) : null;
+  const bare = scale.available && pgbench.available ? ratio(scale.bare.p50, pgbench.bare.p50) : null;
+  const endpoint = scale.available && wrk.available ? ratio(scale.checkIns.p50, wrk.checkIns.p50) : null;
+  const within = (value: number | null) => (value === null ? null : value <= 1.5);
+  return [
+    { name: "check-in's candidate statement p50, 1M / 100k parcels (pgbench)", value: statement, target: '≤ 1.5', met: within(statement) },
+    { name: 'bare candidate query p50, 1M / 100k parcels (pgbench)', value: bare, target: '≤ 1.5', met: within(bare) },
+    { name: 'check-in p50, 1M / 100k parcels (wrk)', value: endpoint, target: '≤ 1.5', met: within(endpoint) },
+  ];
+}
 
 export type AuditResults = (AuditFigures & { available: true; seeding: { seeded: number; ms: number; limitsAdded: number } }) | { available: false; reason: string };
 
@@ -83,6 +101,7 @@ export type BenchResults = {
   pgbench: PgbenchResults;
   audit: AuditResults;
   field: FieldResults;
+  scale: ScaleResults;
   ratios: { endpointOverSqlP50: number | null; wrkOverPgbenchP50: number | null; wrkOverAppStatementP50: number | null; cpuOverFloor: number | null; naiveOverEndpointP50: number | null; naiveOverSqlP50: number | null };
   targets: Target[];
   totalMs: number;
@@ -117,6 +136,12 @@ function rows(r: BenchResults): string[][] {
     out.push(['POST /api/check-ins from Node (cross-check)', `${http.concurrent.concurrency} clients`, ms(http.concurrent.p50), ms(http.concurrent.p95), rate(http.concurrent.perSecond)]);
     out.push(['POST /api/check-ins from Node, one client', 'serial', ms(http.serial.p50), ms(http.serial.p95), rate(1000 / http.serial.mean)]);
     out.push(['floor: GET /api/me signed out from Node', `${http.concurrent.concurrency} clients`, ms(http.floor.p50), ms(http.floor.p95), rate(http.floor.perSecond)]);
+  }
+  if (r.scale?.available) {
+    const { scale } = r;
+    out.push([`POST /api/check-ins, wrk, ${count(scale.parcels)} parcels`, `${scale.checkIns.connections} connections, ${scale.checkIns.seconds.toFixed(0)} s`, ms(scale.checkIns.p50), ms(scale.checkIns.p95), rate(scale.checkIns.perSecond)]);
+    out.push([`bare candidate query, pgbench, ${count(scale.parcels)} parcels`, `${scale.bare.clients} clients, ${scale.bare.seconds} s`, ms(scale.bare.p50), ms(scale.bare.p95), rate(scale.bare.tps)]);
+    out.push([`check-in's candidate statement, pgbench, ${count(scale.parcels)}`, `${scale.app.clients} clients, ${scale.app.seconds} s`, ms(scale.app.p50), ms(scale.app.p95), rate(scale.app.tps)]);
   }
   const { audit } = r;
   if (audit.available) {
@@ -166,6 +191,9 @@ function summaryLines(r: BenchResults): string[] {
       ? `endpoint: ${r.http.concurrent.count} requests measured (${r.http.concurrent.failures} failed), statuses ${JSON.stringify(r.http.statuses)}, verdicts ${JSON.stringify(r.http.verdicts)}; ` +
         `app server CPU ${r.http.concurrent.serverCpuMsPerRequest === null ? '—' : r.http.concurrent.serverCpuMsPerRequest.toFixed(2)} ms per check-in; server ${r.http.entry}`
       : `endpoint: NOT MEASURED — ${r.http.reason}${r.http.entry ? ` (server ${r.http.entry})` : ''}`,
+    ...(r.scale === null ? [] : r.scale.available
+      ? [`scale: ${count(r.scale.parcels)} parcels (${r.scale.seeding.seeded > 0 ? `seeded in ${(r.scale.seeding.ms / 1000).toFixed(0)} s` : 'seeded before'}); check-in statuses ${JSON.stringify(r.scale.checkIns.statuses)}, verdicts ${JSON.stringify(r.scale.checkIns.verdicts)}`]
+      : [`scale: NOT MEASURED — ${r.scale.reason}`]),
     ...auditLines(r.audit),
     ...fieldLines(r.field),
     `ratios (Node-driven, cross-check): endpoint p50 / bare SQL p50 = ${times(r.ratios.endpointOverSqlP50)}; naive scan / endpoint p50 = ${times(r.ratios.naiveOverEndpointP50)}; naive scan / bare SQL p50 = ${times(r.ratios.naiveOverSqlP50 ?? null)}`,

@@ -1,5 +1,5 @@
 import type { ChildProcess } from 'node:child_process';
-import { mkdirSync, rmSync } from 'node:fs';
+import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
 import { localDir } from '../lib/setup.mjs';
 import { topSelfTime, type ProfileFigures } from './cpu-profile';
@@ -35,8 +35,27 @@ type Options = {
   log: (line: string) => void;
 };
 
-/** Long enough for the jobs the server runs once as it starts (date changes, reminders) to be over: the figures are a running server's. */
-const warmUpSeconds = 10;
+const warmUpSeconds = 3;
+
+/**
+ * Waits until the jobs the server runs once as it starts (date changes and reminders, over every
+ * bench parcel) have ended, done or failed, so the figures are a running server's (at most two minutes).
+ */
+export async function startUpJobsOver(logFile: string, log: (line: string) => void): Promise<void> {
+  const started = performance.now();
+  const ended = (job: string) => {
+    const text = existsSync(logFile) ? readFileSync(logFile, 'utf8') : '';
+    return text.split('\n').some((line) => line.includes(`"job":"${job}"`) && /"msg":"job (done|failed)"/.test(line));
+  };
+  while (!(ended('date-changes') && ended('reminders'))) {
+    if (performance.now() - started > 120_000) {
+      log('the start-up jobs had not ended after 2 minutes; measuring anyway');
+      return;
+    }
+    await new Promise((resolve) => setTimeout(resolve, 500));
+  }
+  log(`the start-up jobs ended ${((performance.now() - started) / 1000).toFixed(1)} s after the server answered`);
+}
 
 /**
  * The check-in under wrk (a C load generator: the load does not take the app's event loop or much
@@ -51,6 +70,7 @@ export async function measureWithWrk({ entry, databaseUrl, tokens, positions, en
   let server: ChildProcess | null = null;
   try {
     server = await startServer(entry, databaseUrl, { logFile: join(localDir, 'bench', 'app-wrk.log') });
+    await startUpJobsOver(join(localDir, 'bench', 'app-wrk.log'), log);
     log(`wrk: warm-up, ${warmUpSeconds} s…`);
     await runWrk({ ...load, url: `${url}/api/check-ins`, method: 'POST', seconds: warmUpSeconds, serverPid: server.pid, label: 'warm-up' });
     log(`wrk: POST /api/check-ins, ${connections} connections on ${threads} threads, ${seconds} s…`);
@@ -76,6 +96,7 @@ export async function measureWithWrk({ entry, databaseUrl, tokens, positions, en
     mkdirSync(profileDir, { recursive: true });
     log('wrk: the check-in run again on a server under node --cpu-prof…');
     server = await startServer(entry, databaseUrl, { nodeOptions: ['--cpu-prof', `--cpu-prof-dir=${profileDir}`], logFile: join(localDir, 'bench', 'app-wrk-profiled.log') });
+    await startUpJobsOver(join(localDir, 'bench', 'app-wrk-profiled.log'), log);
     await runWrk({ ...load, url: `${url}/api/check-ins`, method: 'POST', seconds: warmUpSeconds, serverPid: server.pid, label: 'warm-up' });
     const started = performance.now();
     const profiled = await runWrk({ ...load, url: `${url}/api/check-ins`, method: 'POST', seconds, serverPid: server.pid, label: 'profiled' });
