@@ -38,23 +38,27 @@ type Options = {
 const warmUpSeconds = 3;
 
 /**
- * Waits until the jobs the server runs once as it starts (date changes and reminders, over every
- * bench parcel) have ended, done or failed, so the figures are a running server's (at most two minutes).
+ * Waits until the jobs the server runs as it starts (date changes and reminders, over every bench
+ * parcel, with their retries) have ended, done or failed, and no job has logged for 15 s, so the
+ * figures are a running server's (at most three minutes).
  */
 export async function startUpJobsOver(logFile: string, log: (line: string) => void): Promise<void> {
   const started = performance.now();
-  const ended = (job: string) => {
-    const text = existsSync(logFile) ? readFileSync(logFile, 'utf8') : '';
-    return text.split('\n').some((line) => line.includes(`"job":"${job}"`) && /"msg":"job (done|failed)"/.test(line));
-  };
-  while (!(ended('date-changes') && ended('reminders'))) {
-    if (performance.now() - started > 120_000) {
-      log('the start-up jobs had not ended after 2 minutes; measuring anyway');
+  const lines = () => (existsSync(logFile) ? readFileSync(logFile, 'utf8').split('\n') : []);
+  const ended = (all: string[], job: string) => all.some((line) => line.includes(`"job":"${job}"`) && /"msg":"job (done|failed)"/.test(line));
+  let [jobLines, quietSince] = [-1, performance.now()];
+  for (;;) {
+    const all = lines();
+    const count = all.filter((line) => line.includes('"job":"')).length;
+    if (count !== jobLines) [jobLines, quietSince] = [count, performance.now()];
+    if (ended(all, 'date-changes') && ended(all, 'reminders') && performance.now() - quietSince >= 15_000) break;
+    if (performance.now() - started > 180_000) {
+      log('the start-up jobs had not settled after 3 minutes; measuring anyway');
       return;
     }
     await new Promise((resolve) => setTimeout(resolve, 500));
   }
-  log(`the start-up jobs ended ${((performance.now() - started) / 1000).toFixed(1)} s after the server answered`);
+  log(`the start-up jobs ended and were quiet for 15 s, ${((performance.now() - started) / 1000).toFixed(1)} s after the server answered`);
 }
 
 /**

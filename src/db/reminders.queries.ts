@@ -66,20 +66,18 @@ export async function loadReminderFacts(db: Executor, { userId, now }: { userId:
   ];
   const parcelIds = [...new Set(permitFacts.map((p) => p.parcelId))];
   if (parcelIds.length === 0) return { userId, settings, permits: [], allowances: [], closures: [] };
-  // One array parameter, not one per id: a club may hold permits on more parcels than a statement takes parameters (65 535).
-  const ids = sql`${`{${parcelIds.join(',')}}`}::uuid[]`;
 
   const allowanceFacts: AllowanceFact[] = await db
     .select({ parcelId: allowances.parcelId, speciesName: species.commonName, seasons: allowances.seasons })
     .from(allowances)
     .innerJoin(species, eq(species.id, allowances.speciesId))
-    .where(and(sql`${allowances.parcelId} = any(${ids})`, isNull(allowances.removedAt)));
+    .where(and(inArray(allowances.parcelId, parcelIds), isNull(allowances.removedAt)));
   // A coarse cut only: no zone's "tomorrow" is before the UTC date of a day ago. The pure part decides by each parcel's own date.
   const since = new Date(now.getTime() - 86_400_000).toISOString().slice(0, 10);
   const closureFacts: ClosureFact[] = await db
     .select({ closureId: closures.id, parcelId: closures.parcelId, startsOn: closures.startsOn, endsOn: closures.endsOn, reason: closures.reason })
     .from(closures)
-    .where(and(sql`${closures.parcelId} = any(${ids})`, gte(closures.startsOn, since)));
+    .where(and(inArray(closures.parcelId, parcelIds), gte(closures.startsOn, since)));
   return { userId, settings, permits: permitFacts, allowances: allowanceFacts, closures: closureFacts };
 }
 
