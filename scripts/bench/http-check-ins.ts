@@ -14,6 +14,12 @@ const origin = `http://127.0.0.1:${benchPort}`;
  * a build of our own into .local/bench-dist (astro.config.mjs reads TALLYWOOD_OUT_DIR).
  */
 export function findOrBuildServer(log: (line: string) => void, { rebuild = false }: { rebuild?: boolean } = {}): { entry: string; built: boolean } {
+  // BENCH_SERVER_ENTRY: another build's server/entry.mjs, to measure an earlier commit with this bench.
+  const given = process.env.BENCH_SERVER_ENTRY;
+  if (given) {
+    if (!existsSync(given)) throw new Error(`BENCH_SERVER_ENTRY names ${given}, which does not exist`);
+    return { entry: given, built: false };
+  }
   const candidates = [join(root, 'dist', 'server', 'entry.mjs'), join(localDir, 'test-dist', 'server', 'entry.mjs'), join(localDir, 'bench-dist', 'server', 'entry.mjs')]
     .filter((file) => existsSync(file))
     .sort((a, b) => statSync(b).mtimeMs - statSync(a).mtimeMs);
