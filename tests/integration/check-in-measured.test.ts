@@ -2,8 +2,7 @@ import { sql } from 'drizzle-orm';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, createDb, type Db } from '../../src/db/client';
 import { loadMeasuredParcelsNear } from '../../src/db/field.queries';
-import { boundaryContains, distanceToEdgeM, placePosition } from '../../src/lib/field/geometry';
-import { placeMeasured } from '../../src/lib/field/geometry';
+import { boundaryContains, distanceToEdgeM, placeMeasured, placePosition } from '../../src/lib/field/geometry';
 import type { LonLat, MultiPolygon } from '../../src/lib/field/types';
 
 /*
