@@ -8,5 +8,5 @@ ensureDependencies();
 ensureWrk();
 // Ctrl-C reaches the benchmark too; this process waits for it to stop its server and cluster.
 process.on('SIGINT', () => {});
-const result = spawnSync(bin('tsx'), ['scripts/bench.ts'], { cwd: root, stdio: 'inherit' });
+const result = spawnSync(bin('tsx'), ['scripts/bench.ts', ...process.argv.slice(2)], { cwd: root, stdio: 'inherit' });
 process.exit(result.status ?? 1);

@@ -10,7 +10,12 @@
 //   BENCH_PARCELS (100000) · BENCH_REQUESTS (5000) · BENCH_SQL_QUERIES (5000) · BENCH_NAIVE_POINTS (20)
 //   BENCH_ENTRIES (1000000) · BENCH_CONCURRENCY (8) · BENCH_MAX_SECONDS (60, per measured phase)
 //   BENCH_SECONDS (20, each wrk and pgbench run) · BENCH_WRK_THREADS (BENCH_CONCURRENCY: one connection per thread)
-//   TALLYWOOD_BENCH_PG_PORT (54349)
+//   TALLYWOOD_BENCH_PG_PORT (54349) · BENCH_SERVER_ENTRY (another build's server/entry.mjs, to measure an earlier commit)
+// Flags (after `npm run bench --`): --check-ins measures only what issue 15's targets are judged on
+// (pgbench, wrk, the CPU profile), leaving out the Node-driven cross-checks, the naive scan, the
+// audit and the Field page; --build builds the app into .local/bench-dist first, so the figures are
+// those of the code in this checkout; --scale also seeds 1 000 000 parcels in a database of its own
+// (once, a few minutes) and measures the candidate statements and the check-in there.
 import type { ChildProcess } from 'node:child_process';
 import { cpus, totalmem } from 'node:os';
 import { join } from 'node:path';
@@ -19,14 +24,15 @@ import { closeDb, createDb } from '../src/db/client';
 import { applyMigrations } from '../src/db/migrations';
 import { measureAudit, seedEntries } from './bench/audit';
 import { benchPort, findOrBuildServer, measureCheckIns, startServer, stopServer, type HttpFigures } from './bench/http-check-ins';
-import { measureNaiveScan } from './bench/naive-scan';
+import { measureNaiveScan, type NaiveFigures } from './bench/naive-scan';
 import { benchPositions, regionAreaKm2 } from './bench/parcels';
 import { measureFieldOffline } from './bench/field-offline';
-import { auditTargets, checkInTargets, fieldTargets, report, type AuditResults, type BenchResults, type FieldResults, type PgbenchResults } from './bench/report';
+import { auditTargets, checkInTargets, scaleTargets, fieldTargets, report, type AuditResults, type BenchResults, type FieldResults, type PgbenchResults } from './bench/report';
 import { describeParcels, prepareMembers, prewarm, seedBench } from './bench/seed';
 import { appCandidateScript, bareLookupScript, runPgbench } from './bench/pgbench';
 import { coveringCounts, measureSql } from './bench/sql-lookup';
 import { measureWithWrk, type WrkResults } from './bench/wrk-check-ins';
+import { measureScale } from './bench/scale';
 import { databaseUrls, ensureAppRole, ensureDatabase, ensurePostgres, localDir, localSecret, root, say, startCluster } from './lib/setup.mjs';
 
 const setting = (name: string, fallback: number) => {
@@ -46,6 +52,10 @@ const loadSeconds = setting('BENCH_SECONDS', 20);
 const wrkThreads = setting('BENCH_WRK_THREADS', concurrency);
 /** pgbench's threads: one per core, as many as the machine's (the brief's `-j 2` on two cores). */
 const pgbenchThreads = Math.min(concurrency, Math.max(1, cpus().length));
+const flags = new Set(process.argv.slice(2));
+for (const flag of flags) if (!['--check-ins', '--build', '--scale'].includes(flag)) throw new Error(`unknown flag ${flag}: the bench knows --check-ins, --build and --scale`);
+const checkInsOnly = flags.has('--check-ins');
+const leftOut = 'left out (--check-ins)';
 const started = performance.now();
 
 ensurePostgres();
@@ -59,6 +69,9 @@ ensureAppRole({ port: pgPort, password });
 // The bench migrates, seeds and measures its statements as the tables' owner (the cluster's
 // superuser); the app it starts signs in as the app's role, as `npm start`'s does.
 const { owner: databaseUrl, app: appDatabaseUrl } = databaseUrls({ port: pgPort, name: 'tallywood_bench', password });
+
+/** Thrown past a part of the bench that --check-ins leaves out. */
+class Skipped extends Error {}
 
 let server: ChildProcess | null = null;
 const sql = postgres(databaseUrl, { max: concurrency, onnotice: () => {} });
@@ -85,9 +98,12 @@ try {
   const sqlFigures = await measureSql(sql, benchPositions(1, sqlQueries + 1000, parcelTarget), { concurrency, count: sqlQueries, maxMs });
   console.log(`\nEXPLAIN ANALYZE of the bare lookup:\n${sqlFigures.plan}\n`);
 
-  say(`naive turf scan: every parcel in memory, ${naivePoints} positions…`);
-  const naivePositions = benchPositions(2, naivePoints, parcelTarget);
-  const naive = await measureNaiveScan(sql, naivePositions, await coveringCounts(sql, naivePositions));
+  let naive: NaiveFigures | null = null;
+  if (!checkInsOnly) {
+    say(`naive turf scan: every parcel in memory, ${naivePoints} positions…`);
+    const naivePositions = benchPositions(2, naivePoints, parcelTarget);
+    naive = await measureNaiveScan(sql, naivePositions, await coveringCounts(sql, naivePositions));
+  }
 
   // pgbench: the bare lookup above, and the statement the check-in itself sends for its candidates
   // (as the first bench member), at the same concurrency, random positions in the seeded region.
@@ -99,9 +115,9 @@ try {
     if (!member) throw new Error('bench-member-00 is missing');
     const common = { port: pgPort, database: 'tallywood_bench', user: 'app', clients: concurrency, threads: pgbenchThreads, seconds: loadSeconds };
     say(`pgbench: the bare candidate lookup, -c ${concurrency} -j ${pgbenchThreads} -T ${loadSeconds}…`);
-    const bare = await runPgbench({ ...common, label: 'bare', script: bareLookupScript() });
+    const bare = await runPgbench({ ...common, label: 'bare', script: bareLookupScript(parcelTarget) });
     say(`pgbench: the check-in's own candidate statement (loadParcelFactsNear), -c ${concurrency} -j ${pgbenchThreads} -T ${loadSeconds}…`);
-    const app = await runPgbench({ ...common, label: 'check-in-candidates', script: appCandidateScript({ id: member.id, clubIds: member.club_ids }) });
+    const app = await runPgbench({ ...common, label: 'check-in-candidates', script: appCandidateScript({ id: member.id, clubIds: member.club_ids }, parcelTarget) });
     pgbench = { available: true, bare, app };
   } catch (error) {
     exitCode = 1;
@@ -113,15 +129,16 @@ try {
   let http: HttpFigures & { entry: string | null };
   let entry: string | null = null;
   try {
-    entry = findOrBuildServer(say).entry;
+    entry = findOrBuildServer(say, { rebuild: flags.has('--build') }).entry;
+    if (checkInsOnly) throw new Skipped();
     say(`starting ${entry.replace(`${root}/`, '')} on 127.0.0.1:4341 against the bench database…`);
     server = await startServer(entry, appDatabaseUrl);
     say(`check-ins over HTTP: ${requests} from ${concurrency} clients…`);
     http = { ...(await measureCheckIns(server.pid, tokens, benchPositions(3, requests + 1000, parcelTarget), { concurrency, count: requests, maxMs })), entry };
   } catch (error) {
-    http = { available: false, status: 0, reason: `the app could not be started or reached: ${error instanceof Error ? error.message : error}`, entry };
+    http = error instanceof Skipped ? { available: false, status: 404, reason: leftOut, entry } : { available: false, status: 0, reason: `the app could not be started or reached: ${error instanceof Error ? error.message : error}`, entry };
   }
-  let field: FieldResults = { available: false, reason: 'the app was not running' };
+  let field: FieldResults = { available: false, reason: checkInsOnly ? leftOut : 'the app was not running' };
   if (http.available && entry) {
     say('the Field page in Chromium, and the offline verdict on a pack of 500 parcels with the CPU slowed 4×…');
     try {
@@ -141,6 +158,7 @@ try {
       databaseUrl: appDatabaseUrl,
       tokens,
       positions: benchPositions(5, Math.max(1000, concurrency * 500), parcelTarget),
+      entryPositions: benchPositions(6, concurrency * 20, parcelTarget).filter((p) => p.kind === 'in-parcel'),
       connections: concurrency,
       threads: wrkThreads,
       seconds: loadSeconds,
@@ -156,17 +174,32 @@ try {
     if (http.status !== 404) exitCode = 1;
   }
 
+  let scale: BenchResults['scale'] = null;
+  if (flags.has('--scale') && entry) {
+    try {
+      scale = { available: true, ...(await measureScale({ port: pgPort, password, entry, concurrency, threads: wrkThreads, seconds: loadSeconds, log: say })) };
+    } catch (error) {
+      exitCode = 1;
+      scale = { available: false, reason: error instanceof Error ? error.message : String(error) };
+      console.log(`\n*** The scale run did not finish: ${scale.reason} ***\n`);
+    }
+  }
+
   let audit: AuditResults;
   try {
+    if (checkInsOnly) throw new Skipped();
     const entries = await seedEntries(sql, entryTarget, say);
     say(entries.seeded > 0 ? `seeded ${entries.seeded} harvest entries in ${(entries.ms / 1000).toFixed(1)} s` : `${entries.entries} bench harvest entries already there; nothing seeded`);
     say(`club audit and season reports over ${entries.entries} harvest entries…`);
     audit = { available: true, seeding: { seeded: entries.seeded, ms: entries.ms, limitsAdded: entries.limitsAdded }, ...(await measureAudit(databaseUrl, { clubId: entries.clubId, parcelId: entries.parcelId, maxMs })) };
     for (const [i, p] of audit.plans.entries()) console.log(`\nEXPLAIN (ANALYZE, BUFFERS) of the audit's statement ${i + 1} of ${audit.plans.length} over the kept totals:\n${p.plan}\n`);
   } catch (error) {
-    exitCode = 1;
-    audit = { available: false, reason: error instanceof Error ? error.message : String(error) };
-    console.log(`\n*** The audit and season report were not measured: ${audit.reason} ***\n`);
+    if (error instanceof Skipped) audit = { available: false, reason: leftOut };
+    else {
+      exitCode = 1;
+      audit = { available: false, reason: error instanceof Error ? error.message : String(error) };
+      console.log(`\n*** The audit and season report were not measured: ${audit.reason} ***\n`);
+    }
   }
 
   const endpointP50 = http.available ? http.concurrent.p50 : null;
@@ -194,18 +227,19 @@ try {
     pgbench,
     audit,
     field,
+    scale,
     ratios: {
       endpointOverSqlP50,
       wrkOverPgbenchP50,
       wrkOverAppStatementP50,
       cpuOverFloor,
-      naiveOverEndpointP50: endpointP50 === null ? null : naive.msPerLookup / endpointP50,
-      naiveOverSqlP50: naive.msPerLookup / sqlFigures.concurrent.p50,
+      naiveOverEndpointP50: endpointP50 === null || !naive ? null : naive.msPerLookup / endpointP50,
+      naiveOverSqlP50: naive ? naive.msPerLookup / sqlFigures.concurrent.p50 : null,
     },
     targets: [
       ...checkInTargets(wrk, wrkOverPgbenchP50, cpuOverFloor),
-      ...auditTargets(audit),
-      ...fieldTargets(field),
+      ...scaleTargets(scale, pgbench, wrk),
+      ...(checkInsOnly ? [] : [...auditTargets(audit), ...fieldTargets(field)]),
     ],
     totalMs: performance.now() - started,
   };

@@ -7,7 +7,8 @@
 -- k+1, k+1+T, …: with as many threads as connections, each connection is one forager with one
 -- session of their own and positions of their own. (wrk's Lua has no hook per connection, only per
 -- thread, so that is how a connection keeps its own cookie.) Without cookies the requests are sent
--- signed out; without bodies, with none.
+-- signed out; without bodies, with none. A body holding @KEY@ (a harvest entry's idempotency key)
+-- is sent with a key of its own each time: the thread, the request's number and the start time.
 local data = dofile(os.getenv("TALLYWOOD_WRK_DATA"))
 
 local threads = {}
@@ -21,7 +22,9 @@ function setup(thread)
 end
 
 local requests = {}
+local keyed = {}
 local sent = 0
+local started = tostring(os.time())
 statuses = {}
 verdicts = {}
 
@@ -44,7 +47,11 @@ function init(args)
     if #mine > 0 then
       headers["Cookie"] = mine[(i - 1) % #mine + 1]
     end
-    if body then
+    if body and string.find(body, "@KEY@", 1, true) then
+      headers["Content-Type"] = "application/json"
+      table.insert(requests, false)
+      table.insert(keyed, { headers = headers, body = body })
+    elseif body then
       headers["Content-Type"] = "application/json"
       table.insert(requests, wrk.format(data.method, data.path, headers, body))
     else
@@ -55,7 +62,13 @@ end
 
 function request()
   sent = sent + 1
-  return requests[(sent - 1) % #requests + 1]
+  local i = (sent - 1) % #requests + 1
+  if requests[i] then
+    return requests[i]
+  end
+  local k = keyed[(sent - 1) % #keyed + 1]
+  local key = "bench-" .. started .. "-" .. index .. "-" .. sent
+  return wrk.format(data.method, data.path, k.headers, (string.gsub(k.body, "@KEY@", key)))
 end
 
 function response(status, headers, body)

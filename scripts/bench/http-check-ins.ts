@@ -13,14 +13,20 @@ const origin = `http://127.0.0.1:${benchPort}`;
  * The newest app build there is (`npm start`'s dist/ or `npm test`'s .local/test-dist); with none,
  * a build of our own into .local/bench-dist (astro.config.mjs reads TALLYWOOD_OUT_DIR).
  */
-export function findOrBuildServer(log: (line: string) => void): { entry: string; built: boolean } {
+export function findOrBuildServer(log: (line: string) => void, { rebuild = false }: { rebuild?: boolean } = {}): { entry: string; built: boolean } {
+  // BENCH_SERVER_ENTRY: another build's server/entry.mjs, to measure an earlier commit with this bench.
+  const given = process.env.BENCH_SERVER_ENTRY;
+  if (given) {
+    if (!existsSync(given)) throw new Error(`BENCH_SERVER_ENTRY names ${given}, which does not exist`);
+    return { entry: given, built: false };
+  }
   const candidates = [join(root, 'dist', 'server', 'entry.mjs'), join(localDir, 'test-dist', 'server', 'entry.mjs'), join(localDir, 'bench-dist', 'server', 'entry.mjs')]
     .filter((file) => existsSync(file))
     .sort((a, b) => statSync(b).mtimeMs - statSync(a).mtimeMs);
   const found = candidates[0];
-  if (found) return { entry: found, built: false };
+  if (found && !rebuild) return { entry: found, built: false };
   const outDir = join(localDir, 'bench-dist');
-  log('no app build found; building into .local/bench-dist (astro build)…');
+  log(`${rebuild ? 'building this checkout' : 'no app build found; building'} into .local/bench-dist (astro build)…`);
   run(bin('astro'), ['build'], { env: { ...process.env, TALLYWOOD_OUT_DIR: outDir }, stdio: ['ignore', 'ignore', 'inherit'] });
   return { entry: join(outDir, 'server', 'entry.mjs'), built: true };
 }

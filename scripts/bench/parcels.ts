@@ -10,6 +10,15 @@ import { between, integerBetween, seededRandom } from './stats';
  */
 export const region = { west: -73.3, east: -71.5, south: 42.8, north: 44.4 } as const;
 
+/**
+ * Past 100 000 parcels (`npm run bench -- --scale` seeds 1 000 000) the land grows, not the density:
+ * parcels 100 000 k … 100 000 (k + 1) − 1 lie in tile k, a copy of the region moved east by k mod 5
+ * and south by ⌊k / 5⌋ region widths and heights, so a lookup meets as many candidates at any size.
+ */
+export const parcelsPerTile = 100_000;
+export const tileColumns = 5;
+export const tileOffset = (tile: number): Position => [(tile % tileColumns) * (region.east - region.west), -Math.floor(tile / tileColumns) * (region.north - region.south)];
+
 /** Metres per degree near 44° N; good enough to shape synthetic parcels (PostGIS computes the real area). */
 const metresPerDegreeLat = 111_132;
 const metresPerDegreeLon = (lat: number) => 111_320 * Math.cos((lat * Math.PI) / 180);
@@ -76,7 +85,8 @@ function holeRing(center: Position, radiusM: number): Ring {
 
 export function syntheticParcel(index: number): SyntheticParcel {
   const random = seededRandom(0x7a11 + index * 7919);
-  const center: Position = [between(random, region.west, region.east), between(random, region.south, region.north)];
+  const [dx, dy] = tileOffset(Math.floor(index / parcelsPerTile));
+  const center: Position = [between(random, region.west, region.east) + dx, between(random, region.south, region.north) + dy];
   const areaM2 = 10_000 * 5 * Math.pow(40, random()); // 5–200 ha, log-uniform
   const multi = random() < 0.05;
   const holed = random() < 0.1;
@@ -110,7 +120,9 @@ export function benchPositions(seed: number, count: number, parcelCount: number)
   return Array.from({ length: count }, () => {
     const accuracyM = Math.round(between(random, 3, 15) * 10) / 10;
     if (random() < 0.3) {
-      return { longitude: between(random, region.west, region.east), latitude: between(random, region.south, region.north), accuracyM, kind: 'random' };
+      const tiles = Math.ceil(parcelCount / parcelsPerTile);
+      const [dx, dy] = tiles > 1 ? tileOffset(Math.floor(random() * tiles)) : [0, 0];
+      return { longitude: between(random, region.west, region.east) + dx, latitude: between(random, region.south, region.north) + dy, accuracyM, kind: 'random' };
     }
     const parcel = syntheticParcel(Math.floor(random() * parcelCount));
     const r = parcel.innerRadiusM;

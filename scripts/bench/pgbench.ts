@@ -4,7 +4,7 @@ import { PgDialect } from 'drizzle-orm/pg-core';
 import { parcelFactsNearQuery } from '../../src/db/field.queries';
 import type { Forager } from '../../src/lib/field/types';
 import { pgBin, root } from '../lib/setup.mjs';
-import { region } from './parcels';
+import { parcelsPerTile, region, tileColumns } from './parcels';
 import { summarise } from './stats';
 import { capture } from './wrk';
 
@@ -13,16 +13,22 @@ import { capture } from './wrk';
  * 3–15 m, as the HTTP positions have: pgbench's \set computes in double precision (pgbench manual,
  * "Built-in Operators").
  */
-const randomPosition = [
-  `\\set lon ${region.west} + random(0, 1000000) * ${(region.east - region.west).toFixed(4)} / 1000000.0`,
-  `\\set lat ${region.south} + random(0, 1000000) * ${(region.north - region.south).toFixed(4)} / 1000000.0`,
-  '\\set acc 3 + random(0, 120) / 10.0',
-];
+function randomPosition(parcels: number): string[] {
+  // Past 100 000 parcels, in a random tile of the region (tileOffset in scripts/bench/parcels.ts).
+  const tiles = Math.max(1, Math.ceil(parcels / parcelsPerTile));
+  const [width, height] = [(region.east - region.west).toFixed(4), (region.north - region.south).toFixed(4)];
+  return [
+    `\\set tile random(0, ${tiles - 1})`,
+    `\\set lon ${region.west} + (:tile % ${tileColumns}) * ${width} + random(0, 1000000) * ${width} / 1000000.0`,
+    `\\set lat ${region.south} - (:tile / ${tileColumns}) * ${height} + random(0, 1000000) * ${height} / 1000000.0`,
+    '\\set acc 3 + random(0, 120) / 10.0',
+  ];
+}
 
 /** The bare candidate lookup of scripts/bench/sql-lookup.ts: candidates, containment and edge distance. */
-export function bareLookupScript(): string {
+export function bareLookupScript(parcels: number): string {
   return [
-    ...randomPosition,
+    ...randomPosition(parcels),
     `select id, ST_Covers(boundary, pt) as covers, ST_Distance(ST_Boundary(boundary)::geography, pt::geography) as edge_m
   from parcels, (select ST_SetSRID(ST_MakePoint(:lon::float8, :lat::float8), 4326) as pt) p
   where ST_DWithin(boundary::geography, pt::geography, :acc::float8);`,
@@ -38,7 +44,7 @@ const literal = (value: unknown) => (typeof value === 'number' ? String(value) :
  * drift from what the app runs: the position's parameters become pgbench variables, the forager's
  * the literals it would send.
  */
-export function appCandidateScript(forager: Forager): string {
+export function appCandidateScript(forager: Forager, parcels: number): string {
   const marks = { longitude: -1234.5, latitude: -2345.5, radiusM: -3456.5 };
   const { sql, params } = new PgDialect().sqlToQuery(parcelFactsNearQuery({ ...marks, forager }));
   const variable = new Map<unknown, string>([[marks.longitude, ':lon'], [marks.latitude, ':lat'], [marks.radiusM, ':acc']]);
@@ -47,7 +53,7 @@ export function appCandidateScript(forager: Forager): string {
     return variable.get(value) ?? literal(value);
   });
   if (!text.includes(':lon') || !text.includes(':acc')) throw new Error('the check-in candidate statement no longer takes the position as parameters');
-  return [...randomPosition, `${text.trim()};`, ''].join('\n');
+  return [...randomPosition(parcels), `${text.trim()};`, ''].join('\n');
 }
 
 export type PgbenchFigures = {

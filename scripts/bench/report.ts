@@ -9,6 +9,24 @@ import type { ProfileFigures } from './cpu-profile';
 import type { PgbenchFigures } from './pgbench';
 import type { SqlFigures } from './sql-lookup';
 import type { WrkResults } from './wrk-check-ins';
+import type { ScaleFigures } from './scale';
+
+export type ScaleResults = ({ available: true } & ScaleFigures) | { available: false; reason: string } | null;
+
+/** Issue 15's scale target: at 1 000 000 parcels the candidate statement's and the check-in's p50 within 1.5× of theirs at 100 000 (null: --scale not asked). */
+export function scaleTargets(scale: ScaleResults, pgbench: PgbenchResults, wrk: WrkResults): Target[] {
+  if (scale === null) return [];
+  const ratio = (big: number | undefined, small: number | undefined) => (big === undefined || small === undefined ? null : big / small);
+  const statement = scale.available && pgbench.available ? ratio(scale.app.p50, pgbench.app.p50) : null;
+  const bare = scale.available && pgbench.available ? ratio(scale.bare.p50, pgbench.bare.p50) : null;
+  const endpoint = scale.available && wrk.available ? ratio(scale.checkIns.p50, wrk.checkIns.p50) : null;
+  const within = (value: number | null) => (value === null ? null : value <= 1.5);
+  return [
+    { name: "check-in's candidate statement p50, 1M / 100k parcels (pgbench)", value: statement, target: '≤ 1.5', met: within(statement) },
+    { name: 'bare candidate query p50, 1M / 100k parcels (pgbench)', value: bare, target: '≤ 1.5', met: within(bare) },
+    { name: 'check-in p50, 1M / 100k parcels (wrk)', value: endpoint, target: '≤ 1.5', met: within(endpoint) },
+  ];
+}
 
 export type AuditResults = (AuditFigures & { available: true; seeding: { seeded: number; ms: number; limitsAdded: number } }) | { available: false; reason: string };
 
@@ -45,11 +63,14 @@ export function checkInTargets(wrk: WrkResults, endpointOverQueryP50: number | n
   const at = (check: (w: Extract<WrkResults, { available: true }>) => number) => (wrk.available ? check(wrk) : null);
   const perSecond = at((w) => w.checkIns.perSecond);
   const p95 = at((w) => w.checkIns.p95);
+  // Only entries answered 201 (recorded) count.
+  const entries = wrk.available && wrk.entries.available ? (wrk.entries.statuses['201'] ?? 0) / wrk.entries.seconds : null;
   return [
     { name: 'check-ins per second (wrk)', value: perSecond, target: '≥ 1000', met: perSecond === null ? null : perSecond >= 1000 },
     { name: 'check-in p95 ms (wrk)', value: p95, target: '≤ 10', met: p95 === null ? null : p95 <= 10 },
     { name: 'check-in p50 / bare candidate query p50 (pgbench)', value: endpointOverQueryP50, target: '≤ 4', met: endpointOverQueryP50 === null ? null : endpointOverQueryP50 <= 4 },
     { name: 'app CPU per check-in / per signed-out GET /api/me', value: cpuOverFloor, target: '≤ 4', met: cpuOverFloor === null ? null : cpuOverFloor <= 4 },
+    { name: 'entries recorded per second, 8 foragers on parcels of their own (wrk)', value: entries, target: '≥ 300', met: entries === null ? null : entries >= 300 },
   ];
 }
 
@@ -74,13 +95,14 @@ export type BenchResults = {
   parcels: ParcelFigures;
   seeding: { seeded: number; ms: number };
   sql: SqlFigures;
-  naive: NaiveFigures;
+  naive: NaiveFigures | null;
   http: HttpFigures & { entry: string | null };
   wrk: WrkResults;
   pgbench: PgbenchResults;
   audit: AuditResults;
   field: FieldResults;
-  ratios: { endpointOverSqlP50: number | null; wrkOverPgbenchP50: number | null; wrkOverAppStatementP50: number | null; cpuOverFloor: number | null; naiveOverEndpointP50: number | null; naiveOverSqlP50: number };
+  scale: ScaleResults;
+  ratios: { endpointOverSqlP50: number | null; wrkOverPgbenchP50: number | null; wrkOverAppStatementP50: number | null; cpuOverFloor: number | null; naiveOverEndpointP50: number | null; naiveOverSqlP50: number | null };
   targets: Target[];
   totalMs: number;
 };
@@ -97,6 +119,7 @@ function rows(r: BenchResults): string[][] {
     const w = wrk.checkIns;
     out.push([`POST /api/check-ins, wrk`, `${w.connections} connections, ${w.seconds.toFixed(0)} s`, ms(w.p50), ms(w.p95), rate(w.perSecond)]);
     out.push([`floor: GET /api/me signed out, wrk`, `${wrk.floor.connections} connections, ${wrk.floor.seconds.toFixed(0)} s`, ms(wrk.floor.p50), ms(wrk.floor.p95), rate(wrk.floor.perSecond)]);
+    if (wrk.entries.available) out.push([`POST /api/harvest-entries, wrk`, `${wrk.entries.connections} foragers, ${wrk.entries.seconds.toFixed(0)} s`, ms(wrk.entries.p50), ms(wrk.entries.p95), rate(wrk.entries.perSecond)]);
     out.push([`POST /api/check-ins, wrk, under --cpu-prof`, `${wrk.profiled.connections} connections, ${wrk.profiled.seconds.toFixed(0)} s`, ms(wrk.profiled.p50), ms(wrk.profiled.p95), rate(wrk.profiled.perSecond)]);
   }
   if (pgbench.available) {
@@ -107,12 +130,18 @@ function rows(r: BenchResults): string[][] {
   out.push(
     ['bare SQL from Node (cross-check)', `${sql.concurrent.concurrency} connections`, ms(sql.concurrent.p50), ms(sql.concurrent.p95), rate(sql.concurrent.perSecond)],
     ['bare SQL from Node, one connection', 'serial', ms(sql.serial.p50), ms(sql.serial.p95), rate(1000 / sql.serial.mean)],
-    ['naive turf scan of every parcel', `${naive.points} points`, ms(naive.msPerLookup), '', rate(1000 / naive.msPerLookup)],
   );
+  if (naive) out.push(['naive turf scan of every parcel', `${naive.points} points`, ms(naive.msPerLookup), '', rate(1000 / naive.msPerLookup)]);
   if (http.available) {
     out.push(['POST /api/check-ins from Node (cross-check)', `${http.concurrent.concurrency} clients`, ms(http.concurrent.p50), ms(http.concurrent.p95), rate(http.concurrent.perSecond)]);
     out.push(['POST /api/check-ins from Node, one client', 'serial', ms(http.serial.p50), ms(http.serial.p95), rate(1000 / http.serial.mean)]);
     out.push(['floor: GET /api/me signed out from Node', `${http.concurrent.concurrency} clients`, ms(http.floor.p50), ms(http.floor.p95), rate(http.floor.perSecond)]);
+  }
+  if (r.scale?.available) {
+    const { scale } = r;
+    out.push([`POST /api/check-ins, wrk, ${count(scale.parcels)} parcels`, `${scale.checkIns.connections} connections, ${scale.checkIns.seconds.toFixed(0)} s`, ms(scale.checkIns.p50), ms(scale.checkIns.p95), rate(scale.checkIns.perSecond)]);
+    out.push([`bare candidate query, pgbench, ${count(scale.parcels)} parcels`, `${scale.bare.clients} clients, ${scale.bare.seconds} s`, ms(scale.bare.p50), ms(scale.bare.p95), rate(scale.bare.tps)]);
+    out.push([`check-in's candidate statement, pgbench, ${count(scale.parcels)}`, `${scale.app.clients} clients, ${scale.app.seconds} s`, ms(scale.app.p50), ms(scale.app.p95), rate(scale.app.tps)]);
   }
   const { audit } = r;
   if (audit.available) {
@@ -142,6 +171,11 @@ function summaryLines(r: BenchResults): string[] {
         `app CPU ${cpu(wrk.checkIns.serverCpuMsPerRequest)} per check-in, ${cpu(wrk.floor.serverCpuMsPerRequest)} per signed-out GET /api/me (${times(r.ratios.cpuOverFloor)}); ` +
         `under --cpu-prof ${rate(wrk.profiled.perSecond)}/s (${ms(wrk.profiled.p50)} ms p50)`
       : `wrk: NOT MEASURED — ${wrk.reason}`,
+    wrk.available
+      ? wrk.entries.available
+        ? `wrk entries: ${wrk.entries.requests} requests from ${wrk.entries.connections} foragers on ${wrk.entries.parcels} parcels, statuses ${JSON.stringify(wrk.entries.statuses)}, p50 ${ms(wrk.entries.p50)}, p95 ${ms(wrk.entries.p95)} ms; app CPU ${cpu(wrk.entries.serverCpuMsPerRequest)} per entry`
+        : `wrk entries: NOT MEASURED — ${wrk.entries.reason}`
+      : 'wrk entries: NOT MEASURED',
     pgbench.available
       ? [pgbench.bare, pgbench.app]
           .map((f) => `pgbench ${f.label}: ${f.transactions} transactions (${f.failed} failed), ${rate(f.tps)} tps, latency average ${ms(f.latencyAverage)} ms (the select ${f.statementAverage === null ? '—' : ms(f.statementAverage)} ms), p50 ${ms(f.p50)}, p95 ${ms(f.p95)}, p99 ${ms(f.p99)} ms`)
@@ -152,14 +186,17 @@ function summaryLines(r: BenchResults): string[] {
     `machine: ${r.machine.cpus} CPU cores (${r.machine.cpuModel}), ${r.machine.memoryGb} GB, Node ${r.machine.node}, PostgreSQL ${r.machine.postgres}, PostGIS ${r.machine.postgis}`,
     `seeding: ${r.seeding.seeded.toLocaleString('en-US')} parcels in ${(r.seeding.ms / 1000).toFixed(1)} s; whole run ${(r.totalMs / 1000).toFixed(1)} s`,
     `SQL: ${r.sql.meanCandidates.toFixed(2)} candidates per lookup, ${(100 * r.sql.coveredShare).toFixed(0)} % of positions inside a parcel; GiST index on boundary::geography used: ${r.sql.indexUsed ? 'yes' : 'NO'}`,
-    `naive scan: boundaries loaded in ${(r.naive.loadMs / 1000).toFixed(1)} s; its answers match PostGIS ST_Covers at ${r.naive.matchesPostgis} of ${r.naive.points} points`,
+    r.naive ? `naive scan: boundaries loaded in ${(r.naive.loadMs / 1000).toFixed(1)} s; its answers match PostGIS ST_Covers at ${r.naive.matchesPostgis} of ${r.naive.points} points` : 'naive scan: left out',
     r.http.available
       ? `endpoint: ${r.http.concurrent.count} requests measured (${r.http.concurrent.failures} failed), statuses ${JSON.stringify(r.http.statuses)}, verdicts ${JSON.stringify(r.http.verdicts)}; ` +
         `app server CPU ${r.http.concurrent.serverCpuMsPerRequest === null ? '—' : r.http.concurrent.serverCpuMsPerRequest.toFixed(2)} ms per check-in; server ${r.http.entry}`
       : `endpoint: NOT MEASURED — ${r.http.reason}${r.http.entry ? ` (server ${r.http.entry})` : ''}`,
+    ...(r.scale === null ? [] : r.scale.available
+      ? [`scale: ${count(r.scale.parcels)} parcels (${r.scale.seeding.seeded > 0 ? `seeded in ${(r.scale.seeding.ms / 1000).toFixed(0)} s` : 'seeded before'}); check-in statuses ${JSON.stringify(r.scale.checkIns.statuses)}, verdicts ${JSON.stringify(r.scale.checkIns.verdicts)}`]
+      : [`scale: NOT MEASURED — ${r.scale.reason}`]),
     ...auditLines(r.audit),
     ...fieldLines(r.field),
-    `ratios (Node-driven, cross-check): endpoint p50 / bare SQL p50 = ${times(r.ratios.endpointOverSqlP50)}; naive scan / endpoint p50 = ${times(r.ratios.naiveOverEndpointP50)}; naive scan / bare SQL p50 = ${times(r.ratios.naiveOverSqlP50)}`,
+    `ratios (Node-driven, cross-check): endpoint p50 / bare SQL p50 = ${times(r.ratios.endpointOverSqlP50)}; naive scan / endpoint p50 = ${times(r.ratios.naiveOverEndpointP50)}; naive scan / bare SQL p50 = ${times(r.ratios.naiveOverSqlP50 ?? null)}`,
   ];
 }
 

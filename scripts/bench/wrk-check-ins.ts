@@ -1,5 +1,5 @@
 import type { ChildProcess } from 'node:child_process';
-import { mkdirSync, rmSync } from 'node:fs';
+import { existsSync, mkdirSync, readFileSync, rmSync } from 'node:fs';
 import { join } from 'node:path';
 import { localDir } from '../lib/setup.mjs';
 import { topSelfTime, type ProfileFigures } from './cpu-profile';
@@ -17,6 +17,8 @@ export type WrkResults =
       /** The same check-in load again, on a server started with `node --cpu-prof`: its figures show the profiler's cost. */
       profiled: WrkFigures;
       profile: ProfileFigures;
+      /** POST /api/harvest-entries from wrk: each connection a bench member recording on a parcel of their own. */
+      entries: (WrkFigures & { available: true; parcels: number }) | { available: false; reason: string };
     }
   | { available: false; reason: string };
 
@@ -25,6 +27,8 @@ type Options = {
   databaseUrl: string;
   tokens: string[];
   positions: BenchPosition[];
+  /** Positions well inside bench parcels (more than connections), where the members check in to record entries. */
+  entryPositions: BenchPosition[];
   connections: number;
   threads: number;
   seconds: number;
@@ -34,18 +38,43 @@ type Options = {
 const warmUpSeconds = 3;
 
 /**
+ * Waits until the jobs the server runs as it starts (date changes and reminders, over every bench
+ * parcel, with their retries) have ended, done or failed, and no job has logged for 15 s, so the
+ * figures are a running server's (at most three minutes).
+ */
+export async function startUpJobsOver(logFile: string, log: (line: string) => void): Promise<void> {
+  const started = performance.now();
+  const lines = () => (existsSync(logFile) ? readFileSync(logFile, 'utf8').split('\n') : []);
+  const ended = (all: string[], job: string) => all.some((line) => line.includes(`"job":"${job}"`) && /"msg":"job (done|failed)"/.test(line));
+  let [jobLines, quietSince] = [-1, performance.now()];
+  for (;;) {
+    const all = lines();
+    const count = all.filter((line) => line.includes('"job":"')).length;
+    if (count !== jobLines) [jobLines, quietSince] = [count, performance.now()];
+    if (ended(all, 'date-changes') && ended(all, 'reminders') && performance.now() - quietSince >= 15_000) break;
+    if (performance.now() - started > 180_000) {
+      log('the start-up jobs had not settled after 3 minutes; measuring anyway');
+      return;
+    }
+    await new Promise((resolve) => setTimeout(resolve, 500));
+  }
+  log(`the start-up jobs ended and were quiet for 15 s, ${((performance.now() - started) / 1000).toFixed(1)} s after the server answered`);
+}
+
+/**
  * The check-in under wrk (a C load generator: the load does not take the app's event loop or much
  * of its CPU): a warm-up, the measured run, and the signed-out floor on a plain server; then the
  * check-in run again on a server started with `--cpu-prof`, whose profile is read for the samples
  * of that run only.
  */
-export async function measureWithWrk({ entry, databaseUrl, tokens, positions, connections, threads, seconds, log }: Options): Promise<WrkResults> {
+export async function measureWithWrk({ entry, databaseUrl, tokens, positions, entryPositions, connections, threads, seconds, log }: Options): Promise<WrkResults> {
   const url = `http://127.0.0.1:${benchPort}`;
   const cookies = tokens.map((token) => `authjs.session-token=${token}`);
   const load = { cookies, positions, threads, connections };
   let server: ChildProcess | null = null;
   try {
     server = await startServer(entry, databaseUrl, { logFile: join(localDir, 'bench', 'app-wrk.log') });
+    await startUpJobsOver(join(localDir, 'bench', 'app-wrk.log'), log);
     log(`wrk: warm-up, ${warmUpSeconds} s…`);
     await runWrk({ ...load, url: `${url}/api/check-ins`, method: 'POST', seconds: warmUpSeconds, serverPid: server.pid, label: 'warm-up' });
     log(`wrk: POST /api/check-ins, ${connections} connections on ${threads} threads, ${seconds} s…`);
@@ -54,6 +83,15 @@ export async function measureWithWrk({ entry, databaseUrl, tokens, positions, co
     const floor = await runWrk({ ...load, cookies: [], positions: [], url: `${url}/api/me`, method: 'GET', seconds, serverPid: server.pid, label: 'floor' });
     const floorStatuses = Object.keys(floor.statuses);
     if (floorStatuses.some((s) => s !== '401')) throw new Error(`GET /api/me signed out answered ${JSON.stringify(floor.statuses)}, not only 401`);
+    let entries: Extract<WrkResults, { available: true }>['entries'];
+    try {
+      const bodies = await openVisits(url, cookies.slice(0, connections), entryPositions);
+      log(`wrk: POST /api/harvest-entries, ${connections} foragers each on a parcel of their own, ${seconds} s…`);
+      const figures = await runWrk({ ...load, cookies: cookies.slice(0, connections), bodies, url: `${url}/api/harvest-entries`, method: 'POST', seconds, serverPid: server.pid, label: 'entries' });
+      entries = { available: true, parcels: bodies.length, ...figures };
+    } catch (error) {
+      entries = { available: false, reason: error instanceof Error ? error.message : String(error) };
+    }
     await stopServer(server);
     server = null;
 
@@ -62,6 +100,7 @@ export async function measureWithWrk({ entry, databaseUrl, tokens, positions, co
     mkdirSync(profileDir, { recursive: true });
     log('wrk: the check-in run again on a server under node --cpu-prof…');
     server = await startServer(entry, databaseUrl, { nodeOptions: ['--cpu-prof', `--cpu-prof-dir=${profileDir}`], logFile: join(localDir, 'bench', 'app-wrk-profiled.log') });
+    await startUpJobsOver(join(localDir, 'bench', 'app-wrk-profiled.log'), log);
     await runWrk({ ...load, url: `${url}/api/check-ins`, method: 'POST', seconds: warmUpSeconds, serverPid: server.pid, label: 'warm-up' });
     const started = performance.now();
     const profiled = await runWrk({ ...load, url: `${url}/api/check-ins`, method: 'POST', seconds, serverPid: server.pid, label: 'profiled' });
@@ -69,10 +108,40 @@ export async function measureWithWrk({ entry, databaseUrl, tokens, positions, co
     await stopServer(server);
     server = null;
     const profile = topSelfTime(profileDir, performance.now() - started);
-    return { available: true, checkIns, floor, profiled, profile };
+    return { available: true, checkIns, floor, profiled, profile, entries };
   } catch (error) {
     return { available: false, reason: error instanceof Error ? error.message : String(error) };
   } finally {
     await stopServer(server);
   }
+}
+
+/**
+ * Each member checks in on a parcel no other member is on (clear, so a visit opens), and gets the
+ * body of an entry to record there again and again: 0.1 g of the bench species, a key of its own
+ * each time (`@KEY@`, filled by the Lua script). The bench allowance's limit is 2 kg a day.
+ */
+async function openVisits(url: string, cookies: string[], positions: BenchPosition[]): Promise<string[]> {
+  const taken = new Set<string>();
+  const bodies: string[] = [];
+  let next = 0;
+  for (const cookie of cookies) {
+    let body: string | null = null;
+    while (!body && next < positions.length) {
+      const { longitude, latitude } = positions[next++] as BenchPosition;
+      const response = await fetch(`${url}/api/check-ins`, {
+        method: 'POST',
+        headers: { cookie, origin: url, 'content-type': 'application/json' },
+        body: JSON.stringify({ longitude, latitude, accuracyM: 3 }),
+      });
+      const answer = (await response.json()) as { verdict?: string; visitId?: string | null; parcel?: { id: string } | null; species?: { speciesId: string; inSeason: boolean }[] };
+      const species = answer.species?.find((s) => s.inSeason);
+      if (answer.verdict !== 'clear' || !answer.visitId || !answer.parcel || taken.has(answer.parcel.id) || !species) continue;
+      taken.add(answer.parcel.id);
+      body = JSON.stringify({ idempotencyKey: '@KEY@', visitId: answer.visitId, speciesId: species.speciesId, method: 'pick', quantities: [{ quantity: '0.1', unit: 'g' }] });
+    }
+    if (!body) throw new Error('could not open a visit on a parcel of its own for every bench member');
+    bodies.push(body);
+  }
+  return bodies;
 }

@@ -54,6 +54,8 @@ type Load = {
   method: 'GET' | 'POST';
   cookies: string[];
   positions: BenchPosition[];
+  /** Bodies to send instead of check-ins at `positions`; `@KEY@` in one is replaced by a fresh key per request. */
+  bodies?: string[];
   threads: number;
   connections: number;
   seconds: number;
@@ -68,12 +70,12 @@ const luaString = (value: string) => `"${value.replace(/\\/g, '\\\\').replace(/"
  * its own cookies and sends its own positions (the Lua script says how), and done() prints the
  * counts and percentiles on one line that is parsed here.
  */
-export async function runWrk({ url, method, cookies, positions, threads, connections, seconds, serverPid, label }: Load): Promise<WrkFigures> {
+export async function runWrk({ url, method, cookies, positions, bodies: given, threads, connections, seconds, serverPid, label }: Load): Promise<WrkFigures> {
   const dir = join(root, '.local', 'bench');
   mkdirSync(dir, { recursive: true });
   const dataFile = join(dir, `wrk-${label}.lua`);
   const { origin, pathname } = new URL(url);
-  const bodies = positions.map(({ longitude, latitude, accuracyM }) => JSON.stringify({ longitude, latitude, accuracyM }));
+  const bodies = given ?? positions.map(({ longitude, latitude, accuracyM }) => JSON.stringify({ longitude, latitude, accuracyM }));
   writeFileSync(
     dataFile,
     [

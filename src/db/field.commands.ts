@@ -1,14 +1,17 @@
-import { and, desc, eq, isNull, sql } from 'drizzle-orm';
+import { and, desc, eq, isNull, sql, type SQL } from 'drizzle-orm';
+import { PgDialect } from 'drizzle-orm/pg-core';
 import type { CountingFacts, FlagDecision } from '../lib/field/counting';
 import type { Forager, LonLat, Method, Tally, Verdict } from '../lib/field/types';
 import type { Measure, Unit } from '../lib/units';
-import type { Db, Executor, Tx } from './client';
+import { isPool, type Db, type Executor, type Tx } from './client';
 import { allowances, checkIns, flags, harvestEntries, harvestQuantities, visits, type Flag } from './schema';
 
 /**
  * Writes of the field: visits and check-ins, ledger entries with their quantities, and flags.
  * The use cases in src/server/field/ decide; these only read and write rows.
  */
+
+const dialect = new PgDialect();
 
 /** The instant a visit's local day ends, in SQL: the next local midnight in its parcel's zone (DST-correct). */
 export const visitEnds = sql`((v.local_date + 1)::timestamp at time zone (select p.time_zone from parcels p where p.id = v.parcel_id))`;
@@ -39,42 +42,87 @@ type CheckInRecord = {
  * one. A forager is on one parcel at a time: any other open visit ends (at its local midnight if
  * that has passed). Check-ins of one forager take turns (a transaction lock on the forager), and a
  * unique index allows one open visit, so simultaneous check-ins leave exactly one. Returns the visit.
+ *
+ * One statement does it all (checkInStatement), after the lock in the same transaction: under READ
+ * COMMITTED each statement reads a snapshot taken when it starts (PostgreSQL manual §13.2.1), so it
+ * sees the visits as the forager's previous check-in left them. On the pool the statements (`first`,
+ * a read the caller wants answered before the check-in is logged; begin, lock, the check-in,
+ * commit) are sent at once on one connection (postgres.js pipelines queries not yet answered), so
+ * logging a check-in costs one round trip to the database, not seven. Returns the visit, and the
+ * rows `first` read.
  */
-export async function recordCheckIn(db: Db, r: CheckInRecord): Promise<string | null> {
-  const instant = r.now.toISOString();
-  const logged = (tx: Executor, visitId: string | null) =>
-    tx.insert(checkIns).values({
-      foragerId: r.forager.id,
-      position: { type: 'Point', coordinates: r.position },
-      accuracyM: r.accuracyM,
-      verdict: r.verdict,
-      parcelId: r.parcelId,
-      visitId,
-      at: r.now,
-      receivedAt: r.now,
-      positionSource: r.source ?? 'gps',
-    });
-  const { visit, parcelId } = r;
-  if (!visit || !parcelId) {
-    await logged(db, null);
-    return null;
+export async function recordCheckIn(db: Executor, r: CheckInRecord, { first }: { first?: SQL } = {}): Promise<{ visitId: string | null; firstRows: Record<string, unknown>[] }> {
+  const statement = checkInStatement(r);
+  const lock = r.visit && r.parcelId ? sql`select pg_advisory_xact_lock(hashtextextended(${`visits:${r.forager.id}`}, 0))` : null;
+  const client = isPool(db) ? db.$client : null;
+  if (!client) {
+    const firstRows = first ? ((await db.execute(first)) as unknown as Record<string, unknown>[]) : [];
+    const run = async (tx: Executor) => {
+      if (lock) await tx.execute(lock);
+      const [row] = (await tx.execute(statement)) as unknown as { visit_id: string | null }[];
+      return row?.visit_id ?? null;
+    };
+    return { visitId: lock ? await db.transaction(run) : await run(db), firstRows };
   }
-  return db.transaction(async (tx) => {
-    await tx.execute(sql`select pg_advisory_xact_lock(hashtextextended(${`visits:${r.forager.id}`}, 0))`);
-    await tx.execute(sql`
+  const connection = await client.reserve();
+  try {
+    const send = (query: SQL) => {
+      const { sql: text, params } = dialect.sqlToQuery(query);
+      return connection.unsafe(text, params as never[]);
+    };
+    // Sent without waiting for each answer; an error rolls the transaction back before the connection is released.
+    const sent = [
+      first ? send(first) : Promise.resolve([]),
+      ...(lock ? [connection.unsafe('begin'), send(lock)] : []),
+      send(statement),
+      ...(lock ? [connection.unsafe('commit')] : []),
+    ];
+    const settled = await Promise.allSettled(sent);
+    const failed = settled.find((s): s is PromiseRejectedResult => s.status === 'rejected');
+    if (failed) {
+      if (lock) await connection.unsafe('rollback').catch(() => {});
+      throw failed.reason;
+    }
+    const firstRows = (await sent[0]) as unknown as Record<string, unknown>[];
+    const [row] = (await sent[lock ? 3 : 1]) as unknown as { visit_id: string | null }[];
+    return { visitId: row?.visit_id ?? null, firstRows };
+  } finally {
+    connection.release();
+  }
+}
+
+/**
+ * The check-in's row and, for a clear verdict, its visit, in one statement: the forager's open visit
+ * on another parcel or day (or past its local midnight) ends; the one on this parcel today is kept,
+ * else one opens; the check-in names it. Data-modifying WITH queries all read the statement's one
+ * snapshot (PostgreSQL manual §7.8.4), so `kept` leaves out the visit `ended` closes.
+ */
+function checkInStatement(r: CheckInRecord) {
+  const instant = r.now.toISOString();
+  const position = sql`ST_SetSRID(ST_MakePoint(${r.position[0]}::float8, ${r.position[1]}::float8), 4326)`;
+  const row = (visitId: SQL) => sql`
+    insert into check_ins (forager_id, position, accuracy_m, verdict, parcel_id, visit_id, at, received_at, position_source)
+    values (${r.forager.id}, ${position}, ${r.accuracyM}::float8, ${r.verdict}::verdict, ${r.parcelId}::uuid, ${visitId},
+      ${instant}::timestamptz, ${instant}::timestamptz, ${r.source ?? 'gps'}::position_source)
+    returning visit_id`;
+  const { visit, parcelId } = r;
+  if (!visit || !parcelId) return row(sql`null::uuid`);
+  return sql`
+    with ended as (
       update visits v set
         ended_at = least(${visitEnds}, ${instant}::timestamptz),
         ended_by = case when ${visitEnds} <= ${instant}::timestamptz then 'end-of-day'::visit_end else 'check-out'::visit_end end
       where v.forager_id = ${r.forager.id} and v.ended_at is null
-        and (${visitEnds} <= ${instant}::timestamptz or v.parcel_id <> ${parcelId}::uuid or v.local_date <> ${visit.localDate}::date)`);
-    const [open] = await tx.select({ id: visits.id }).from(visits).where(and(eq(visits.foragerId, r.forager.id), isNull(visits.endedAt)));
-    const visitId =
-      open?.id ??
-      (await tx.insert(visits).values({ foragerId: r.forager.id, parcelId, permitId: visit.permitId, localDate: visit.localDate, startedAt: r.now }).returning({ id: visits.id }))[0]?.id ??
-      null;
-    await logged(tx, visitId);
-    return visitId;
-  });
+        and (${visitEnds} <= ${instant}::timestamptz or v.parcel_id <> ${parcelId}::uuid or v.local_date <> ${visit.localDate}::date)
+      returning v.id),
+    kept as (
+      select v.id from visits v where v.forager_id = ${r.forager.id} and v.ended_at is null and v.id not in (select id from ended)),
+    opened as (
+      insert into visits (forager_id, parcel_id, permit_id, local_date, started_at)
+      select ${r.forager.id}, ${parcelId}::uuid, ${visit.permitId}::uuid, ${visit.localDate}::date, ${instant}::timestamptz
+      where not exists (select 1 from kept)
+      returning id)
+    ${row(sql`(select id from kept union all select id from opened limit 1)`)}`;
 }
 
 export async function checkOut(db: Executor, { visitId, foragerId, now }: { visitId: string; foragerId: string; now: Date }) {

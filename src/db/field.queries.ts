@@ -1,6 +1,6 @@
 import { sql, type SQL } from 'drizzle-orm';
 import type { UsageWindow } from '../lib/field/counting';
-import type { Forager, ParcelFacts, ScopeUsage, Usage } from '../lib/field/types';
+import type { Forager, MeasuredParcelFacts, ParcelFacts, ScopeUsage, Usage } from '../lib/field/types';
 import type { Measure } from '../lib/units';
 import { executePrepared, type Executor } from './client';
 
@@ -13,12 +13,14 @@ const uuidArray = (ids: readonly string[]) => sql`${`{${ids.join(',')}}`}::uuid[
  * current terms, this forager's permits (personal and through their clubs) and the allowances in
  * force with every limit that applies to them, gathered by key beside each parcel.
  */
-function parcelFactsQuery(forager: Forager, where: SQL) {
+function parcelFactsQuery(forager: Forager, where: SQL, at?: At) {
   const clubs = uuidArray(forager.clubIds);
+  // Measured at a position: PostGIS's facts about it in place of the boundary (MeasuredPosition in src/lib/field/types.ts).
+  const shape = (g: SQL) => (at ? measured(g) : sql`ST_AsGeoJSON(${g})::json`);
   return sql`
-    select p.id, p.name, p.time_zone, p.nearing_threshold_percent, ST_AsGeoJSON(p.boundary)::json as boundary,
+    select p.id, p.name, p.time_zone, p.nearing_threshold_percent, ${shape(sql`p.boundary`)} as ${sql.raw(at ? 'at' : 'boundary')},
       (select t.id from terms t where t.parcel_id = p.id order by t.version desc limit 1) as current_terms_id,
-      coalesce((select json_agg(json_build_object('id', z.id, 'name', z.name, 'reason', z.reason, 'boundary', ST_AsGeoJSON(z.boundary)::json))
+      coalesce((select json_agg(json_build_object('id', z.id, 'name', z.name, 'reason', z.reason, ${sql.raw(at ? "'at'" : "'boundary'")}, ${shape(sql`z.boundary`)}))
         from no_harvest_zones z where z.parcel_id = p.id), '[]') as zones,
       coalesce((select json_agg(json_build_object('startsOn', c.starts_on::text, 'endsOn', c.ends_on::text, 'reason', c.reason))
         from closures c where c.parcel_id = p.id), '[]') as closures,
@@ -35,8 +37,20 @@ function parcelFactsQuery(forager: Forager, where: SQL) {
             where l.allowance_id = a.id and (l.permit_id is null or lp.holder_user_id = ${forager.id}::text or lp.holder_club_id = any(${clubs}))), '[]'))
           order by s.common_name)
         from allowances a join species s on s.id = a.species_id where a.parcel_id = p.id and a.removed_at is null), '[]') as allowances
-    from parcels p
+    from parcels p${at ? sql` cross join (select ST_SetSRID(ST_MakePoint(${at.longitude}::float8, ${at.latitude}::float8), 4326) as pt) here` : sql``}
     where ${where}`;
+}
+
+type At = { longitude: number; latitude: number };
+
+/**
+ * What PostGIS measures of the position (`here.pt`) against a boundary: covered in the plane
+ * (`ST_Covers`, as the engine's boundaryContains decides) and the geodesic metres to the nearest
+ * edge on the WGS 84 spheroid (geography `ST_Distance` to `ST_Boundary`, as distanceToEdgeM measures).
+ */
+function measured(g: SQL) {
+  return sql`json_build_object('covered', ST_Covers(${g}, here.pt),
+      'distanceToEdgeM', ST_Distance(ST_Boundary(${g})::geography, here.pt::geography))`;
 }
 
 /** Listed parcels where the forager or one of their clubs holds an approved or active permit. */
@@ -65,19 +79,36 @@ function knownToForager(forager: Forager) {
  * boundary's geography (ST_DWithin on geography uses it; no scan of every parcel), and only those
  * the forager may know of count. Its generic plan is checked in tests/integration/check-in-plans.test.ts.
  */
-export function parcelFactsNearQuery({ longitude, latitude, radiusM, forager }: FactsNear) {
+export function parcelFactsNearQuery({ longitude, latitude, radiusM, forager }: FactsNear, { measure = true }: { measure?: boolean } = {}) {
+  const here = sql`ST_SetSRID(ST_MakePoint(${longitude}::float8, ${latitude}::float8), 4326)`;
   return parcelFactsQuery(forager, sql`${knownToForager(forager)}
-      and ST_DWithin(p.boundary::geography, ST_SetSRID(ST_MakePoint(${longitude}::float8, ${latitude}::float8), 4326)::geography, ${radiusM}::float8)`);
+      and ST_DWithin(p.boundary::geography, ${measure ? sql`here.pt` : here}::geography, ${radiusM}::float8)`, measure ? { longitude, latitude } : undefined);
 }
 
 /**
  * The parcels the forager may know of whose bounding box holds the position (the GiST index on the
- * boundary): asked only when no parcel is near, so one standing in a parcel's cut-out hears of it.
+ * boundary), with their boundaries, for a check-in synced from a device.
  */
 export async function loadParcelFactsAround(db: Executor, { longitude, latitude, forager }: Omit<FactsNear, 'radiusM'>): Promise<ParcelFacts[]> {
   const rows = await db.execute<Row>(parcelFactsQuery(forager, sql`${knownToForager(forager)}
       and p.boundary && ST_SetSRID(ST_MakePoint(${longitude}::float8, ${latitude}::float8), 4326)`));
   return rows.map(toFacts);
+}
+
+function toMeasured(p: Row): MeasuredParcelFacts {
+  return {
+    id: String(p.id),
+    name: String(p.name),
+    timeZone: String(p.time_zone),
+    nearingThresholdPercent: Number(p.nearing_threshold_percent),
+    at: p.at as MeasuredParcelFacts['at'],
+    currentTermsId: (p.current_terms_id as string | null) ?? null,
+    zones: p.zones as MeasuredParcelFacts['zones'],
+    closures: p.closures as ParcelFacts['closures'],
+    hazards: p.hazards as ParcelFacts['hazards'],
+    permits: p.permits as ParcelFacts['permits'],
+    allowances: p.allowances as ParcelFacts['allowances'],
+  };
 }
 
 function toFacts(p: Row): ParcelFacts {
@@ -96,9 +127,14 @@ function toFacts(p: Row): ParcelFacts {
   };
 }
 
-/** The parcels within `radiusM` of a position that the forager may know of, with everything the engine needs, in one statement. */
+/** The parcels within `radiusM` of a position that the forager may know of, with their boundaries and everything the engine needs. */
 export async function loadParcelFactsNear(db: Executor, near: FactsNear): Promise<ParcelFacts[]> {
-  return (await executePrepared<Row>(db, parcelFactsNearQuery(near))).map(toFacts);
+  return (await executePrepared<Row>(db, parcelFactsNearQuery(near, { measure: false }))).map(toFacts);
+}
+
+/** The parcels within `radiusM` of a position that the forager may know of, measured there, with everything the engine needs, in one statement. */
+export async function loadMeasuredParcelsNear(db: Executor, near: FactsNear): Promise<MeasuredParcelFacts[]> {
+  return (await executePrepared<Row>(db, parcelFactsNearQuery(near))).map(toMeasured);
 }
 
 /** One parcel's facts by its id (a harvest or a correction names its parcel through a visit or an entry). */
@@ -148,11 +184,15 @@ type UsageRow = { parcel_id: string; species_id: string; measure: Measure; visit
  * Returns the usage per parcel, and the visit each parcel's visit total was read from.
  */
 export async function loadUsage(db: Executor, { forager, windows }: { forager: Forager; windows: UsageWindow[] }): Promise<{ usage: Map<string, Usage>; visits: Map<string, string | null> }> {
+  if (windows.length === 0) return usageOf([]);
+  return usageOf(await executePrepared<UsageRow>(db, usageQuery({ forager, windows })));
+}
+
+/** loadUsage's answer from the rows of its statement (usageQuery), however they were sent. */
+export function usageOf(rows: readonly Record<string, unknown>[]): { usage: Map<string, Usage>; visits: Map<string, string | null> } {
   const usage = new Map<string, Usage>();
   const visits = new Map<string, string | null>();
-  if (windows.length === 0) return { usage, visits };
-  const rows = await executePrepared<UsageRow>(db, usageQuery({ forager, windows }));
-  for (const r of rows) {
+  for (const r of rows as UsageRow[]) {
     const parcel = usage.get(r.parcel_id) ?? {};
     const species = (parcel[r.species_id] ??= {});
     const scopes: ScopeUsage = { visit: r.visit, day: r.day, season: r.season, 'parcel-season': r.parcel_season, 'club-season': r.clubs };

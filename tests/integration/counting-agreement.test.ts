@@ -167,6 +167,22 @@ describe('one counting rule, read everywhere', () => {
     expect(after[0]?.n).toBe(before[0]?.n);
   });
 
+  it('given a preview inside a transaction, it holds no row lock: only AccessShareLock on what it read, no RowShareLock (FOR UPDATE/SHARE), write or advisory lock (pg_locks)', async () => {
+    // Row locks live in the rows themselves; pg_locks shows them as RowShareLock (SELECT FOR UPDATE/SHARE) or
+    // RowExclusiveLock (a write) on the table, and a written row as a transactionid lock (PostgreSQL manual §13.3, §54.12).
+    const locks = await db().transaction(async (tx) => {
+      await previewHarvest(tx, {
+        forager: fern(), now: at('2026-08-22T16:30:00Z'),
+        input: { idempotencyKey: key(), visitId: visits.fern0822 as string, speciesId: ids.chanterelle, method: 'cut', quantities: [{ quantity: '100', unit: 'g' }], acknowledgeOver: false },
+      });
+      return tx.execute<{ locktype: string; mode: string; relation: string | null }>(sql`
+        select locktype, mode, relation::regclass::text as relation from pg_locks where pid = pg_backend_pid() and locktype <> 'virtualxid'`);
+    });
+    const read = locks.filter((l) => l.locktype === 'relation' && l.mode === 'AccessShareLock').map((l) => l.relation);
+    expect(read).toEqual(expect.arrayContaining(['visits', 'parcels', 'harvest_totals']));
+    expect(locks.filter((l) => !(l.locktype === 'relation' && l.mode === 'AccessShareLock'))).toEqual([]);
+  });
+
   it("given Fern's ledger, the entries count on their stored days and the season total is 1500 g in one season line", async () => {
     const ledger = await listLedger(db(), { foragerId: ids.fern });
     const countedOn = Object.fromEntries(ledger.map((e) => [e.id, e.countedOn]));

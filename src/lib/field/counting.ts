@@ -53,7 +53,7 @@ export type UsageWindow = {
 };
 
 /** The windows a check-in or an entry on a parcel sums: each in-season allowance, in each measure its limits count. */
-export function usageWindows(parcel: ParcelFacts, localDate: string, visit: string | 'open' | null): UsageWindow[] {
+export function usageWindows(parcel: Pick<ParcelFacts, 'id' | 'allowances'>, localDate: string, visit: string | 'open' | null): UsageWindow[] {
   return parcel.allowances.flatMap((allowance) => {
     const season = currentSeason(allowance.seasons, localDate);
     if (!season) return [];

@@ -1,5 +1,5 @@
 import { chord2, edgeNormal, fromUnitVector, geodesicDistanceM, nearestOnArc, toUnitVector, type Vec3 } from './geodesy';
-import type { LonLat, MultiPolygon, Placement } from './types';
+import type { LonLat, MeasuredPosition, MultiPolygon, Placement } from './types';
 
 /**
  * Where a forager stands against a parcel or zone boundary.
@@ -140,5 +140,13 @@ export function placePosition(position: LonLat, accuracyM: number, boundary: Mul
   if (!(Math.abs(lon) <= 180 && Math.abs(lat) <= 90)) throw new RangeError(`not a [longitude, latitude] position: ${JSON.stringify(position)}`);
   const distance = distanceToEdgeM(boundary, position);
   if (distance > accuracyM) return { placement: boundaryContains(boundary, position) ? 'inside' : 'outside', distanceToEdgeM: distance };
+  return { placement: 'edge', distanceToEdgeM: distance };
+}
+
+/** placePosition's answer from what the database measured at the position instead of from the boundary's vertices. */
+export function placeMeasured(at: MeasuredPosition, accuracyM: number): Placement {
+  if (!(accuracyM >= 0)) throw new RangeError(`accuracy must be a number of metres, 0 or more (got ${accuracyM})`);
+  const distance = at.distanceToEdgeM;
+  if (distance > accuracyM) return { placement: at.covered ? 'inside' : 'outside', distanceToEdgeM: distance };
   return { placement: 'edge', distanceToEdgeM: distance };
 }

@@ -2,6 +2,9 @@ import { missingLabels, type Missing } from '../permit-states';
 import { formatDay, joinWords } from './words';
 import type { Forager, ParcelFacts, PermitFacts } from './types';
 
+/** What the permit check reads of a parcel: everything but its shape. */
+type PermitParcel = Omit<ParcelFacts, 'boundary' | 'zones'>;
+
 /**
  * Step 3 of the verdict (DESIGN.md): an active permit for this parcel covering this forager —
  * held personally or by a club the forager belongs to — valid on the local date, fee settled and
@@ -15,7 +18,7 @@ export function permitCovers(permit: PermitFacts, forager: Forager): boolean {
 }
 
 /** What stands between a covering permit and harvesting today; empty when it is good. */
-function missingOn(permit: PermitFacts, parcel: ParcelFacts, localDate: string): Missing[] {
+function missingOn(permit: PermitFacts, parcel: PermitParcel, localDate: string): Missing[] {
   const missing: Missing[] = [];
   if (parcel.currentTermsId !== null && permit.acceptedTermsId !== parcel.currentTermsId) missing.push('terms');
   if ((permit.feeMinor ?? 0) > 0 && !permit.feePaid) missing.push('fee');
@@ -29,7 +32,7 @@ function missingOn(permit: PermitFacts, parcel: ParcelFacts, localDate: string):
  * day), today lies within its dates, and nothing is missing. Active already implies terms and fee,
  * but the parcel's terms may have changed since, so both are checked again.
  */
-function isGood(permit: PermitFacts, parcel: ParcelFacts, localDate: string): boolean {
+function isGood(permit: PermitFacts, parcel: PermitParcel, localDate: string): boolean {
   return (permit.state === 'active' || permit.state === 'approved') && permit.endsOn >= localDate && missingOn(permit, parcel, localDate).length === 0;
 }
 
@@ -43,7 +46,7 @@ function closest(permits: PermitFacts[], localDate: string): PermitFacts | undef
 }
 
 /** Plain sentences for a covering permit that is not good today. */
-function explain(permit: PermitFacts, parcel: ParcelFacts, localDate: string): string[] {
+function explain(permit: PermitFacts, parcel: PermitParcel, localDate: string): string[] {
   const whose = permit.holderUserId === null ? "Your club's permit" : 'Your permit';
   const on = `for ${parcel.name}`;
   switch (permit.state) {
@@ -75,7 +78,7 @@ function explain(permit: PermitFacts, parcel: ParcelFacts, localDate: string): s
 }
 
 /** The permit in force for this forager on this parcel on a local date, or why there is none. */
-export function checkPermit(parcel: ParcelFacts, forager: Forager, localDate: string): PermitCheck {
+export function checkPermit(parcel: PermitParcel, forager: Forager, localDate: string): PermitCheck {
   const covering = parcel.permits.filter((p) => permitCovers(p, forager));
   const good = covering.filter((p) => isGood(p, parcel, localDate));
   // A personal permit before a club's: its own limits are the forager's own terms.

@@ -54,6 +54,22 @@ export type ParcelFacts = {
   allowances: AllowanceFacts[];
 };
 
+/**
+ * What the database measured of one position against one boundary: whether the boundary covers it
+ * (PostGIS `ST_Covers` on the geometry, in the plane, as `boundaryContains` decides) and the
+ * geodesic metres to its nearest edge (geography `ST_Distance` to `ST_Boundary`, as
+ * `distanceToEdgeM` measures). The server passes these in place of the boundary, so the engine
+ * need not walk its vertices. A position in a parcel's cut-out is farther than the accuracy radius
+ * from the parcel, so the server finds such a parcel by its bounding box and passes its boundary.
+ */
+export type MeasuredPosition = { covered: boolean; distanceToEdgeM: number };
+
+/** A parcel as the server's check-in sees it: measured at the check-in's position (and its zones too), no boundary. */
+export type MeasuredParcelFacts = Omit<ParcelFacts, 'boundary' | 'zones'> & {
+  at: MeasuredPosition;
+  zones: (Omit<ParcelFacts['zones'][number], 'boundary'> & { at: MeasuredPosition })[];
+};
+
 export type Forager = { id: string; clubIds: string[] };
 
 /**

@@ -1,9 +1,9 @@
-import { boundingBoxContains, exteriorContains, placePosition } from './geometry';
+import { boundingBoxContains, exteriorContains, placeMeasured, placePosition } from './geometry';
 import { checkPermit } from './permit-check';
 import { talliesFor, worstState } from './tallies';
 import { closuresOn, currentSeason, localDateAt } from './time';
 import { formatDay, formatDistance, formatMetres, joinWords } from './words';
-import type { AllowanceFacts, CheckInAnswer, Forager, LonLat, Method, ParcelFacts, PermitFacts, Placement, SpeciesAnswer, Usage } from './types';
+import type { AllowanceFacts, CheckInAnswer, Forager, LonLat, MeasuredParcelFacts, MeasuredPosition, Method, MultiPolygon, ParcelFacts, PermitFacts, Placement, SpeciesAnswer, Usage } from './types';
 
 /**
  * The answer to a check-in, in the order DESIGN.md sets ("What it decides — the rules"):
@@ -16,8 +16,11 @@ export type CheckIn = {
   accuracyM: number;
   at: Date;
   forager: Forager;
-  /** The candidate parcels near the position (the GiST lookup), with everything the verdict needs. */
-  parcels: ParcelFacts[];
+  /**
+   * The candidate parcels near the position (the GiST lookup), with everything the verdict needs:
+   * with their boundaries (the phone's field pack), or measured at the position by the database (the server).
+   */
+  parcels: (ParcelFacts | MeasuredParcelFacts)[];
   /** What has been taken so far on a parcel, per species and scope, in base units. Called only for a clear verdict. */
   usage: (parcelId: string) => Usage;
 };
@@ -55,17 +58,27 @@ function speciesAnswer(allowance: AllowanceFacts, usage: Usage, localDate: strin
   };
 }
 
-const parcelRef = (p: ParcelFacts) => ({ id: p.id, name: p.name, timeZone: p.timeZone });
+type Shape = { boundary: MultiPolygon } | { at: MeasuredPosition };
+
+/** Where the position stands against a boundary, from the database's measurement when there is one, else from the vertices. */
+function place(input: Pick<CheckIn, 'position' | 'accuracyM'>, shape: Shape, accuracyM = input.accuracyM): Placement {
+  return 'at' in shape ? placeMeasured(shape.at, accuracyM) : placePosition(input.position, accuracyM, shape.boundary);
+}
+
+/** In some part's exterior ring, holes or not. A measured parcel is never a cut-out's: see MeasuredPosition. */
+const inExterior = (shape: Shape, position: LonLat) => ('at' in shape ? shape.at.covered : exteriorContains(shape.boundary, position));
+
+const parcelRef = (p: ParcelFacts | MeasuredParcelFacts) => ({ id: p.id, name: p.name, timeZone: p.timeZone });
 
 /** Step 2 onwards, for the parcel the position is inside. */
-function decideOnParcel(input: CheckIn, parcel: ParcelFacts, placement: Placement): CheckInAnswer {
+function decideOnParcel(input: CheckIn, parcel: ParcelFacts | MeasuredParcelFacts, placement: Placement): CheckInAnswer {
   const localDate = localDateAt(input.at, parcel.timeZone);
   const base = { parcel: parcelRef(parcel), distanceToEdgeM: placement.distanceToEdgeM, localDate, hazards: parcel.hazards, species: [] };
   const permit = checkPermit(parcel, input.forager, localDate);
 
   // 2. No-harvest zones, tested as the parcel is: inside a zone, or too close to its edge to say, is closed.
   for (const zone of parcel.zones) {
-    const atZone = placePosition(input.position, input.accuracyM, zone.boundary);
+    const atZone = place(input, zone);
     if (atZone.placement === 'outside') continue;
     const why = zone.reason ? ` (${zone.reason.replace(/\.$/, '')})` : '';
     const reasons =
@@ -120,7 +133,7 @@ export function decideCheckIn(input: CheckIn): CheckInAnswer {
   const { position, accuracyM, at, parcels } = input;
   if (!(accuracyM >= 0)) throw new RangeError(`accuracy must be a number of metres, 0 or more (got ${accuracyM})`);
   if (Number.isNaN(at.getTime())) throw new RangeError('the check-in time is not a valid instant');
-  const placed = parcels.map((parcel) => ({ parcel, placement: placePosition(position, accuracyM, parcel.boundary) }));
+  const placed = parcels.map((parcel) => ({ parcel, placement: place(input, parcel) }));
 
   // 1. Containment with accuracy. Overlapping parcels: the one this forager holds a good permit for, then the one the position is deepest in.
   const inside = placed.filter((p) => p.placement.placement === 'inside');
@@ -138,7 +151,7 @@ export function decideCheckIn(input: CheckIn): CheckInAnswer {
     const { parcel, placement } = edge;
     const d = placement.distanceToEdgeM;
     // Measured inside, the fix must come (radius − distance) further in; measured outside, (radius + distance).
-    const measuredInside = placePosition(position, 0, parcel.boundary).placement === 'inside';
+    const measuredInside = place(input, parcel, 0).placement === 'inside';
     const move = Math.max(1, Math.ceil(measuredInside ? accuracyM - d : accuracyM + d));
     return {
       verdict: 'edge',
@@ -156,7 +169,7 @@ export function decideCheckIn(input: CheckIn): CheckInAnswer {
   }
 
   // Standing in a hole of a parcel (a cut-out its owner left out) is outside it, and is said so.
-  const cutOut = placed.find((p) => exteriorContains(p.parcel.boundary, position));
+  const cutOut = placed.find((p) => inExterior(p.parcel, position));
   // The candidates are the parcels this forager may know of (src/db/field.queries.ts), so land here may still be someone's.
   return {
     verdict: 'outside',
