@@ -3,6 +3,7 @@ import { localDateAt, seasonAsOf, talliesFor, worstState } from '../lib/field';
 import type { AllowanceFacts, LimitScope, PermitFacts, ScopeUsage, Tally, TallyState, Usage } from '../lib/field/types';
 import { measures, type Measure, type Unit } from '../lib/units';
 import type { Executor } from './client';
+import { uuidArray } from './arrays';
 
 /**
  * Whose view an audit is. A steward sees a club's entries: those made under the club's permits, on
@@ -12,7 +13,6 @@ import type { Executor } from './client';
 export type AuditScope = { clubId: string; parcelId?: string } | { ownerId: string; parcelId?: string };
 
 export const isClubScope = (scope: AuditScope): scope is { clubId: string; parcelId?: string } => 'clubId' in scope;
-const uuidArray = (ids: readonly string[]) => sql`${`{${ids.join(',')}}`}::uuid[]`;
 
 export type AuditParcel = {
   id: string;

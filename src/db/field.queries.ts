@@ -3,10 +3,10 @@ import type { UsageWindow } from '../lib/field/counting';
 import type { Forager, MeasuredParcelFacts, ParcelFacts, ScopeUsage, Usage } from '../lib/field/types';
 import type { Measure } from '../lib/units';
 import { executePrepared, type Executor } from './client';
+import { uuidArray } from './arrays';
 
 type Row = Record<string, unknown>;
 
-const uuidArray = (ids: readonly string[]) => sql`${`{${ids.join(',')}}`}::uuid[]`;
 
 /**
  * Everything the engine needs about parcels, for one forager: zones, closures, hazards, the

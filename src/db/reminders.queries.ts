@@ -2,6 +2,7 @@ import { and, eq, gte, inArray, isNull, ne, or, sql } from 'drizzle-orm';
 import { defaultReminderSettings, type AllowanceFact, type DigestParcel, type ClosureFact, type PermitFact, type ReminderFacts, type ReminderSettings } from '../lib/reminders';
 import type { Executor } from './client';
 import { allowances, closures, clubMemberships, clubs, parcels, permits, reminderSettings, species, users } from './schema';
+import { uuidArray } from './arrays';
 
 /** A person's reminder switches; every kind on when they never changed one. */
 export async function getReminderSettings(db: Executor, { userId }: { userId: string }): Promise<ReminderSettings> {
@@ -71,13 +72,13 @@ export async function loadReminderFacts(db: Executor, { userId, now }: { userId:
     .select({ parcelId: allowances.parcelId, speciesName: species.commonName, seasons: allowances.seasons })
     .from(allowances)
     .innerJoin(species, eq(species.id, allowances.speciesId))
-    .where(and(inArray(allowances.parcelId, parcelIds), isNull(allowances.removedAt)));
+    .where(and(sql`${allowances.parcelId} = any(${uuidArray(parcelIds)})`, isNull(allowances.removedAt)));
   // A coarse cut only: no zone's "tomorrow" is before the UTC date of a day ago. The pure part decides by each parcel's own date.
   const since = new Date(now.getTime() - 86_400_000).toISOString().slice(0, 10);
   const closureFacts: ClosureFact[] = await db
     .select({ closureId: closures.id, parcelId: closures.parcelId, startsOn: closures.startsOn, endsOn: closures.endsOn, reason: closures.reason })
     .from(closures)
-    .where(and(inArray(closures.parcelId, parcelIds), gte(closures.startsOn, since)));
+    .where(and(sql`${closures.parcelId} = any(${uuidArray(parcelIds)})`, gte(closures.startsOn, since)));
   return { userId, settings, permits: permitFacts, allowances: allowanceFacts, closures: closureFacts };
 }
 
