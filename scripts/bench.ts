@@ -11,6 +11,7 @@
 //   BENCH_ENTRIES (1000000) · BENCH_CONCURRENCY (8) · BENCH_MAX_SECONDS (60, per measured phase)
 //   BENCH_SECONDS (20, each wrk and pgbench run) · BENCH_WRK_THREADS (BENCH_CONCURRENCY: one connection per thread)
 //   TALLYWOOD_BENCH_PG_PORT (54349) · BENCH_SERVER_ENTRY (another build's server/entry.mjs, to measure an earlier commit)
+//   TALLYWOOD_PROCESSES (the server's app processes, as for `npm start`: one per core unless set; the profiled run has one)
 // Flags (after `npm run bench --`): --check-ins measures only what issue 15's targets are judged on
 // (pgbench, wrk, the CPU profile), leaving out the Node-driven cross-checks, the naive scan, the
 // audit and the Field page; --build builds the app into .local/bench-dist first, so the figures are

@@ -1,10 +1,11 @@
 import { spawn, type ChildProcess } from 'node:child_process';
-import { closeSync, existsSync, mkdirSync, openSync, readFileSync, statSync } from 'node:fs';
+import { closeSync, existsSync, mkdirSync, openSync, statSync } from 'node:fs';
 import { Agent, request } from 'node:http';
 import { dirname, join } from 'node:path';
 import { bin, localDir, root, run, startChild, waitForHttp } from '../lib/setup.mjs';
 import type { BenchPosition } from './parcels';
 import { runConcurrently, summarise, type Latencies } from './stats';
+import { cpuSeconds } from './wrk';
 
 export const benchPort = 4341;
 const origin = `http://127.0.0.1:${benchPort}`;
@@ -54,6 +55,9 @@ export async function startServer(entry: string, databaseUrl: string, { nodeOpti
     STRIPE_SECRET_KEY: 'sk_test_tallywood_bench',
     STRIPE_WEBHOOK_SECRET: 'whsec_tallywood_bench',
     UPLOADS_DIR: join(localDir, 'bench-uploads'),
+    // As many app processes as `npm start` runs (TALLYWOOD_PROCESSES, one per core unless set); the
+    // profiled run has one, so its single profile holds every sample.
+    TALLYWOOD_PROCESSES: nodeOptions.length > 0 ? '1' : (process.env.TALLYWOOD_PROCESSES ?? ''),
   };
   let server: ChildProcess;
   if (logFile) {
@@ -79,15 +83,6 @@ export async function stopServer(server: ChildProcess | null) {
 
 type Answer = { status: number; body: string };
 
-/** CPU seconds (user + system) a process has used, from /proc (proc(5): utime and stime in clock ticks, 100 a second); null off Linux. */
-function cpuSeconds(pid: number | undefined): number | null {
-  try {
-    const fields = readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1]?.split(' ') ?? [];
-    return (Number(fields[11]) + Number(fields[12])) / 100;
-  } catch {
-    return null;
-  }
-}
 
 function get(agent: Agent, path: string): Promise<Answer> {
   return new Promise((resolve, reject) => {

@@ -1,5 +1,5 @@
 import { spawn } from 'node:child_process';
-import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
+import { mkdirSync, readdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { root } from '../lib/setup.mjs';
 import type { BenchPosition } from './parcels';
@@ -20,11 +20,17 @@ export function capture(command: string, args: string[], { env = {}, echo }: { e
   });
 }
 
-/** CPU seconds (user + system) a process has used, from /proc (proc(5): utime and stime in clock ticks, 100 a second); null off Linux. */
+/**
+ * CPU seconds (user + system) a process and its running children have used, from /proc (proc(5): utime
+ * and stime in clock ticks, 100 a second; task/<tid>/children): the server's app processes under
+ * node:cluster (TALLYWOOD_PROCESSES) count with it. Null off Linux.
+ */
 export function cpuSeconds(pid: number | undefined): number | null {
   try {
     const fields = readFileSync(`/proc/${pid}/stat`, 'utf8').split(') ')[1]?.split(' ') ?? [];
-    return (Number(fields[11]) + Number(fields[12])) / 100;
+    const own = (Number(fields[11]) + Number(fields[12])) / 100;
+    const children = readdirSync(`/proc/${pid}/task`).flatMap((tid) => readFileSync(`/proc/${pid}/task/${tid}/children`, 'utf8').split(' ').filter(Boolean).map(Number));
+    return children.reduce((sum, child) => sum + (cpuSeconds(child) ?? 0), own);
   } catch {
     return null;
   }
