@@ -100,6 +100,10 @@ async function serveApp({ announce }) {
     // A terminal's Ctrl-C reaches every process of the group and the primary passes it on too: the
     // primary's word is a request to stop, not a second signal.
     process.on('message', (message) => message === stopMessage && void stop());
+    // Closing the server tells the primary; a primary already gone (killed) makes that an EPIPE on the
+    // worker's channel, which would otherwise crash this process mid-stop. Node ends a worker whose
+    // primary is gone anyway, so the error is only logged.
+    cluster.worker?.on('error', (error) => console.error('lost the primary process while stopping:', error.message));
   }
 }
 

@@ -43,6 +43,13 @@ async function ensureBase(sql: Sql) {
     insert into club_memberships (club_id, user_id, role, state, joined_at)
     select c.id, t.id, 'member', 'active', now() from clubs c, unnest(${textArray(members)}::text[]) as t(id) where c.slug = ${benchClubSlug}
     on conflict do nothing`;
+  // The bench's people are load, not readers: each may use every bench parcel, so their reminders would be
+  // thousands of e-mails a day and the reminders job minutes of the app's CPU, which the check-in figures
+  // would then measure. They switch every reminder off, as a person can on /settings.
+  await sql`
+    insert into reminder_settings (user_id, permit_ending, season_opening, closure_starting, weekly_digest)
+    select id, false, false, false, false from users where email like '%@bench.invalid'
+    on conflict (user_id) do update set permit_ending = false, season_opening = false, closure_starting = false, weekly_digest = false`;
   const [forager] = await sql<{ id: string }[]>`select id from users where email = ${benchForagerEmail}`;
   const [species] = await sql<{ id: string }[]>`select id from species where slug = 'bench-chanterelle'`;
   const [club] = await sql<{ id: string }[]>`select id from clubs where slug = ${benchClubSlug}`;

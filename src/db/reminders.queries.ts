@@ -1,5 +1,5 @@
 import { and, eq, gte, inArray, isNull, ne, or, sql } from 'drizzle-orm';
-import { defaultReminderSettings, type AllowanceFact, type DigestParcel, type ClosureFact, type PermitFact, type ReminderFacts, type ReminderSettings } from '../lib/reminders';
+import { defaultReminderSettings, permitReminderKinds, type AllowanceFact, type DigestParcel, type ClosureFact, type PermitFact, type ReminderFacts, type ReminderSettings } from '../lib/reminders';
 import type { Executor } from './client';
 import { allowances, closures, clubMemberships, clubs, parcels, permits, reminderSettings, species, users } from './schema';
 import { uuidArray } from './arrays';
@@ -46,6 +46,8 @@ export async function listReminderRecipients(db: Executor): Promise<{ userId: st
  */
 export async function loadReminderFacts(db: Executor, { userId, now }: { userId: string; now: Date }): Promise<ReminderFacts> {
   const settings = await getReminderSettings(db, { userId });
+  // Someone who switched every kind off is due nothing: their permits and parcels are not read.
+  if (!permitReminderKinds.some((kind) => settings[kind])) return { userId, settings, permits: [], allowances: [], closures: [] };
   const columns = {
     permitId: permits.id, parcelId: permits.parcelId, parcelName: parcels.name, timeZone: parcels.timeZone, startsOn: permits.startsOn, endsOn: permits.endsOn,
   };
