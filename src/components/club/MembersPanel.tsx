@@ -3,7 +3,6 @@ import { zodResolver } from '@hookform/resolvers/zod';
 import { useForm } from 'react-hook-form';
 import type { z } from 'zod';
 import { inviteMemberSchema } from '../../lib/clubs.schemas';
-import { formatDate } from '../../lib/format';
 import { postJson } from '../api-client';
 
 export type ClubMember = {
@@ -13,7 +12,8 @@ export type ClubMember = {
   email: string;
   role: 'member' | 'steward';
   state: 'invited' | 'active' | 'left' | 'removed';
-  joinedAt: string | null;
+  /** The day they joined in words, on the club's land calendar (src/pages/club.astro); null when they have not. */
+  joinedOn: string | null;
 };
 
 export type MembersPanelProps = {
@@ -84,7 +84,7 @@ export default function MembersPanel({ clubId, members, currentUserId }: Members
                   <span className={`pill ${stateTones[m.state]}`}>{stateWords[m.state]}</span>
                   {!isCurrent(m) && <span className="block text-xs text-loam-600">past member</span>}
                 </td>
-                <td className="whitespace-nowrap">{m.joinedAt ? formatDate(m.joinedAt.slice(0, 10)) : m.state === 'invited' ? 'not yet' : '—'}</td>
+                <td className="whitespace-nowrap">{m.joinedOn ?? (m.state === 'invited' ? 'not yet' : '—')}</td>
                 <td>
                   {isCurrent(m) && m.userId !== currentUserId && (
                     <span className="flex flex-wrap gap-2">
