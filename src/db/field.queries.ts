@@ -95,15 +95,14 @@ export async function loadParcelFactsAround(db: Executor, { longitude, latitude,
   return rows.map(toFacts);
 }
 
-function toMeasured(p: Row): MeasuredParcelFacts {
+/** What every parcel's facts carry, whether its boundary comes with them or PostGIS measured the position against it. */
+function commonFacts(p: Row) {
   return {
     id: String(p.id),
     name: String(p.name),
     timeZone: String(p.time_zone),
     nearingThresholdPercent: Number(p.nearing_threshold_percent),
-    at: p.at as MeasuredParcelFacts['at'],
     currentTermsId: (p.current_terms_id as string | null) ?? null,
-    zones: p.zones as MeasuredParcelFacts['zones'],
     closures: p.closures as ParcelFacts['closures'],
     hazards: p.hazards as ParcelFacts['hazards'],
     permits: p.permits as ParcelFacts['permits'],
@@ -111,20 +110,12 @@ function toMeasured(p: Row): MeasuredParcelFacts {
   };
 }
 
+function toMeasured(p: Row): MeasuredParcelFacts {
+  return { ...commonFacts(p), at: p.at as MeasuredParcelFacts['at'], zones: p.zones as MeasuredParcelFacts['zones'] };
+}
+
 function toFacts(p: Row): ParcelFacts {
-  return {
-    id: String(p.id),
-    name: String(p.name),
-    timeZone: String(p.time_zone),
-    nearingThresholdPercent: Number(p.nearing_threshold_percent),
-    boundary: p.boundary as ParcelFacts['boundary'],
-    currentTermsId: (p.current_terms_id as string | null) ?? null,
-    zones: p.zones as ParcelFacts['zones'],
-    closures: p.closures as ParcelFacts['closures'],
-    hazards: p.hazards as ParcelFacts['hazards'],
-    permits: p.permits as ParcelFacts['permits'],
-    allowances: p.allowances as ParcelFacts['allowances'],
-  };
+  return { ...commonFacts(p), boundary: p.boundary as ParcelFacts['boundary'], zones: p.zones as ParcelFacts['zones'] };
 }
 
 /** The parcels within `radiusM` of a position that the forager may know of, with their boundaries and everything the engine needs. */
