@@ -18,6 +18,7 @@
 // those of the code in this checkout; --scale also seeds 1 000 000 parcels in a database of its own
 // (once, a few minutes) and measures the candidate statements and the check-in there.
 import type { ChildProcess } from 'node:child_process';
+import { readFileSync } from 'node:fs';
 import { cpus, totalmem } from 'node:os';
 import { join } from 'node:path';
 import postgres from 'postgres';
@@ -63,13 +64,24 @@ ensurePostgres();
 // A database server's usual share of memory for its buffers (a quarter of it, at most 4 GB), as
 // PostgreSQL's manual suggests for a dedicated server, so the prewarmed relations stay in them.
 const sharedBuffersMb = Math.min(4096, Math.floor(totalmem() / 2 ** 20 / 4));
-const stopDatabase = startCluster({ dir: join(localDir, 'pg-bench'), port: pgPort, settings: [`shared_buffers=${sharedBuffersMb}MB`] });
+const clusterDir = join(localDir, 'pg-bench');
+const stopDatabase = startCluster({ dir: clusterDir, port: pgPort, settings: [`shared_buffers=${sharedBuffersMb}MB`] });
 ensureDatabase({ port: pgPort, name: 'tallywood_bench' });
 const password = localSecret('database-password');
 ensureAppRole({ port: pgPort, password });
 // The bench migrates, seeds and measures its statements as the tables' owner (the cluster's
 // superuser); the app it starts signs in as the app's role, as `npm start`'s does.
-const { owner: databaseUrl, app: appDatabaseUrl } = databaseUrls({ port: pgPort, name: 'tallywood_bench', password });
+const { owner: databaseUrl, app: appDatabaseUrl } = databaseUrls({ port: pgPort, name: 'tallywood_bench', password, dir: clusterDir });
+
+/** The running cluster's postmaster: the first line of postmaster.pid (PostgreSQL manual §19.3). */
+function postmasterPid(dir: string): number | undefined {
+  try {
+    const pid = Number(readFileSync(join(dir, 'postmaster.pid'), 'utf8').split('\n')[0]);
+    return Number.isInteger(pid) && pid > 0 ? pid : undefined;
+  } catch {
+    return undefined;
+  }
+}
 
 /** Thrown past a part of the bench that --check-ins leaves out. */
 class Skipped extends Error {}
@@ -163,6 +175,7 @@ try {
       connections: concurrency,
       threads: wrkThreads,
       seconds: loadSeconds,
+      databasePid: postmasterPid(clusterDir),
       log: say,
     });
   }
@@ -178,7 +191,7 @@ try {
   let scale: BenchResults['scale'] = null;
   if (flags.has('--scale') && entry) {
     try {
-      scale = { available: true, ...(await measureScale({ port: pgPort, password, entry, concurrency, threads: wrkThreads, seconds: loadSeconds, log: say })) };
+      scale = { available: true, ...(await measureScale({ port: pgPort, dir: clusterDir, password, entry, concurrency, threads: wrkThreads, seconds: loadSeconds, log: say })) };
     } catch (error) {
       exitCode = 1;
       scale = { available: false, reason: error instanceof Error ? error.message : String(error) };

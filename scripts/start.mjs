@@ -29,7 +29,7 @@ if (!databaseUrl) {
     ensureDatabase({ port: pgPort, name: 'tallywood' });
     const password = localSecret('database-password');
     ensureAppRole({ port: pgPort, password });
-    const urls = databaseUrls({ port: pgPort, name: 'tallywood', password });
+    const urls = databaseUrls({ port: pgPort, name: 'tallywood', password, dir: join(localDir, 'pg') });
     databaseUrl = urls.app;
     ownerUrl = urls.owner;
   } catch (error) {

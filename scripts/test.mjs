@@ -97,8 +97,8 @@ const common = {
 /** The app role's password on the test clusters, each made fresh and listening on loopback only. */
 const testDatabasePassword = 'test-database-password-not-for-production';
 
-const databaseEnv = (port) => {
-  const urls = databaseUrls({ port, name: 'tallywood_test', password: testDatabasePassword });
+const databaseEnv = (port, dir) => {
+  const urls = databaseUrls({ port, name: 'tallywood_test', password: testDatabasePassword, dir });
   return {
     /** The app's role, as in production: the tests and the server run with only its grants. */
     DATABASE_URL: urls.app,
@@ -153,7 +153,7 @@ function prepareDatabase({ dir, port, clock = {} }) {
   const stop = startCluster({ dir, port, fresh: true, env: clock });
   ensureDatabase({ port, name: 'tallywood_test' });
   ensureAppRole({ port, password: testDatabasePassword });
-  const env = { ...common, ...databaseEnv(port), ...clock };
+  const env = { ...common, ...databaseEnv(port, dir), ...clock };
   run(bin('tsx'), ['scripts/migrate.ts'], { env });
   run(bin('tsx'), ['scripts/seed.ts'], { env });
   return { stop, env };

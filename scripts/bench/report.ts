@@ -169,11 +169,12 @@ function summaryLines(r: BenchResults): string[] {
       ? `wrk check-ins: ${wrk.checkIns.requests} requests, p50 ${ms(wrk.checkIns.p50)}, p90 ${ms(wrk.checkIns.p90)}, p95 ${ms(wrk.checkIns.p95)}, p99 ${ms(wrk.checkIns.p99)} ms; ` +
         `statuses ${JSON.stringify(wrk.checkIns.statuses)}, verdicts ${JSON.stringify(wrk.checkIns.verdicts)}, socket errors ${JSON.stringify(wrk.checkIns.errors)}; ` +
         `app CPU ${cpu(wrk.checkIns.serverCpuMsPerRequest)} per check-in, ${cpu(wrk.floor.serverCpuMsPerRequest)} per signed-out GET /api/me (${times(r.ratios.cpuOverFloor)}); ` +
+        `PostgreSQL's CPU ${cpu(wrk.checkIns.databaseCpuMsPerRequest)} per check-in; ` +
         `under --cpu-prof ${rate(wrk.profiled.perSecond)}/s (${ms(wrk.profiled.p50)} ms p50)`
       : `wrk: NOT MEASURED — ${wrk.reason}`,
     wrk.available
       ? wrk.entries.available
-        ? `wrk entries: ${wrk.entries.requests} requests from ${wrk.entries.connections} foragers on ${wrk.entries.parcels} parcels, statuses ${JSON.stringify(wrk.entries.statuses)}, p50 ${ms(wrk.entries.p50)}, p95 ${ms(wrk.entries.p95)} ms; app CPU ${cpu(wrk.entries.serverCpuMsPerRequest)} per entry`
+        ? `wrk entries: ${wrk.entries.requests} requests from ${wrk.entries.connections} foragers on ${wrk.entries.parcels} parcels, statuses ${JSON.stringify(wrk.entries.statuses)}, p50 ${ms(wrk.entries.p50)}, p95 ${ms(wrk.entries.p95)} ms; app CPU ${cpu(wrk.entries.serverCpuMsPerRequest)}, PostgreSQL's ${cpu(wrk.entries.databaseCpuMsPerRequest)} per entry`
         : `wrk entries: NOT MEASURED — ${wrk.entries.reason}`
       : 'wrk entries: NOT MEASURED',
     pgbench.available

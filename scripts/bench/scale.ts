@@ -20,7 +20,7 @@ export type ScaleFigures = {
   checkIns: WrkFigures;
 };
 
-type Options = { port: number; password: string; entry: string; concurrency: number; threads: number; seconds: number; log: (line: string) => void };
+type Options = { port: number; dir: string; password: string; entry: string; concurrency: number; threads: number; seconds: number; log: (line: string) => void };
 
 /**
  * `npm run bench -- --scale`: the same register grown to 1 000 000 parcels (ten times the land,
@@ -28,10 +28,10 @@ type Options = { port: number; password: string; entry: string; concurrency: num
  * (tallywood_bench_1m, seeded once and kept), and there the bare candidate query and the check-in's
  * candidate statement under pgbench and the check-in under wrk, as at 100 000.
  */
-export async function measureScale({ port, password, entry, concurrency, threads, seconds, log }: Options): Promise<ScaleFigures> {
+export async function measureScale({ port, dir, password, entry, concurrency, threads, seconds, log }: Options): Promise<ScaleFigures> {
   const name = 'tallywood_bench_1m';
   ensureDatabase({ port, name });
-  const { owner, app } = databaseUrls({ port, name, password });
+  const { owner, app } = databaseUrls({ port, name, password, dir });
   const migrator = createDb(owner, { max: 1 });
   await applyMigrations(migrator, join(root, 'drizzle'));
   await closeDb(migrator);

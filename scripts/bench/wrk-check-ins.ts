@@ -32,6 +32,8 @@ type Options = {
   connections: number;
   threads: number;
   seconds: number;
+  /** The bench cluster's postmaster, whose CPU (with its backends') each run also counts. */
+  databasePid?: number;
   log: (line: string) => void;
 };
 
@@ -67,10 +69,10 @@ export async function startUpJobsOver(logFile: string, log: (line: string) => vo
  * check-in run again on a server started with `--cpu-prof`, whose profile is read for the samples
  * of that run only.
  */
-export async function measureWithWrk({ entry, databaseUrl, tokens, positions, entryPositions, connections, threads, seconds, log }: Options): Promise<WrkResults> {
+export async function measureWithWrk({ entry, databaseUrl, tokens, positions, entryPositions, connections, threads, seconds, databasePid, log }: Options): Promise<WrkResults> {
   const url = `http://127.0.0.1:${benchPort}`;
   const cookies = tokens.map((token) => `authjs.session-token=${token}`);
-  const load = { cookies, positions, threads, connections };
+  const load = { cookies, positions, threads, connections, databasePid };
   let server: ChildProcess | null = null;
   try {
     server = await startServer(entry, databaseUrl, { logFile: join(localDir, 'bench', 'app-wrk.log') });

@@ -53,6 +53,8 @@ export type WrkFigures = {
   verdicts: Record<string, number>;
   /** The app server's CPU (user + system, from /proc) over the run, per answered request. */
   serverCpuMsPerRequest: number | null;
+  /** PostgreSQL's CPU (the postmaster and its processes, the backends among them) over the run, per answered request. */
+  databaseCpuMsPerRequest: number | null;
 };
 
 type Load = {
@@ -66,6 +68,8 @@ type Load = {
   connections: number;
   seconds: number;
   serverPid: number | undefined;
+  /** The bench cluster's postmaster (the first line of its postmaster.pid). */
+  databasePid?: number;
   label: string;
 };
 
@@ -76,7 +80,7 @@ const luaString = (value: string) => `"${value.replace(/\\/g, '\\\\').replace(/"
  * its own cookies and sends its own positions (the Lua script says how), and done() prints the
  * counts and percentiles on one line that is parsed here.
  */
-export async function runWrk({ url, method, cookies, positions, bodies: given, threads, connections, seconds, serverPid, label }: Load): Promise<WrkFigures> {
+export async function runWrk({ url, method, cookies, positions, bodies: given, threads, connections, seconds, serverPid, databasePid, label }: Load): Promise<WrkFigures> {
   const dir = join(root, '.local', 'bench');
   mkdirSync(dir, { recursive: true });
   const dataFile = join(dir, `wrk-${label}.lua`);
@@ -97,11 +101,13 @@ export async function runWrk({ url, method, cookies, positions, bodies: given, t
     ].join('\n'),
   );
   const cpuBefore = cpuSeconds(serverPid);
+  const databaseBefore = cpuSeconds(databasePid);
   const result = await capture('wrk', ['-t', String(threads), '-c', String(connections), '-d', `${seconds}s`, '--timeout', '5s', '--latency', '-s', join(root, 'scripts', 'bench', 'check-ins.lua'), url], {
     env: { TALLYWOOD_WRK_DATA: dataFile },
     echo: `wrk ${label}`,
   });
   const cpuAfter = cpuSeconds(serverPid);
+  const databaseAfter = cpuSeconds(databasePid);
   const line = result.stdout.split('\n').find((l) => l.startsWith('TALLYWOOD-WRK '));
   if (result.code !== 0 || !line) throw new Error(`wrk (${label}) exited with ${result.code}: ${(result.stderr || result.stdout).slice(0, 400)}`);
   const raw = JSON.parse(line.slice('TALLYWOOD-WRK '.length)) as {
@@ -125,5 +131,6 @@ export async function runWrk({ url, method, cookies, positions, bodies: given, t
     statuses: raw.statuses,
     verdicts: raw.verdicts,
     serverCpuMsPerRequest: cpuBefore === null || cpuAfter === null ? null : ((cpuAfter - cpuBefore) * 1000) / Math.max(1, answered),
+    databaseCpuMsPerRequest: databaseBefore === null || databaseAfter === null ? null : ((databaseAfter - databaseBefore) * 1000) / Math.max(1, answered),
   };
 }

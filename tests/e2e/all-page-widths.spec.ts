@@ -1,4 +1,4 @@
-import postgres from 'postgres';
+import { connect } from '../../src/db/client';
 import { expect, test, type Browser, type Page } from '@playwright/test';
 import { sessionFile } from './support';
 
@@ -20,7 +20,7 @@ const widths = [390, 1280] as const;
 type DemoIds = { cobbleRidge: string; request: string; landownerCard: string; foragerCard: string | null; stewardCard: string | null; walter: string; species: string };
 
 async function demoIds(): Promise<DemoIds> {
-  const sql = postgres(process.env.DATABASE_URL ?? '', { max: 1, onnotice: () => {} });
+  const sql = connect(process.env.DATABASE_URL ?? '', { max: 1, onnotice: () => {} });
   try {
     const one = async (rows: Promise<{ id: string }[]>) => (await rows)[0]?.id ?? null;
     const cobbleRidge = await one(sql`select p.id from parcels p join users u on u.id = p.owner_id where u.email = 'landowner@example.org' and p.name = 'Cobble Ridge Lot'`);

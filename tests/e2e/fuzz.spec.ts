@@ -1,6 +1,7 @@
 import { randomUUID } from 'node:crypto';
 import net from 'node:net';
-import postgres from 'postgres';
+import type postgres from 'postgres';
+import { connect } from '../../src/db/client';
 import { expect, request as playwrightRequest, test, type APIRequestContext } from '@playwright/test';
 import { apiAs, baseURL } from './support';
 
@@ -59,7 +60,7 @@ const mayChange = new Map<string, string>();
 test('given malformed requests to every write endpoint, none answers 5xx and no refused request writes a row', async () => {
   test.setTimeout(90_000);
   const started = Date.now();
-  const sql = postgres(process.env.DATABASE_URL ?? '', { max: 1, onnotice: () => {} });
+  const sql = connect(process.env.DATABASE_URL ?? '', { max: 1, onnotice: () => {} });
   const anonymous = await playwrightRequest.newContext({ baseURL, extraHTTPHeaders: { origin: baseURL } });
   const clients = new Map(await Promise.all(users.map(async (email) => [email, await apiAs(email)] as const)));
   try {

@@ -1,4 +1,4 @@
-import postgres from 'postgres';
+import { connect } from '../../src/db/client';
 import { expect, test } from '@playwright/test';
 import { pageAs } from './support';
 
@@ -11,7 +11,7 @@ import { pageAs } from './support';
  */
 test.describe.configure({ mode: 'serial' });
 
-const sql = postgres(process.env.DATABASE_URL ?? '', { max: 1, onnotice: () => {} });
+const sql = connect(process.env.DATABASE_URL ?? '', { max: 1, onnotice: () => {} });
 let marked: { paymentId: string; permitId: string; parcelId: string } | null = null;
 
 test.beforeAll(async () => {

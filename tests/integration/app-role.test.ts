@@ -1,7 +1,8 @@
 import { and, eq, sql } from 'drizzle-orm';
-import postgres from 'postgres';
+import pg from 'pg';
+import type postgres from 'postgres';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { closeDb, createDb, type Db } from '../../src/db/client';
+import { closeDb, connect, createDb, type Db } from '../../src/db/client';
 import { applyMigrations } from '../../src/db/migrations';
 import { harvestedParcels, harvestEntries, harvestQuantities, harvestTotals, parcels, species, users } from '../../src/db/schema';
 import { createThrowawayDatabase, migrationsFolder, one, type ThrowawayDatabase } from './throwaway-database';
@@ -82,20 +83,49 @@ describe('the role the app signs in as', () => {
     expect(row?.owned).toBe(0);
   });
 
-  it('given no password, or a wrong one, it is refused: the role signs in only with its password, even on loopback', async () => {
-    for (const password of ['', 'not-the-password']) {
-      const url = new URL(appUrl);
-      url.password = password;
-      const stranger = postgres(url.toString(), { max: 1, onnotice: () => {}, connect_timeout: 10 });
-      try {
-        const error = await stranger`select 1`.then(
-          () => null,
-          (e: unknown) => e as Refusal,
-        );
-        expect(error, password === '' ? 'without a password' : 'with a wrong password').toMatchObject({ code: invalidPassword });
-      } finally {
-        await stranger.end({ timeout: 5 });
+  it('given no password, or a wrong one, it is refused: the role signs in only with its password, on loopback and through the socket', async () => {
+    const overTcp = new URL(appUrl);
+    overTcp.searchParams.delete('host');
+    for (const way of [appUrl, overTcp.toString()]) {
+      for (const password of ['', 'not-the-password']) {
+        const url = new URL(way);
+        url.password = password;
+        const stranger = connect(url.toString(), { max: 1, onnotice: () => {}, connect_timeout: 10 });
+        try {
+          const error = await stranger`select 1`.then(
+            () => null,
+            (e: unknown) => e as Refusal,
+          );
+          expect(error, `${password === '' ? 'without a password' : 'with a wrong password'} at ${url.host}${url.search}`).toMatchObject({ code: invalidPassword });
+        } finally {
+          await stranger.end({ timeout: 5 });
+        }
       }
+    }
+  });
+
+  // inet_server_addr() is NULL on a connection through a Unix-domain socket (PostgreSQL 15 manual, §9.26, Table 9.65).
+  it('given the test run’s DATABASE_URL, which names the cluster’s socket (scripts/lib/setup.mjs), both drivers connect through it', async () => {
+    const socket = new URL(appUrl).searchParams.get('host');
+    expect(socket, 'npm test starts the cluster with a socket in its directory; a checkout whose path makes it too long for unix(7) gets none').toMatch(/^\//);
+    const [app] = await client()`select inet_server_addr()::text as address`;
+    expect(app?.address).toBeNull();
+    const queue = new pg.Client({ connectionString: appUrl });
+    await queue.connect();
+    try {
+      const { rows } = await queue.query<{ address: string | null }>('select inet_server_addr()::text as address');
+      expect(rows[0]?.address).toBeNull();
+    } finally {
+      await queue.end();
+    }
+    const overTcp = new URL(appUrl);
+    overTcp.searchParams.delete('host');
+    const tcp = connect(overTcp.toString(), { max: 1, onnotice: () => {} });
+    try {
+      const [row] = await tcp`select inet_server_addr()::text as address`;
+      expect(row?.address).toBe('127.0.0.1/32');
+    } finally {
+      await tcp.end({ timeout: 5 });
     }
   });
 });

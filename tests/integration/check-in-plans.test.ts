@@ -1,6 +1,7 @@
 import { PgDialect } from 'drizzle-orm/pg-core';
 import type { SQL } from 'drizzle-orm';
-import postgres from 'postgres';
+import type postgres from 'postgres';
+import { connect } from '../../src/db/client';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { actorBySessionQuery } from '../../src/db/accounts.queries';
 import { parcelFactsNearQuery, usageQuery } from '../../src/db/field.queries';
@@ -20,7 +21,7 @@ let sql: postgres.Sql;
 beforeAll(() => {
   const url = process.env.DATABASE_URL;
   if (!url) throw new Error('DATABASE_URL is not set');
-  sql = postgres(url, { max: 1, onnotice: () => {} });
+  sql = connect(url, { max: 1, onnotice: () => {} });
 });
 
 afterAll(async () => {
