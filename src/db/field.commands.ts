@@ -1,10 +1,10 @@
-import { and, desc, eq, isNull, sql, type SQL } from 'drizzle-orm';
+import { and, eq, getTableColumns, isNull, sql, type SQL } from 'drizzle-orm';
 import { PgDialect } from 'drizzle-orm/pg-core';
 import type { CountingFacts, FlagDecision } from '../lib/field/counting';
 import type { Forager, LonLat, Method, Tally, Verdict } from '../lib/field/types';
 import type { Measure, Unit } from '../lib/units';
 import { isPool, type Db, type Executor, type Tx } from './client';
-import { allowances, checkIns, flags, harvestEntries, harvestQuantities, visits, type Flag } from './schema';
+import { allowances, flags, harvestEntries, harvestQuantities, visits, type Flag } from './schema';
 
 /**
  * Writes of the field: visits and check-ins, ledger entries with their quantities, and flags.
@@ -135,16 +135,20 @@ export async function checkOut(db: Executor, { visitId, foragerId, now }: { visi
 }
 
 /** A forager's own visit, with where they checked in last in it. */
+/** A forager's visit by id, with the position and accuracy of its latest check-in, in one statement. */
 export async function findVisit(db: Executor, { visitId, foragerId }: { visitId: string; foragerId: string }) {
-  const [visit] = await db.select().from(visits).where(and(eq(visits.id, visitId), eq(visits.foragerId, foragerId)));
-  if (!visit) return null;
-  const [at] = await db
-    .select({ position: sql<{ coordinates: LonLat }>`ST_AsGeoJSON(${checkIns.position})::json`, accuracyM: checkIns.accuracyM })
-    .from(checkIns)
-    .where(eq(checkIns.visitId, visit.id))
-    .orderBy(desc(checkIns.at))
-    .limit(1);
-  return { ...visit, checkIn: at ? { position: at.position.coordinates, accuracyM: at.accuracyM } : null };
+  const [row] = await db
+    .select({
+      ...getTableColumns(visits),
+      checkIn: sql<{ position: { coordinates: LonLat }; accuracyM: number } | null>`(
+        select json_build_object('position', ST_AsGeoJSON(c.position)::json, 'accuracyM', c.accuracy_m) from check_ins c
+        where c.visit_id = "visits"."id" order by c.at desc limit 1)`,
+    })
+    .from(visits)
+    .where(and(eq(visits.id, visitId), eq(visits.foragerId, foragerId)));
+  if (!row) return null;
+  const { checkIn, ...visit } = row;
+  return { ...visit, checkIn: checkIn ? { position: checkIn.position.coordinates, accuracyM: checkIn.accuracyM } : null };
 }
 
 /**

@@ -35,8 +35,11 @@ export function requestHashOf(kind: 'harvest' | 'correction' | 'sync-entry' | 's
   return createHash('sha256').update(JSON.stringify({ kind, ...about, ...asked })).digest('hex');
 }
 
-async function assess(db: Executor, { forager, input, now }: { forager: Forager; input: HarvestInput; now: Date }) {
-  const visit = await findVisit(db, { visitId: input.visitId, foragerId: forager.id });
+type FoundVisit = NonNullable<Awaited<ReturnType<typeof findVisit>>>;
+
+/** What an entry would do; `found` is the visit when the caller has read it already (recording reads it before taking its lock). */
+async function assess(db: Executor, { forager, input, now, found }: { forager: Forager; input: HarvestInput; now: Date; found?: FoundVisit }) {
+  const visit = found ?? (await findVisit(db, { visitId: input.visitId, foragerId: forager.id }));
   if (!visit) throw notFound('Visit');
   const parcel = await loadParcelFacts(db, { parcelId: visit.parcelId, forager });
   if (!parcel) throw notFound('Visit');
@@ -107,13 +110,16 @@ export async function recordHarvest(
     async (tx) => {
       const visit = await findVisit(tx, { visitId: input.visitId, foragerId: forager.id });
       if (!visit) throw notFound('Visit');
-      if (!(await lockAllowance(tx, { parcelId: visit.parcelId, speciesId: input.speciesId }))) {
-        throw invalidInput('speciesId', 'That species is not allowed on this parcel; choose one from the list.');
-      }
+      // Sent together on the transaction's connection (postgres.js pipelines them, in this order): the lock is taken before the key is read.
+      const [locked, sameKey] = await Promise.all([
+        lockAllowance(tx, { parcelId: visit.parcelId, speciesId: input.speciesId }),
+        findEntryByKey(tx, { foragerId: forager.id, key: input.idempotencyKey }),
+      ]);
+      if (!locked) throw invalidInput('speciesId', 'That species is not allowed on this parcel; choose one from the list.');
       const requestHash = requestHashOf('harvest', input);
-      const replay = replayOf(await findEntryByKey(tx, { foragerId: forager.id, key: input.idempotencyKey }), requestHash);
+      const replay = replayOf(sameKey, requestHash);
       if (replay) return replay;
-      const { parcel, localDate, projection, facts, before } = await assess(tx, { forager, input, now });
+      const { parcel, localDate, projection, facts, before } = await assess(tx, { forager, input, now, found: visit });
       const breach = projection.wouldBreach;
       if (breach && !input.acknowledgeOver) {
         throw new AppError(409, 'would-go-over', 'This entry would take a limit over. Take less, or confirm that you are going over; the landowner is told.', 'quantities', { projection });
