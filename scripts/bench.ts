@@ -129,7 +129,7 @@ try {
     const common = { port: pgPort, database: 'tallywood_bench', user: 'app', clients: concurrency, threads: pgbenchThreads, seconds: loadSeconds };
     say(`pgbench: the bare candidate lookup, -c ${concurrency} -j ${pgbenchThreads} -T ${loadSeconds}…`);
     const bare = await runPgbench({ ...common, label: 'bare', script: bareLookupScript(parcelTarget) });
-    say(`pgbench: the check-in's own candidate statement (loadParcelFactsNear), -c ${concurrency} -j ${pgbenchThreads} -T ${loadSeconds}…`);
+    say(`pgbench: the check-in's own candidate statement (measuredCandidatesQuery), -c ${concurrency} -j ${pgbenchThreads} -T ${loadSeconds}…`);
     const app = await runPgbench({ ...common, label: 'check-in-candidates', script: appCandidateScript({ id: member.id, clubIds: member.club_ids }, parcelTarget) });
     pgbench = { available: true, bare, app };
   } catch (error) {

@@ -1,7 +1,7 @@
 import { mkdirSync, readdirSync, readFileSync, rmSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { PgDialect } from 'drizzle-orm/pg-core';
-import { parcelFactsNearQuery } from '../../src/db/field.queries';
+import { measuredCandidatesQuery } from '../../src/db/field.queries';
 import type { Forager } from '../../src/lib/field/types';
 import { pgBin, root } from '../lib/setup.mjs';
 import { parcelsPerTile, region, tileColumns } from './parcels';
@@ -39,14 +39,14 @@ export function bareLookupScript(parcels: number): string {
 const literal = (value: unknown) => (typeof value === 'number' ? String(value) : `'${String(value).replace(/'/g, "''")}'`);
 
 /**
- * The statement the check-in itself sends for its candidates (loadParcelFactsNear in
- * src/db/field.queries.ts), rendered from the app's own code for one bench member, so it cannot
+ * The statement the check-in itself sends for its candidates (measuredCandidatesQuery, which
+ * loadMeasuredParcelsNear in src/db/field.queries.ts sends), rendered from the app's own code for one bench member, so it cannot
  * drift from what the app runs: the position's parameters become pgbench variables, the forager's
  * the literals it would send.
  */
 export function appCandidateScript(forager: Forager, parcels: number): string {
   const marks = { longitude: -1234.5, latitude: -2345.5, radiusM: -3456.5 };
-  const { sql, params } = new PgDialect().sqlToQuery(parcelFactsNearQuery({ ...marks, forager }));
+  const { sql, params } = new PgDialect().sqlToQuery(measuredCandidatesQuery({ ...marks, forager }));
   const variable = new Map<unknown, string>([[marks.longitude, ':lon'], [marks.latitude, ':lat'], [marks.radiusM, ':acc']]);
   const text = sql.replace(/\$(\d+)/g, (_, n: string) => {
     const value = params[Number(n) - 1];

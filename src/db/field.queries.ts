@@ -2,11 +2,51 @@ import { sql, type SQL } from 'drizzle-orm';
 import type { UsageWindow } from '../lib/field/counting';
 import type { Forager, MeasuredParcelFacts, ParcelFacts, ScopeUsage, Usage } from '../lib/field/types';
 import type { Measure } from '../lib/units';
-import { executePrepared, type Executor } from './client';
+import { executePrepared, isPool, type Executor } from './client';
 import { uuidArray } from './arrays';
 
 type Row = Record<string, unknown>;
 
+
+/**
+ * The facts of parcel `p` that are the same for every forager and position, as of its
+ * `facts_version` (drizzle/0022: triggers raise it with every change to them): name, zone, nearing
+ * threshold, current terms, closures, hazards, and the allowances in force with their species.
+ * Their limits are the parcel's own and, for a forager, the ones of their permits (personal and
+ * through their clubs); with no forager, every permit's, which loadMeasuredParcelsNear keeps per
+ * parcel and sorts out for each forager.
+ */
+function sharedColumns(forager: Forager | null) {
+  const permitLimits = forager
+    ? sql`left join permits lp on lp.id = l.permit_id
+            where l.allowance_id = a.id and (l.permit_id is null or lp.holder_user_id = ${forager.id}::text or lp.holder_club_id = any(${uuidArray(forager.clubIds)}))`
+    : sql`where l.allowance_id = a.id`;
+  return sql`p.name, p.time_zone, p.nearing_threshold_percent,
+      (select t.id from terms t where t.parcel_id = p.id order by t.version desc limit 1) as current_terms_id,
+      coalesce((select json_agg(json_build_object('startsOn', c.starts_on::text, 'endsOn', c.ends_on::text, 'reason', c.reason))
+        from closures c where c.parcel_id = p.id), '[]') as closures,
+      coalesce((select json_agg(json_build_object('kind', h.kind, 'title', h.title, 'detail', h.detail) order by h.title)
+        from hazards h where h.parcel_id = p.id), '[]') as hazards,
+      coalesce((select json_agg(json_build_object('speciesId', s.id, 'commonName', s.common_name, 'scientificName', s.scientific_name,
+          'seasons', a.seasons, 'methods', a.methods, 'cautions', s.cautions, 'lookalikes', s.lookalikes,
+          'limits', coalesce((select json_agg(json_build_object('scope', l.scope, 'quantity', trim_scale(l.quantity)::text, 'unit', l.unit, 'permitId', l.permit_id)
+              order by l.permit_id nulls first, l.scope, l.unit)
+            from limits l ${permitLimits}), '[]'))
+          order by s.common_name)
+        from allowances a join species s on s.id = a.species_id where a.parcel_id = p.id and a.removed_at is null), '[]') as allowances`;
+}
+
+/** The facts of parcel `p` that depend on the forager, and on the position when `at` is given: its zones (measured there) and the forager's permits on it. */
+function foragerColumns(forager: Forager, at?: At) {
+  const shape = (g: SQL) => (at ? measured(g) : sql`ST_AsGeoJSON(${g})::json`);
+  return sql`coalesce((select json_agg(json_build_object('id', z.id, 'name', z.name, 'reason', z.reason, ${sql.raw(at ? "'at'" : "'boundary'")}, ${shape(sql`z.boundary`)}))
+        from no_harvest_zones z where z.parcel_id = p.id), '[]') as zones,
+      coalesce((select json_agg(json_build_object('id', pm.id, 'holderUserId', pm.holder_user_id, 'holderClubId', pm.holder_club_id, 'state', pm.state,
+          'startsOn', pm.starts_on::text, 'endsOn', pm.ends_on::text, 'feeMinor', pm.fee_minor, 'feePaid', pm.fee_paid_at is not null, 'acceptedTermsId', pm.accepted_terms_id))
+        from permits pm where pm.parcel_id = p.id and (pm.holder_user_id = ${forager.id}::text or pm.holder_club_id = any(${uuidArray(forager.clubIds)}))), '[]') as permits`;
+}
+
+const here = (at: At) => sql` cross join (select ST_SetSRID(ST_MakePoint(${at.longitude}::float8, ${at.latitude}::float8), 4326) as pt) here`;
 
 /**
  * Everything the engine needs about parcels, for one forager: zones, closures, hazards, the
@@ -14,30 +54,11 @@ type Row = Record<string, unknown>;
  * force with every limit that applies to them, gathered by key beside each parcel.
  */
 function parcelFactsQuery(forager: Forager, where: SQL, at?: At) {
-  const clubs = uuidArray(forager.clubIds);
   // Measured at a position: PostGIS's facts about it in place of the boundary (MeasuredPosition in src/lib/field/types.ts).
-  const shape = (g: SQL) => (at ? measured(g) : sql`ST_AsGeoJSON(${g})::json`);
+  const shape = at ? measured(sql`p.boundary`) : sql`ST_AsGeoJSON(p.boundary)::json`;
   return sql`
-    select p.id, p.name, p.time_zone, p.nearing_threshold_percent, ${shape(sql`p.boundary`)} as ${sql.raw(at ? 'at' : 'boundary')},
-      (select t.id from terms t where t.parcel_id = p.id order by t.version desc limit 1) as current_terms_id,
-      coalesce((select json_agg(json_build_object('id', z.id, 'name', z.name, 'reason', z.reason, ${sql.raw(at ? "'at'" : "'boundary'")}, ${shape(sql`z.boundary`)}))
-        from no_harvest_zones z where z.parcel_id = p.id), '[]') as zones,
-      coalesce((select json_agg(json_build_object('startsOn', c.starts_on::text, 'endsOn', c.ends_on::text, 'reason', c.reason))
-        from closures c where c.parcel_id = p.id), '[]') as closures,
-      coalesce((select json_agg(json_build_object('kind', h.kind, 'title', h.title, 'detail', h.detail) order by h.title)
-        from hazards h where h.parcel_id = p.id), '[]') as hazards,
-      coalesce((select json_agg(json_build_object('id', pm.id, 'holderUserId', pm.holder_user_id, 'holderClubId', pm.holder_club_id, 'state', pm.state,
-          'startsOn', pm.starts_on::text, 'endsOn', pm.ends_on::text, 'feeMinor', pm.fee_minor, 'feePaid', pm.fee_paid_at is not null, 'acceptedTermsId', pm.accepted_terms_id))
-        from permits pm where pm.parcel_id = p.id and (pm.holder_user_id = ${forager.id}::text or pm.holder_club_id = any(${clubs}))), '[]') as permits,
-      coalesce((select json_agg(json_build_object('speciesId', s.id, 'commonName', s.common_name, 'scientificName', s.scientific_name,
-          'seasons', a.seasons, 'methods', a.methods, 'cautions', s.cautions, 'lookalikes', s.lookalikes,
-          'limits', coalesce((select json_agg(json_build_object('scope', l.scope, 'quantity', trim_scale(l.quantity)::text, 'unit', l.unit, 'permitId', l.permit_id)
-              order by l.permit_id nulls first, l.scope, l.unit)
-            from limits l left join permits lp on lp.id = l.permit_id
-            where l.allowance_id = a.id and (l.permit_id is null or lp.holder_user_id = ${forager.id}::text or lp.holder_club_id = any(${clubs}))), '[]'))
-          order by s.common_name)
-        from allowances a join species s on s.id = a.species_id where a.parcel_id = p.id and a.removed_at is null), '[]') as allowances
-    from parcels p${at ? sql` cross join (select ST_SetSRID(ST_MakePoint(${at.longitude}::float8, ${at.latitude}::float8), 4326) as pt) here` : sql``}
+    select p.id, ${shape} as ${sql.raw(at ? 'at' : 'boundary')}, ${sharedColumns(forager)}, ${foragerColumns(forager, at)}
+    from parcels p${at ? here(at) : sql``}
     where ${where}`;
 }
 
@@ -80,9 +101,28 @@ function knownToForager(forager: Forager) {
  * the forager may know of count. Its generic plan is checked in tests/integration/check-in-plans.test.ts.
  */
 export function parcelFactsNearQuery({ longitude, latitude, radiusM, forager }: FactsNear, { measure = true }: { measure?: boolean } = {}) {
-  const here = sql`ST_SetSRID(ST_MakePoint(${longitude}::float8, ${latitude}::float8), 4326)`;
+  const point = sql`ST_SetSRID(ST_MakePoint(${longitude}::float8, ${latitude}::float8), 4326)`;
   return parcelFactsQuery(forager, sql`${knownToForager(forager)}
-      and ST_DWithin(p.boundary::geography, ${measure ? sql`here.pt` : here}::geography, ${radiusM}::float8)`, measure ? { longitude, latitude } : undefined);
+      and ST_DWithin(p.boundary::geography, ${measure ? sql`here.pt` : point}::geography, ${radiusM}::float8)`, measure ? { longitude, latitude } : undefined);
+}
+
+/**
+ * The check-in's candidate statement: the same parcels as parcelFactsNearQuery, measured at the
+ * position, with only what depends on the forager or the position (zones, permits) and each
+ * parcel's facts_version; the rest comes from the facts kept by version (loadMeasuredParcelsNear).
+ * Its generic plan is checked in tests/integration/check-in-plans.test.ts.
+ */
+export function measuredCandidatesQuery({ longitude, latitude, radiusM, forager }: FactsNear) {
+  const at = { longitude, latitude };
+  return sql`
+    select p.id, p.facts_version::text as facts_version, ${measured(sql`p.boundary`)} as at, ${foragerColumns(forager, at)}
+    from parcels p${here(at)}
+    where ${knownToForager(forager)} and ST_DWithin(p.boundary::geography, here.pt::geography, ${radiusM}::float8)`;
+}
+
+/** The statement that reads the shared facts of parcels by id, for the facts kept by version. */
+export function sharedFactsQuery(parcelIds: readonly string[]) {
+  return sql`select p.id, p.facts_version::text as facts_version, ${sharedColumns(null)} from parcels p where p.id = any(${uuidArray(parcelIds)})`;
 }
 
 /**
@@ -123,9 +163,61 @@ export async function loadParcelFactsNear(db: Executor, near: FactsNear): Promis
   return (await executePrepared<Row>(db, parcelFactsNearQuery(near, { measure: false }))).map(toFacts);
 }
 
-/** The parcels within `radiusM` of a position that the forager may know of, measured there, with everything the engine needs, in one statement. */
+type SharedFacts = ReturnType<typeof sharedFacts>;
+
+/** The facts every forager shares, from a row of sharedFactsQuery; the allowances carry every permit's limits. */
+function sharedFacts(p: Row) {
+  const { id: _id, permits: _permits, ...shared } = commonFacts({ ...p, permits: [] });
+  return shared;
+}
+
+/** Shared facts kept per database pool, by parcel id, with the facts_version they were read at. */
+const keptFacts = new WeakMap<object, Map<string, { version: string; facts: SharedFacts }>>();
+/** How many parcels' facts a pool keeps: about 2 kB each. The oldest read goes first. */
+const keptParcels = 20_000;
+
+function keep(kept: Map<string, { version: string; facts: SharedFacts }>, id: string, entry: { version: string; facts: SharedFacts }) {
+  kept.delete(id);
+  if (kept.size >= keptParcels) {
+    const oldest = kept.keys().next();
+    if (!oldest.done) kept.delete(oldest.value);
+  }
+  kept.set(id, entry);
+}
+
+/**
+ * The parcels within `radiusM` of a position that the forager may know of, measured there, with
+ * everything the engine needs. The candidate statement (measuredCandidatesQuery) reads what depends
+ * on the forager and the position, and each parcel's facts_version; the facts every forager shares
+ * are kept in the process by parcel and version, and read again (sharedFactsQuery) only for a parcel
+ * whose version moved or that is not kept. Triggers raise the version in the same transaction as any
+ * change to those facts (drizzle/0022), so a kept version is never out of date for the snapshot that
+ * read it. Inside a transaction nothing is kept: the same facts come from the one statement.
+ */
 export async function loadMeasuredParcelsNear(db: Executor, near: FactsNear): Promise<MeasuredParcelFacts[]> {
-  return (await executePrepared<Row>(db, parcelFactsNearQuery(near))).map(toMeasured);
+  if (!isPool(db)) return (await executePrepared<Row>(db, parcelFactsNearQuery(near))).map(toMeasured);
+  let kept = keptFacts.get(db);
+  if (!kept) keptFacts.set(db, (kept = new Map()));
+  const rows = await executePrepared<Row>(db, measuredCandidatesQuery(near));
+  const fresh = new Map<string, { version: string; facts: SharedFacts }>();
+  const stale = rows.filter((r) => kept.get(String(r.id))?.version !== String(r.facts_version)).map((r) => String(r.id));
+  if (stale.length > 0) {
+    for (const r of await executePrepared<Row>(db, sharedFactsQuery(stale))) {
+      const entry = { version: String(r.facts_version), facts: sharedFacts(r) };
+      fresh.set(String(r.id), entry);
+      keep(kept, String(r.id), entry);
+    }
+  }
+  return rows.flatMap((r) => {
+    const id = String(r.id);
+    const shared = fresh.get(id) ?? kept.get(id);
+    // A parcel gone between the two statements is not a candidate.
+    if (!shared) return [];
+    const permits = r.permits as MeasuredParcelFacts['permits'];
+    const theirs = new Set(permits.map((permit) => permit.id));
+    const allowances = shared.facts.allowances.map((a) => ({ ...a, limits: a.limits.filter((l) => l.permitId === null || theirs.has(l.permitId)) }));
+    return [{ id, ...shared.facts, allowances, permits, at: r.at as MeasuredParcelFacts['at'], zones: r.zones as MeasuredParcelFacts['zones'] }];
+  });
 }
 
 /** One parcel's facts by its id (a harvest or a correction names its parcel through a visit or an entry). */

@@ -4,7 +4,7 @@ import type postgres from 'postgres';
 import { connect } from '../../src/db/client';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { actorBySessionQuery } from '../../src/db/accounts.queries';
-import { parcelFactsNearQuery, usageQuery } from '../../src/db/field.queries';
+import { measuredCandidatesQuery, parcelFactsNearQuery, sharedFactsQuery, usageQuery } from '../../src/db/field.queries';
 import type { UsageWindow } from '../../src/lib/field/counting';
 
 /**
@@ -52,6 +52,15 @@ describe('generic plans of the check-in statements', () => {
     const plan = await genericPlan('facts_near', parcelFactsNearQuery({ longitude: -72.1, latitude: 43.2, radiusM: 10, forager }));
     expect(plan).toMatch(/Index Scan using parcels_boundary_geog_gist on parcels p\n\s+Index Cond: \(\(boundary\)::geography && _st_expand\(/);
     expect(plan).not.toMatch(/Seq Scan on parcels\b/);
+  });
+
+  it("finds the check-in's candidates, measured, through the same index, and reads the shared facts of those not kept by their primary key", async () => {
+    const candidates = await genericPlan('candidates', measuredCandidatesQuery({ longitude: -72.1, latitude: 43.2, radiusM: 10, forager }));
+    expect(candidates).toMatch(/Index Scan using parcels_boundary_geog_gist on parcels p\n\s+Index Cond: \(\(boundary\)::geography && _st_expand\(/);
+    expect(candidates).not.toMatch(/Seq Scan on parcels\b/);
+    const shared = await genericPlan('shared_facts', sharedFactsQuery(['00000000-0000-4000-8000-000000000002', '00000000-0000-4000-8000-000000000005']));
+    expect(shared).toMatch(/(Index Scan using parcels_pkey on parcels p|Bitmap Index Scan on parcels_pkey)\n\s+Index Cond: \(id = ANY \(\$1\)\)/);
+    expect(shared).not.toMatch(/Seq Scan on parcels\b/);
   });
 
   it('finds the session by its key and the person by theirs', async () => {

@@ -1,5 +1,5 @@
 import { sql } from 'drizzle-orm';
-import { boolean, check, date, doublePrecision, index, integer, pgTable, text, unique, uuid } from 'drizzle-orm/pg-core';
+import { bigint, boolean, check, date, doublePrecision, index, integer, pgTable, text, unique, uuid } from 'drizzle-orm/pg-core';
 import { at, createdAt, id, multiPolygon, updatedAt } from './columns';
 import { hazardKindEnum, parcelStatusEnum } from './enums';
 import { users } from './auth';
@@ -19,6 +19,12 @@ export const parcels = pgTable(
     timeZone: text('time_zone').notNull(),
     nearingThresholdPercent: integer('nearing_threshold_percent').notNull().default(80),
     openToRequests: boolean('open_to_requests').notNull().default(false),
+    /**
+     * Raised by triggers in the transaction of every change to the facts all foragers share (the
+     * parcel's own columns, its terms, closures, hazards, allowances, their limits and species;
+     * drizzle/0022), so the check-in may keep those facts by parcel and version (loadMeasuredParcelsNear).
+     */
+    factsVersion: bigint('facts_version', { mode: 'number' }).notNull().default(1),
     createdAt: createdAt(),
     updatedAt: updatedAt(),
   },
