@@ -12,6 +12,8 @@
 //   BENCH_SECONDS (20, each wrk and pgbench run) · BENCH_WRK_THREADS (BENCH_CONCURRENCY: one connection per thread)
 //   TALLYWOOD_BENCH_PG_PORT (54349) · BENCH_SERVER_ENTRY (another build's server/entry.mjs, to measure an earlier commit)
 //   TALLYWOOD_PROCESSES (the server's app processes, as for `npm start`: one per core unless set; the profiled run has one)
+//   BENCH_PROFILE (check-ins: the load the profiled run repeats; entries profiles the recording of entries instead)
+//   BENCH_WARM_UP_SECONDS (30: the check-ins sent before the measured runs, scripts/bench/wrk-check-ins.ts says why)
 // Flags (after `npm run bench --`): --check-ins measures only what issue 15's targets are judged on
 // (pgbench, wrk, the CPU profile), leaving out the Node-driven cross-checks, the naive scan, the
 // audit and the Field page; --build builds the app into .local/bench-dist first, so the figures are
@@ -54,6 +56,8 @@ const loadSeconds = setting('BENCH_SECONDS', 20);
 const wrkThreads = setting('BENCH_WRK_THREADS', concurrency);
 /** pgbench's threads: one per core, as many as the machine's (the brief's `-j 2` on two cores). */
 const pgbenchThreads = Math.min(concurrency, Math.max(1, cpus().length));
+const profiledRun = process.env.BENCH_PROFILE ?? 'check-ins';
+if (profiledRun !== 'check-ins' && profiledRun !== 'entries') throw new Error('BENCH_PROFILE is check-ins (the default) or entries');
 const flags = new Set(process.argv.slice(2));
 for (const flag of flags) if (!['--check-ins', '--build', '--scale'].includes(flag)) throw new Error(`unknown flag ${flag}: the bench knows --check-ins, --build and --scale`);
 const checkInsOnly = flags.has('--check-ins');
@@ -176,6 +180,7 @@ try {
       threads: wrkThreads,
       seconds: loadSeconds,
       databasePid: postmasterPid(clusterDir),
+      profile: profiledRun,
       log: say,
     });
   }

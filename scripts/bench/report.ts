@@ -74,14 +74,14 @@ export function checkInTargets(wrk: WrkResults, endpointOverQueryP50: number | n
   ];
 }
 
-/** The ten functions with the most self time in the app server during the profiled check-in run. */
-export function profileText(p: ProfileFigures): string {
+/** The ten functions with the most self time in the app server during the profiled run (check-ins, or entries with BENCH_PROFILE=entries). */
+export function profileText(p: ProfileFigures, of: 'check-ins' | 'entries' = 'check-ins'): string {
   const header = ['self ms', '%', 'function', 'where'];
   const body = p.top.map((t) => [t.ms.toFixed(0), t.percent.toFixed(1), t.name, t.where]);
   const widths = header.map((h, i) => Math.max(h.length, ...body.map((row) => (row[i] ?? '').length)));
   const line = (cells: string[]) => cells.map((c, i) => (i < 2 ? c.padStart(widths[i] ?? 0) : c.padEnd(widths[i] ?? 0))).join('  ').trimEnd();
   return [
-    `CPU profile of the app server during the check-in run (node --cpu-prof, ${p.file}): ` +
+    `CPU profile of the app server during the ${of === 'entries' ? 'entries' : 'check-in'} run (node --cpu-prof, ${p.file}): ` +
       `${(p.windowMs / 1000).toFixed(1)} s counted, ${(p.busyMs / 1000).toFixed(2)} s busy, ${(p.idleMs / 1000).toFixed(2)} s idle; the ten functions with the most self time (% of busy):`,
     line(header),
     widths.map((w) => '─'.repeat(w)).join('  '),
@@ -120,7 +120,7 @@ function rows(r: BenchResults): string[][] {
     out.push([`POST /api/check-ins, wrk`, `${w.connections} connections, ${w.seconds.toFixed(0)} s`, ms(w.p50), ms(w.p95), rate(w.perSecond)]);
     out.push([`floor: GET /api/me signed out, wrk`, `${wrk.floor.connections} connections, ${wrk.floor.seconds.toFixed(0)} s`, ms(wrk.floor.p50), ms(wrk.floor.p95), rate(wrk.floor.perSecond)]);
     if (wrk.entries.available) out.push([`POST /api/harvest-entries, wrk`, `${wrk.entries.connections} foragers, ${wrk.entries.seconds.toFixed(0)} s`, ms(wrk.entries.p50), ms(wrk.entries.p95), rate(wrk.entries.perSecond)]);
-    out.push([`POST /api/check-ins, wrk, under --cpu-prof`, `${wrk.profiled.connections} connections, ${wrk.profiled.seconds.toFixed(0)} s`, ms(wrk.profiled.p50), ms(wrk.profiled.p95), rate(wrk.profiled.perSecond)]);
+    out.push([`POST /api/${wrk.profiled.of === 'entries' ? 'harvest-entries' : 'check-ins'}, wrk, under --cpu-prof`, `${wrk.profiled.connections} connections, ${wrk.profiled.seconds.toFixed(0)} s`, ms(wrk.profiled.p50), ms(wrk.profiled.p95), rate(wrk.profiled.perSecond)]);
   }
   if (pgbench.available) {
     for (const [label, f] of [['bare candidate query, pgbench', pgbench.bare], ["check-in's candidate statement, pgbench", pgbench.app]] as const) {
@@ -170,7 +170,7 @@ function summaryLines(r: BenchResults): string[] {
         `statuses ${JSON.stringify(wrk.checkIns.statuses)}, verdicts ${JSON.stringify(wrk.checkIns.verdicts)}, socket errors ${JSON.stringify(wrk.checkIns.errors)}; ` +
         `app CPU ${cpu(wrk.checkIns.serverCpuMsPerRequest)} per check-in, ${cpu(wrk.floor.serverCpuMsPerRequest)} per signed-out GET /api/me (${times(r.ratios.cpuOverFloor)}); ` +
         `PostgreSQL's CPU ${cpu(wrk.checkIns.databaseCpuMsPerRequest)} per check-in; ` +
-        `under --cpu-prof ${rate(wrk.profiled.perSecond)}/s (${ms(wrk.profiled.p50)} ms p50)`
+        `${wrk.profiled.of} under --cpu-prof ${rate(wrk.profiled.perSecond)}/s (${ms(wrk.profiled.p50)} ms p50)`
       : `wrk: NOT MEASURED — ${wrk.reason}`,
     wrk.available
       ? wrk.entries.available
@@ -252,7 +252,7 @@ function targetLines(r: BenchResults): string[] {
 
 /** The table for the terminal, and results.json + results.md in .local/bench. */
 export function report(r: BenchResults, dir: string): string {
-  const text = [table(header, rows(r)), '', ...summaryLines(r), '', ...(r.wrk.available ? [profileText(r.wrk.profile), ''] : []), 'targets:', ...targetLines(r).map((l) => `  ${l}`)].join('\n');
+  const text = [table(header, rows(r)), '', ...summaryLines(r), '', ...(r.wrk.available ? [profileText(r.wrk.profile, r.wrk.profiled.of), ''] : []), 'targets:', ...targetLines(r).map((l) => `  ${l}`)].join('\n');
   mkdirSync(dir, { recursive: true });
   writeFileSync(join(dir, 'results.json'), `${JSON.stringify(r, null, 2)}\n`);
   const md = [
@@ -268,7 +268,7 @@ export function report(r: BenchResults, dir: string): string {
     '',
     ...targetLines(r).map((l) => `- ${l}`),
     '',
-    ...(r.wrk.available ? ['## CPU profile', '', '```', profileText(r.wrk.profile), '```', ''] : []),
+    ...(r.wrk.available ? ['## CPU profile', '', '```', profileText(r.wrk.profile, r.wrk.profiled.of), '```', ''] : []),
     ...(r.pgbench.available ? ["## pgbench scripts (the bare lookup; the check-in's candidate statement)", '', '```', r.pgbench.bare.script, '```', '', '```', r.pgbench.app.script, '```', ''] : []),
     '## Plan of the bare query (EXPLAIN ANALYZE, one in-parcel position)',
     '',

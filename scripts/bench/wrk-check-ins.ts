@@ -14,8 +14,8 @@ export type WrkResults =
       checkIns: WrkFigures;
       /** GET /api/me signed out (a 401 with no database work): the framework's floor. */
       floor: WrkFigures;
-      /** The same check-in load again, on a server started with `node --cpu-prof`: its figures show the profiler's cost. */
-      profiled: WrkFigures;
+      /** The same check-in load (or with BENCH_PROFILE=entries, the entries) again, on a server started with `node --cpu-prof`: its figures show the profiler's cost. */
+      profiled: WrkFigures & { of: ProfiledRun };
       profile: ProfileFigures;
       /** POST /api/harvest-entries from wrk: each connection a bench member recording on a parcel of their own. */
       entries: (WrkFigures & { available: true; parcels: number }) | { available: false; reason: string };
@@ -34,10 +34,19 @@ type Options = {
   seconds: number;
   /** The bench cluster's postmaster, whose CPU (with its backends') each run also counts. */
   databasePid?: number;
+  /** Which load the profiled run repeats. */
+  profile: ProfiledRun;
   log: (line: string) => void;
 };
 
-const warmUpSeconds = 3;
+export type ProfiledRun = 'check-ins' | 'entries';
+
+/**
+ * Each app process keeps the parcels' shared facts it has read (loadMeasuredParcelsNear), as a server
+ * in service has kept those of the land its foragers use. The warm-up sends each position about
+ * once, so the runs after it measure such a server; BENCH_WARM_UP_SECONDS=3 measures a cold one.
+ */
+const warmUpSeconds = Number(process.env.BENCH_WARM_UP_SECONDS ?? 30);
 
 /**
  * Waits until the jobs the server runs as it starts (date changes and reminders, over every bench
@@ -69,7 +78,7 @@ export async function startUpJobsOver(logFile: string, log: (line: string) => vo
  * check-in run again on a server started with `--cpu-prof`, whose profile is read for the samples
  * of that run only.
  */
-export async function measureWithWrk({ entry, databaseUrl, tokens, positions, entryPositions, connections, threads, seconds, databasePid, log }: Options): Promise<WrkResults> {
+export async function measureWithWrk({ entry, databaseUrl, tokens, positions, entryPositions, connections, threads, seconds, databasePid, profile: profiledRun, log }: Options): Promise<WrkResults> {
   const url = `http://127.0.0.1:${benchPort}`;
   const cookies = tokens.map((token) => `authjs.session-token=${token}`);
   const load = { cookies, positions, threads, connections, databasePid };
@@ -100,12 +109,17 @@ export async function measureWithWrk({ entry, databaseUrl, tokens, positions, en
     const profileDir = join(localDir, 'bench', 'cpu-profile');
     rmSync(profileDir, { recursive: true, force: true });
     mkdirSync(profileDir, { recursive: true });
-    log('wrk: the check-in run again on a server under node --cpu-prof…');
+    log(`wrk: the ${profiledRun === 'entries' ? 'entries' : 'check-in'} run again on a server under node --cpu-prof…`);
     server = await startServer(entry, databaseUrl, { nodeOptions: ['--cpu-prof', `--cpu-prof-dir=${profileDir}`], logFile: join(localDir, 'bench', 'app-wrk-profiled.log') });
     await startUpJobsOver(join(localDir, 'bench', 'app-wrk-profiled.log'), log);
-    await runWrk({ ...load, url: `${url}/api/check-ins`, method: 'POST', seconds: warmUpSeconds, serverPid: server.pid, label: 'warm-up' });
+    // The entries are recorded on visits the members open again (or continue) on this server.
+    const profiledLoad =
+      profiledRun === 'entries'
+        ? { ...load, cookies: cookies.slice(0, connections), bodies: await openVisits(url, cookies.slice(0, connections), entryPositions), url: `${url}/api/harvest-entries` }
+        : { ...load, url: `${url}/api/check-ins` };
+    await runWrk({ ...profiledLoad, method: 'POST', seconds: warmUpSeconds, serverPid: server.pid, label: 'warm-up' });
     const started = performance.now();
-    const profiled = await runWrk({ ...load, url: `${url}/api/check-ins`, method: 'POST', seconds, serverPid: server.pid, label: 'profiled' });
+    const profiled = { ...(await runWrk({ ...profiledLoad, method: 'POST', seconds, serverPid: server.pid, label: 'profiled' })), of: profiledRun };
     // serve.mjs exits on SIGTERM; node writes the profile as it exits.
     await stopServer(server);
     server = null;

@@ -143,7 +143,22 @@ const monthDayAt = (place: number) => new Date(leapYearStart + (place - 1) * 86_
  * forager's season never restarts inside one continuous open period. Windows that cover the whole
  * year are one season a year long, from the first window's start.
  */
-function seasonWindows(windows: SeasonWindow[]): SeasonWindow[] {
+function seasonWindows(windows: SeasonWindow[]): readonly SeasonWindow[] {
+  const key = windows.map((w) => `${w.start}/${w.end}`).join(' ');
+  let seasons = seasonsByWindows.get(key);
+  if (!seasons) {
+    seasons = Object.freeze(mergedWindows(windows));
+    // Allowances share few distinct window sets; a bound keeps a long-running process from collecting them all.
+    if (seasonsByWindows.size >= 1000) seasonsByWindows.clear();
+    seasonsByWindows.set(key, seasons);
+  }
+  return seasons;
+}
+
+/** seasonWindows' answers by the windows they were made from: a check-in asks for the same few again and again. */
+const seasonsByWindows = new Map<string, readonly SeasonWindow[]>();
+
+function mergedWindows(windows: SeasonWindow[]): SeasonWindow[] {
   const covered = Array.from({ length: 367 }, () => false);
   for (const w of windows) {
     checkMonthDay(w.start);
