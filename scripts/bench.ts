@@ -13,7 +13,7 @@
 //   TALLYWOOD_BENCH_PG_PORT (54349) · BENCH_SERVER_ENTRY (another build's server/entry.mjs, to measure an earlier commit)
 //   TALLYWOOD_PROCESSES (the server's app processes, as for `npm start`: one per core unless set; the profiled run has one)
 //   BENCH_PROFILE (check-ins: the load the profiled run repeats; entries profiles the recording of entries instead)
-//   BENCH_WARM_UP_SECONDS (30: the check-ins sent before the measured runs, scripts/bench/wrk-check-ins.ts says why)
+//   BENCH_WARM_UP_SECONDS (60: the check-ins sent before the measured runs, scripts/bench/wrk-check-ins.ts says why)
 // Flags (after `npm run bench --`): --check-ins measures only what issue 15's targets are judged on
 // (pgbench, wrk, the CPU profile), leaving out the Node-driven cross-checks, the naive scan, the
 // audit and the Field page; --build builds the app into .local/bench-dist first, so the figures are

@@ -43,10 +43,10 @@ export type ProfiledRun = 'check-ins' | 'entries';
 
 /**
  * Each app process keeps the parcels' shared facts it has read (loadMeasuredParcelsNear), as a server
- * in service has kept those of the land its foragers use. The warm-up sends each position about
- * once, so the runs after it measure such a server; BENCH_WARM_UP_SECONDS=3 measures a cold one.
+ * in service has kept those of the land its foragers use. The warm-up sends each position to each
+ * of two processes about once, so the runs after it measure such a server; BENCH_WARM_UP_SECONDS=3 measures a cold one.
  */
-const warmUpSeconds = Number(process.env.BENCH_WARM_UP_SECONDS ?? 30);
+const warmUpSeconds = Number(process.env.BENCH_WARM_UP_SECONDS ?? 60);
 
 /**
  * Waits until the jobs the server runs as it starts (date changes and reminders, over every bench
