@@ -41,19 +41,19 @@ BEGIN
   WHERE id IN (SELECT a.parcel_id FROM allowances a WHERE a.species_id IN (SELECT id FROM changed_rows));
   RETURN NULL;
 END $$;--> statement-breakpoint
-CREATE TRIGGER terms_facts_inserted AFTER INSERT ON terms REFERENCING NEW TABLE AS changed_rows FOR EACH STATEMENT EXECUTE FUNCTION raise_facts_version_of_parcel_rows();--> statement-breakpoint
-CREATE TRIGGER terms_facts_updated AFTER UPDATE ON terms REFERENCING OLD TABLE AS earlier_rows NEW TABLE AS changed_rows FOR EACH STATEMENT EXECUTE FUNCTION raise_facts_version_of_parcel_rows();--> statement-breakpoint
-CREATE TRIGGER terms_facts_deleted AFTER DELETE ON terms REFERENCING OLD TABLE AS changed_rows FOR EACH STATEMENT EXECUTE FUNCTION raise_facts_version_of_parcel_rows();--> statement-breakpoint
-CREATE TRIGGER closures_facts_inserted AFTER INSERT ON closures REFERENCING NEW TABLE AS changed_rows FOR EACH STATEMENT EXECUTE FUNCTION raise_facts_version_of_parcel_rows();--> statement-breakpoint
-CREATE TRIGGER closures_facts_updated AFTER UPDATE ON closures REFERENCING OLD TABLE AS earlier_rows NEW TABLE AS changed_rows FOR EACH STATEMENT EXECUTE FUNCTION raise_facts_version_of_parcel_rows();--> statement-breakpoint
-CREATE TRIGGER closures_facts_deleted AFTER DELETE ON closures REFERENCING OLD TABLE AS changed_rows FOR EACH STATEMENT EXECUTE FUNCTION raise_facts_version_of_parcel_rows();--> statement-breakpoint
-CREATE TRIGGER hazards_facts_inserted AFTER INSERT ON hazards REFERENCING NEW TABLE AS changed_rows FOR EACH STATEMENT EXECUTE FUNCTION raise_facts_version_of_parcel_rows();--> statement-breakpoint
-CREATE TRIGGER hazards_facts_updated AFTER UPDATE ON hazards REFERENCING OLD TABLE AS earlier_rows NEW TABLE AS changed_rows FOR EACH STATEMENT EXECUTE FUNCTION raise_facts_version_of_parcel_rows();--> statement-breakpoint
-CREATE TRIGGER hazards_facts_deleted AFTER DELETE ON hazards REFERENCING OLD TABLE AS changed_rows FOR EACH STATEMENT EXECUTE FUNCTION raise_facts_version_of_parcel_rows();--> statement-breakpoint
-CREATE TRIGGER allowances_facts_inserted AFTER INSERT ON allowances REFERENCING NEW TABLE AS changed_rows FOR EACH STATEMENT EXECUTE FUNCTION raise_facts_version_of_parcel_rows();--> statement-breakpoint
-CREATE TRIGGER allowances_facts_updated AFTER UPDATE ON allowances REFERENCING OLD TABLE AS earlier_rows NEW TABLE AS changed_rows FOR EACH STATEMENT EXECUTE FUNCTION raise_facts_version_of_parcel_rows();--> statement-breakpoint
-CREATE TRIGGER allowances_facts_deleted AFTER DELETE ON allowances REFERENCING OLD TABLE AS changed_rows FOR EACH STATEMENT EXECUTE FUNCTION raise_facts_version_of_parcel_rows();--> statement-breakpoint
-CREATE TRIGGER limits_facts_inserted AFTER INSERT ON limits REFERENCING NEW TABLE AS changed_rows FOR EACH STATEMENT EXECUTE FUNCTION raise_facts_version_of_limit_rows();--> statement-breakpoint
-CREATE TRIGGER limits_facts_updated AFTER UPDATE ON limits REFERENCING OLD TABLE AS earlier_rows NEW TABLE AS changed_rows FOR EACH STATEMENT EXECUTE FUNCTION raise_facts_version_of_limit_rows();--> statement-breakpoint
-CREATE TRIGGER limits_facts_deleted AFTER DELETE ON limits REFERENCING OLD TABLE AS changed_rows FOR EACH STATEMENT EXECUTE FUNCTION raise_facts_version_of_limit_rows();--> statement-breakpoint
+-- Each table gets a trigger per kind of change, each statement passing the rows it touched.
+DO $$
+DECLARE
+  target record;
+BEGIN
+  FOR target IN SELECT * FROM (VALUES
+    ('terms', 'raise_facts_version_of_parcel_rows'), ('closures', 'raise_facts_version_of_parcel_rows'),
+    ('hazards', 'raise_facts_version_of_parcel_rows'), ('allowances', 'raise_facts_version_of_parcel_rows'),
+    ('limits', 'raise_facts_version_of_limit_rows')) AS t(name, fn)
+  LOOP
+    EXECUTE format('CREATE TRIGGER %I AFTER INSERT ON %I REFERENCING NEW TABLE AS changed_rows FOR EACH STATEMENT EXECUTE FUNCTION %I()', target.name || '_facts_inserted', target.name, target.fn);
+    EXECUTE format('CREATE TRIGGER %I AFTER UPDATE ON %I REFERENCING OLD TABLE AS earlier_rows NEW TABLE AS changed_rows FOR EACH STATEMENT EXECUTE FUNCTION %I()', target.name || '_facts_updated', target.name, target.fn);
+    EXECUTE format('CREATE TRIGGER %I AFTER DELETE ON %I REFERENCING OLD TABLE AS changed_rows FOR EACH STATEMENT EXECUTE FUNCTION %I()', target.name || '_facts_deleted', target.name, target.fn);
+  END LOOP;
+END $$;--> statement-breakpoint
 CREATE TRIGGER species_facts_updated AFTER UPDATE ON species REFERENCING NEW TABLE AS changed_rows FOR EACH STATEMENT EXECUTE FUNCTION raise_facts_version_of_species_rows();
