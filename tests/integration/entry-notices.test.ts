@@ -3,7 +3,7 @@ import pino from 'pino';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { Tx } from '../../src/db/client';
 import { applyMigrations } from '../../src/db/migrations';
-import { allowances, clubMemberships, clubs, harvestEntries, limits, outgoingMail, parcels, permits, species, users } from '../../src/db/schema';
+import { allowances, harvestEntries, limits, outgoingMail, permits, species } from '../../src/db/schema';
 import { fieldSyncSchema } from '../../src/lib/field.schemas';
 import type { Forager } from '../../src/lib/field/types';
 import { entryNoticeMails } from '../../src/server/entry-notices';
@@ -11,7 +11,7 @@ import { checkIn } from '../../src/server/field/check-in';
 import { recordHarvest } from '../../src/server/field/harvest';
 import { syncFieldItems } from '../../src/server/field/sync';
 import { queueMail } from '../../src/server/outbox';
-import { createThrowawayDatabase, migrationsFolder, one, referenceBoundary, type ThrowawayDatabase } from './throwaway-database';
+import { createThrowawayDatabase, insertClub, insertReferenceParcel, insertUser, migrationsFolder, one, type ThrowawayDatabase } from './throwaway-database';
 
 /*
  * The mail that tells a landowner (and a club permit's stewards) of a breach is written in the
@@ -51,20 +51,14 @@ const writtenBy = async (table: 'harvest_entries' | 'outgoing_mail', where: Retu
 beforeAll(async () => {
   throwaway = await createThrowawayDatabase('tallywood_entry_notices');
   await applyMigrations(throwaway.db, migrationsFolder);
-  const user = async (email: string, name: string, roles: ('forager' | 'landowner')[] = ['forager']) => (await one(db().insert(users).values({ email, name, roles }).returning())).id;
-  ids.owner = await user('owner@notices.test', 'Olive Owner', ['forager', 'landowner']);
-  ids.steward = await user('steward@notices.test', 'Stu Steward');
-  ids.ana = await user('ana@notices.test', 'Ana Member');
-  ids.ben = await user('ben@notices.test', 'Ben Member');
-  ids.club = (await one(db().insert(clubs).values({ slug: 'notices-club', name: 'Notices Club' }).returning())).id;
-  await db().insert(clubMemberships).values([
-    { clubId: ids.club, userId: ids.steward, role: 'steward', state: 'active' },
-    { clubId: ids.club, userId: ids.ana, role: 'member', state: 'active' },
-    { clubId: ids.club, userId: ids.ben, role: 'member', state: 'active' },
-  ]);
+  ids.owner = await insertUser(db(), 'owner@notices.test', 'Olive Owner', ['forager', 'landowner']);
+  ids.steward = await insertUser(db(), 'steward@notices.test', 'Stu Steward');
+  ids.ana = await insertUser(db(), 'ana@notices.test', 'Ana Member');
+  ids.ben = await insertUser(db(), 'ben@notices.test', 'Ben Member');
+  ids.club = await insertClub(db(), { slug: 'notices-club', name: 'Notices Club', steward: ids.steward, members: [ids.ana, ids.ben] });
   ana = { id: ids.ana, clubIds: [ids.club] };
   ben = { id: ids.ben, clubIds: [ids.club] };
-  ids.parcel = (await one(db().insert(parcels).values({ ownerId: ids.owner, name: 'Notice Hollow', status: 'listed', boundary: referenceBoundary, areaM2: 876_163.448, timeZone: 'America/New_York' }).returning())).id;
+  ids.parcel = await insertReferenceParcel(db(), { ownerId: ids.owner, name: 'Notice Hollow' });
   ids.chanterelle = (await one(db().insert(species).values({ slug: 'notices-chanterelle', scientificName: 'Cantharellus cibarius', commonName: 'Chanterelle', kind: 'mushroom', usualUnit: 'g' }).returning())).id;
   const allowance = await one(db().insert(allowances).values({ parcelId: ids.parcel, speciesId: ids.chanterelle, seasons: [{ start: '06-01', end: '09-30' }], methods: ['pick'] }).returning());
   const clubPermit = await one(db().insert(permits).values({ parcelId: ids.parcel, holderClubId: ids.club, state: 'active', startsOn: '2026-01-01', endsOn: '2026-12-31' }).returning());

@@ -4,7 +4,7 @@ import { entryNoticeFacts } from '../../src/db/field-notices.queries';
 import { listFlags } from '../../src/db/flags.queries';
 import { applyMigrations } from '../../src/db/migrations';
 import {
-  allowances, checkIns, clubMemberships, clubs, flags, harvestEntries, harvestTotals, limits, parcels, permitEvents, permits, species, users, visits,
+  allowances, checkIns, flags, harvestEntries, harvestTotals, limits, permitEvents, permits, species, users, visits,
 } from '../../src/db/schema';
 import type { FieldSyncInput } from '../../src/lib/field.schemas';
 import { fieldSyncEnvelopeSchema, fieldSyncSchema, parseSyncItems } from '../../src/lib/field.schemas';
@@ -12,7 +12,7 @@ import type { Forager } from '../../src/lib/field/types';
 import { noticeMail } from '../../src/lib/flag-words';
 import { checkIn } from '../../src/server/field/check-in';
 import { syncFieldItems } from '../../src/server/field/sync';
-import { createThrowawayDatabase, migrationsFolder, one, referenceBoundary, type ThrowawayDatabase } from './throwaway-database';
+import { createThrowawayDatabase, insertClub, insertReferenceParcel, insertUser, migrationsFolder, one, type ThrowawayDatabase } from './throwaway-database';
 
 /**
  * POST /api/field/sync's use case on a real database: items a device recorded offline, decided at
@@ -52,30 +52,24 @@ const entryRow = async (id: string | undefined) => one(db().select().from(harves
 beforeAll(async () => {
   throwaway = await createThrowawayDatabase('tallywood_field_sync');
   await applyMigrations(throwaway.db, migrationsFolder);
-  const user = async (email: string, name: string, roles: ('forager' | 'landowner')[] = ['forager']) => (await one(db().insert(users).values({ email, name, roles }).returning())).id;
-  ids.owner = await user('owner@sync.test', 'Olive Owner', ['forager', 'landowner']);
-  ids.steward = await user('steward@sync.test', 'Stu Steward');
-  ids.ana = await user('ana@sync.test', 'Ana Member');
-  ids.ben = await user('ben@sync.test', 'Ben Member');
-  ids.cy = await user('cy@sync.test', 'Cy Solo');
-  ids.dee = await user('dee@sync.test', 'Dee Solo');
-  ids.eve = await user('eve@sync.test', 'Eve Solo');
-  ids.fay = await user('fay@sync.test', 'Fay Solo');
-  ids.club = (await one(db().insert(clubs).values({ slug: 'sync-club', name: 'Sync Club' }).returning())).id;
-  await db().insert(clubMemberships).values([
-    { clubId: ids.club, userId: ids.steward, role: 'steward', state: 'active' },
-    { clubId: ids.club, userId: ids.ana, role: 'member', state: 'active' },
-    { clubId: ids.club, userId: ids.ben, role: 'member', state: 'active' },
-  ]);
+  ids.owner = await insertUser(db(), 'owner@sync.test', 'Olive Owner', ['forager', 'landowner']);
+  ids.steward = await insertUser(db(), 'steward@sync.test', 'Stu Steward');
+  ids.ana = await insertUser(db(), 'ana@sync.test', 'Ana Member');
+  ids.ben = await insertUser(db(), 'ben@sync.test', 'Ben Member');
+  ids.cy = await insertUser(db(), 'cy@sync.test', 'Cy Solo');
+  ids.dee = await insertUser(db(), 'dee@sync.test', 'Dee Solo');
+  ids.eve = await insertUser(db(), 'eve@sync.test', 'Eve Solo');
+  ids.fay = await insertUser(db(), 'fay@sync.test', 'Fay Solo');
+  ids.club = await insertClub(db(), { slug: 'sync-club', name: 'Sync Club', steward: ids.steward, members: [ids.ana, ids.ben] });
   ana = { id: ids.ana, clubIds: [ids.club] };
   ben = { id: ids.ben, clubIds: [ids.club] };
   cy = { id: ids.cy, clubIds: [] };
   dee = { id: ids.dee, clubIds: [] };
   eve = { id: ids.eve, clubIds: [] };
   fay = { id: ids.fay, clubIds: [] };
-  ids.parcel = (await one(db().insert(parcels).values({ ownerId: ids.owner, name: 'Sync Hollow', status: 'listed', boundary: referenceBoundary, areaM2: 876_163.448, timeZone: 'America/New_York' }).returning())).id;
+  ids.parcel = await insertReferenceParcel(db(), { ownerId: ids.owner, name: 'Sync Hollow' });
   // A draft of the same owner, on which nobody here holds a permit: no forager may know of it.
-  ids.hidden = (await one(db().insert(parcels).values({ ownerId: ids.owner, name: 'Hidden Draft', boundary: referenceBoundary, areaM2: 876_163.448, timeZone: 'America/New_York' }).returning())).id;
+  ids.hidden = await insertReferenceParcel(db(), { ownerId: ids.owner, name: 'Hidden Draft', status: 'draft' });
   ids.chanterelle = (await one(db().insert(species).values({ slug: 'sync-chanterelle', scientificName: 'Cantharellus cibarius', commonName: 'Chanterelle', kind: 'mushroom', usualUnit: 'g' }).returning())).id;
   const allowance = await one(db().insert(allowances).values({ parcelId: ids.parcel, speciesId: ids.chanterelle, seasons: [{ start: '06-01', end: '09-30' }], methods: ['pick'] }).returning());
   await db().insert(allowances).values({ parcelId: ids.hidden, speciesId: ids.chanterelle, seasons: [{ start: '01-01', end: '12-31' }], methods: ['pick'] });

@@ -3,9 +3,9 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { closeDb, createDb, type Db, type Executor } from '../../src/db/client';
 import { loadMeasuredParcelsNear } from '../../src/db/field.queries';
 import { applyMigrations } from '../../src/db/migrations';
-import { allowances, closures, hazards, limits, parcels, permits, species, speciesCautions, terms, users } from '../../src/db/schema';
+import { allowances, closures, hazards, limits, parcels, permits, species, speciesCautions, terms } from '../../src/db/schema';
 import type { Forager, MeasuredParcelFacts } from '../../src/lib/field/types';
-import { createThrowawayDatabase, migrationsFolder, one, referenceBoundary, type ThrowawayDatabase } from './throwaway-database';
+import { createThrowawayDatabase, insertReferenceParcel, insertUser, migrationsFolder, one, type ThrowawayDatabase } from './throwaway-database';
 
 /*
  * The check-in keeps the facts every forager shares by parcel and facts_version, which triggers
@@ -77,11 +77,10 @@ describe('one parcel changed in every way its shared facts can change', () => {
   beforeAll(async () => {
     throwaway = await createThrowawayDatabase('tallywood_facts_kept');
     await applyMigrations(throwaway.db, migrationsFolder);
-    const user = async (email: string, name: string, roles: ('forager' | 'landowner')[] = ['forager']) => (await one(db().insert(users).values({ email, name, roles }).returning())).id;
-    ids.owner = await user('owner@kept.test', 'Olive Owner', ['forager', 'landowner']);
-    ana = { id: await user('ana@kept.test', 'Ana'), clubIds: [] };
-    ben = { id: await user('ben@kept.test', 'Ben'), clubIds: [] };
-    ids.parcel = (await one(db().insert(parcels).values({ ownerId: ids.owner, name: 'Kept Hollow', status: 'listed', boundary: referenceBoundary, areaM2: 876_163.448, timeZone: 'America/New_York' }).returning())).id;
+    ids.owner = await insertUser(db(), 'owner@kept.test', 'Olive Owner', ['forager', 'landowner']);
+    ana = { id: await insertUser(db(), 'ana@kept.test', 'Ana'), clubIds: [] };
+    ben = { id: await insertUser(db(), 'ben@kept.test', 'Ben'), clubIds: [] };
+    ids.parcel = await insertReferenceParcel(db(), { ownerId: ids.owner, name: 'Kept Hollow' });
     ids.species = (await one(db().insert(species).values({ slug: 'kept-chanterelle', scientificName: 'Cantharellus cibarius', commonName: 'Chanterelle', kind: 'mushroom', usualUnit: 'g' }).returning())).id;
     ids.allowance = (await one(db().insert(allowances).values({ parcelId: ids.parcel, speciesId: ids.species, seasons: [{ start: '06-01', end: '09-30' }], methods: ['pick'] }).returning())).id;
     ids.anaPermit = (await one(db().insert(permits).values({ parcelId: ids.parcel, holderUserId: ana.id, state: 'active', startsOn: '2026-01-01', endsOn: '2026-12-31' }).returning())).id;

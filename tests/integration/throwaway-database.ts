@@ -2,7 +2,7 @@ import { randomBytes } from 'node:crypto';
 import { fileURLToPath } from 'node:url';
 import postgres from 'postgres';
 import { closeDb, createDb, type Db } from '../../src/db/client';
-import { users } from '../../src/db/schema';
+import { clubMemberships, clubs, parcels, users } from '../../src/db/schema';
 
 /** The drizzle-kit migrations folder, as the app's migrate script reads it. */
 export const migrationsFolder = fileURLToPath(new URL('../../drizzle', import.meta.url));
@@ -60,3 +60,18 @@ export async function insertUser(db: Db, email: string, name: string, roles: ('f
 /** The REFERENCES §2 ring (876 163.448 m², GeographicLib) as a MultiPolygon: the parcel of the throwaway tests. */
 export const referenceRing = [[-75, 45], [-74.99, 45], [-74.99, 45.01], [-75, 45.01], [-75, 45]];
 export const referenceBoundary = { type: 'MultiPolygon', coordinates: [[referenceRing]] };
+
+/** A parcel of `ownerId` on the REFERENCES §2 ring, in America/New_York, listed unless said; its id. */
+export async function insertReferenceParcel(db: Db, { ownerId, name, status = 'listed' }: { ownerId: string; name: string; status?: 'draft' | 'listed' | 'archived' }) {
+  return (await one(db.insert(parcels).values({ ownerId, name, status, boundary: referenceBoundary, areaM2: 876_163.448, timeZone: 'America/New_York' }).returning({ id: parcels.id }))).id;
+}
+
+/** A club with its steward and members, every membership active; its id. */
+export async function insertClub(db: Db, { slug, name, steward, members }: { slug: string; name: string; steward: string; members: string[] }) {
+  const club = (await one(db.insert(clubs).values({ slug, name }).returning({ id: clubs.id }))).id;
+  await db.insert(clubMemberships).values([
+    { clubId: club, userId: steward, role: 'steward', state: 'active' },
+    ...members.map((userId) => ({ clubId: club, userId, role: 'member' as const, state: 'active' as const })),
+  ]);
+  return club;
+}
