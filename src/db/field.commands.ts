@@ -134,7 +134,6 @@ export async function checkOut(db: Executor, { visitId, foragerId, now }: { visi
   return rows.length > 0;
 }
 
-/** A forager's own visit, with where they checked in last in it. */
 /** A forager's visit by id, with the position and accuracy of its latest check-in, in one statement. */
 export async function findVisit(db: Executor, { visitId, foragerId }: { visitId: string; foragerId: string }) {
   const [row] = await db
